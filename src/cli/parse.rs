@@ -1,0 +1,248 @@
+//! `couplet parse`: how an input was read.
+
+use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, argument_or_stdin, print_json};
+use couplet::composition::Composition;
+use couplet::notation::{Input, NotationError, NotationErrorKind, Species, Term, parse_input};
+use num_rational::Ratio;
+use serde_json::{Value, json};
+
+#[derive(clap::Args)]
+pub struct ParseArgs {
+    /// A formula (SO4^2-), species joined by + (H2O + CO2), or an equation; - reads standard input
+    input: String,
+    /// Print JSON instead of a table
+    #[arg(long)]
+    json: bool,
+}
+
+pub fn run(args: &ParseArgs) -> u8 {
+    let text = match argument_or_stdin(&args.input) {
+        Ok(text) => text,
+        Err(message) => {
+            eprintln!("error: {message}");
+            return EXIT_USAGE;
+        }
+    };
+    let text = text.trim_end_matches(['\n', '\r']);
+    match parse_input(text) {
+        Ok(input) => {
+            if args.json {
+                print_json(&input_json(&input, text));
+            } else {
+                print!("{}", input_table(&input));
+            }
+            EXIT_OK
+        }
+        Err(error) => report_error(&error, args.json),
+    }
+}
+
+/// Prints a notation error (JSON on stdout, or a caret rendering on stderr) and returns its exit
+/// status.
+pub fn report_error(error: &NotationError, json: bool) -> u8 {
+    if json {
+        print_json(&error_json(error));
+    } else {
+        eprintln!("{}", error.render());
+    }
+    error_status(error)
+}
+
+/// The exit status of a notation error.
+pub fn error_status(error: &NotationError) -> u8 {
+    match error.kind {
+        NotationErrorKind::Chemistry => EXIT_FINDINGS,
+        _ => EXIT_USAGE,
+    }
+}
+
+/// `{"error": {"kind", "message", "line", "column"}}`
+pub fn error_json(error: &NotationError) -> Value {
+    json!({"error": {
+        "kind": error.kind.name(),
+        "message": error.message,
+        "line": error.line(),
+        "column": error.column(),
+    }})
+}
+
+fn coefficient_text(c: &Ratio<u64>) -> String {
+    if c.is_integer() {
+        c.numer().to_string()
+    } else {
+        format!("{}/{}", c.numer(), c.denom())
+    }
+}
+
+/// The JSON object of one species (schema in the README).
+pub fn species_json(species: &Species, coefficient: &Ratio<u64>, input_text: &str) -> Value {
+    let elements: serde_json::Map<String, Value> = species
+        .composition
+        .counts()
+        .iter()
+        .map(|(e, n)| (e.symbol().to_owned(), json!(n)))
+        .collect();
+    json!({
+        "input": input_text,
+        "canonical": species.ascii(),
+        "coefficient": coefficient_text(coefficient),
+        "elements": elements,
+        "charge": species.charge(),
+        "state": species.state.map(|s| s.label()),
+        "molar_mass_g_per_mol": species.composition.molar_mass().map(|m| m.grams_per_mol),
+    })
+}
+
+fn terms_json(terms: &[Term], text: &str) -> Value {
+    Value::Array(
+        terms
+            .iter()
+            .map(|t| {
+                let written = &text[t.species.span.start..t.species.span.end];
+                species_json(&t.species, &t.coefficient, written)
+            })
+            .collect(),
+    )
+}
+
+fn input_json(input: &Input, text: &str) -> Value {
+    match input {
+        Input::Species(terms) => json!({"species": terms_json(terms, text)}),
+        Input::Equation(eq) => json!({
+            "reactants": terms_json(&eq.reactants, text),
+            "products": terms_json(&eq.products, text),
+            "arrow": eq.arrow.ascii(),
+        }),
+    }
+}
+
+fn totals(terms: &[Term]) -> (Vec<(String, Ratio<i128>)>, Ratio<i128>) {
+    let mut counts: Vec<(String, Ratio<i128>)> = Vec::new();
+    let mut charge = Ratio::from_integer(0i128);
+    for term in terms {
+        let c = Ratio::new(
+            *term.coefficient.numer() as i128,
+            *term.coefficient.denom() as i128,
+        );
+        charge += c * Ratio::from_integer(term.species.charge() as i128);
+        for (element, n) in term.species.composition.counts() {
+            let add = c * Ratio::from_integer(*n as i128);
+            match counts.iter_mut().find(|(s, _)| s == element.symbol()) {
+                Some((_, total)) => *total += add,
+                None => counts.push((element.symbol().to_owned(), add)),
+            }
+        }
+    }
+    (counts, charge)
+}
+
+fn rational_text(r: &Ratio<i128>) -> String {
+    if r.is_integer() {
+        r.numer().to_string()
+    } else {
+        format!("{}/{}", r.numer(), r.denom())
+    }
+}
+
+fn composition_text(c: &Composition) -> String {
+    if c.is_empty() {
+        return "—".to_owned();
+    }
+    c.counts()
+        .iter()
+        .map(|(e, n)| format!("{e} {n}"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+fn side_table(out: &mut String, title: &str, terms: &[Term]) {
+    out.push_str(title);
+    out.push('\n');
+    out.push_str(&format!(
+        "  {:>6}  {:<18} {:>6}  {:<5} {:>12}  {}\n",
+        "coef", "species", "charge", "state", "g/mol", "atoms"
+    ));
+    for term in terms {
+        let s = &term.species;
+        let mass = s.composition.molar_mass().map_or("—".to_owned(), |m| {
+            format!(
+                "{:.3}{}",
+                m.grams_per_mol,
+                if m.uses_mass_numbers { "*" } else { "" }
+            )
+        });
+        out.push_str(&format!(
+            "  {:>6}  {:<18} {:>6}  {:<5} {:>12}  {}\n",
+            coefficient_text(&term.coefficient),
+            s.unicode(),
+            s.charge(),
+            s.state.map_or("—", |st| st.label()),
+            mass,
+            composition_text(&s.composition),
+        ));
+    }
+}
+
+fn input_table(input: &Input) -> String {
+    let mut out = String::new();
+    match input {
+        Input::Species(terms) => side_table(&mut out, "species", terms),
+        Input::Equation(eq) => {
+            out.push_str(&format!("read as   {}\n", eq.unicode()));
+            out.push_str(&format!("canonical {}\n\n", eq.ascii()));
+            side_table(&mut out, "left side", &eq.reactants);
+            side_table(&mut out, "right side", &eq.products);
+            let (left, left_charge) = totals(&eq.reactants);
+            let (right, right_charge) = totals(&eq.products);
+            let mut differences = Vec::new();
+            for (symbol, n) in &left {
+                let m = right
+                    .iter()
+                    .find(|(s, _)| s == symbol)
+                    .map_or(Ratio::from_integer(0), |(_, m)| *m);
+                if *n != m {
+                    differences.push(format!(
+                        "{symbol} {} → {}",
+                        rational_text(n),
+                        rational_text(&m)
+                    ));
+                }
+            }
+            for (symbol, m) in &right {
+                if !left.iter().any(|(s, _)| s == symbol) {
+                    differences.push(format!("{symbol} 0 → {}", rational_text(m)));
+                }
+            }
+            if left_charge != right_charge {
+                differences.push(format!(
+                    "charge {} → {}",
+                    rational_text(&left_charge),
+                    rational_text(&right_charge)
+                ));
+            }
+            out.push('\n');
+            if differences.is_empty() {
+                out.push_str("as written: atoms and charge balance\n");
+            } else {
+                out.push_str(&format!(
+                    "as written: not balanced ({}); see couplet balance\n",
+                    differences.join("; ")
+                ));
+            }
+        }
+    }
+    let terms: Vec<&Term> = match input {
+        Input::Species(terms) => terms.iter().collect(),
+        Input::Equation(eq) => eq.reactants.iter().chain(&eq.products).collect(),
+    };
+    let approximate = terms.iter().any(|t| {
+        t.species
+            .composition
+            .molar_mass()
+            .is_some_and(|m| m.uses_mass_numbers)
+    });
+    if approximate {
+        out.push_str("* an element with no standard atomic weight counts with the mass number of its longest-lived isotope\n");
+    }
+    out
+}

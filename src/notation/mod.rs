@@ -1,0 +1,318 @@
+//! Chemical notation: the typed values that the parser returns and the displays write.
+//!
+//! Text flows one way: [`parse`] turns what a chemist types into [`Species`],
+//! [`Equation`] and [`Formula`] values that carry byte [`Span`]s into the input;
+//! [`display`] writes them back as canonical ASCII (which the parser reads again), Unicode,
+//! or LaTeX for the mhchem `\ce{}` macro. Element counts and charge are computed once, when a
+//! species is read, with checked arithmetic.
+
+mod display;
+mod error;
+mod parse;
+
+pub use display::{Style, equation_to_string, species_to_string};
+pub use error::{NotationError, NotationErrorKind};
+pub use parse::{Input, LIMITS, Limits, parse_equation, parse_input, parse_species};
+
+use crate::composition::Composition;
+use crate::elements::Element;
+use num_rational::Ratio;
+use std::fmt;
+use std::hash::{Hash, Hasher};
+use std::str::FromStr;
+
+/// A byte range into the text a value was read from.
+///
+/// Spans never take part in equality or hashing: two values read from different text are
+/// equal when they say the same thing (the same choice syn makes for its syntax trees).
+#[derive(Clone, Copy, Debug, Default)]
+pub struct Span {
+    /// First byte.
+    pub start: usize,
+    /// One past the last byte.
+    pub end: usize,
+}
+
+impl Span {
+    /// A span from `start` to `end` (bytes).
+    pub fn new(start: usize, end: usize) -> Span {
+        Span { start, end }
+    }
+}
+
+impl PartialEq for Span {
+    fn eq(&self, _: &Span) -> bool {
+        true
+    }
+}
+impl Eq for Span {}
+impl Hash for Span {
+    fn hash<H: Hasher>(&self, _: &mut H) {}
+}
+
+/// Round `()` or square `[]` brackets around a group.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Bracket {
+    /// `( … )`
+    Round,
+    /// `[ … ]`
+    Square,
+}
+
+/// One piece of a formula body: an element with its count, or a bracketed group with its count.
+#[derive(Clone, Debug, PartialEq, Eq, Hash)]
+pub enum Unit {
+    /// `O4` in `SO4`.
+    Atom {
+        /// The element (or isotope label).
+        element: Element,
+        /// The subscript, 1 when none was written.
+        count: u32,
+        /// Where it was read.
+        span: Span,
+    },
+    /// `(OH)2` in `Zn(OH)2`.
+    Group {
+        /// Which brackets.
+        bracket: Bracket,
+        /// What is inside.
+        body: Vec<Unit>,
+        /// The subscript after the closing bracket, 1 when none was written.
+        count: u32,
+        /// Where it was read, brackets and count included.
+        span: Span,
+    },
+}
+
+/// One component of a formula: the main body, or an adduct after `·` (`5H2O` in `CuSO4·5H2O`).
+#[derive(Clone, Debug, PartialEq, Eq, Hash)]
+pub struct Component {
+    /// How many times the body occurs (1 for the main body).
+    pub multiplier: u32,
+    /// The element and group units.
+    pub body: Vec<Unit>,
+}
+
+/// A formula with its charge: `SO4^2-`, `CuSO4·5H2O`, `[Fe(CN)6]4-`.
+#[derive(Clone, Debug, PartialEq, Eq, Hash)]
+pub struct Formula {
+    /// The main body first, then adducts in the order written.
+    pub components: Vec<Component>,
+    /// Net charge in elementary charges.
+    pub charge: i32,
+}
+
+/// Phase or state label written after a species.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum State {
+    /// `(s)`
+    Solid,
+    /// `(l)`
+    Liquid,
+    /// `(g)`
+    Gas,
+    /// `(aq)`
+    Aqueous,
+    /// `(cr)`
+    Crystal,
+}
+
+impl State {
+    /// The label as written between the brackets: `s`, `l`, `g`, `aq`, `cr`.
+    pub fn label(self) -> &'static str {
+        match self {
+            State::Solid => "s",
+            State::Liquid => "l",
+            State::Gas => "g",
+            State::Aqueous => "aq",
+            State::Crystal => "cr",
+        }
+    }
+
+    /// Reads a label (without brackets).
+    pub fn from_label(label: &str) -> Option<State> {
+        Some(match label {
+            "s" => State::Solid,
+            "l" => State::Liquid,
+            "g" => State::Gas,
+            "aq" => State::Aqueous,
+            "cr" => State::Crystal,
+            _ => return None,
+        })
+    }
+
+    /// True for solids and crystals.
+    pub fn is_condensed_solid(self) -> bool {
+        matches!(self, State::Solid | State::Crystal)
+    }
+}
+
+/// What a species is: the electron, or a formula.
+#[derive(Clone, Debug, PartialEq, Eq, Hash)]
+pub enum SpeciesKind {
+    /// `e-`
+    Electron,
+    /// Anything else.
+    Formula(Formula),
+}
+
+/// A species as written: formula or electron, with an optional state label, and its
+/// element counts and charge.
+#[derive(Clone, Debug)]
+pub struct Species {
+    /// Electron or formula.
+    pub kind: SpeciesKind,
+    /// `(s)`, `(aq)`, … when written.
+    pub state: Option<State>,
+    /// Element counts and charge, computed when the species was read.
+    pub composition: Composition,
+    /// Where it was read.
+    pub span: Span,
+}
+
+impl PartialEq for Species {
+    fn eq(&self, other: &Species) -> bool {
+        // The composition is derived from `kind`, so it need not be compared.
+        self.kind == other.kind && self.state == other.state
+    }
+}
+impl Eq for Species {}
+impl Hash for Species {
+    fn hash<H: Hasher>(&self, state: &mut H) {
+        self.kind.hash(state);
+        self.state.hash(state);
+    }
+}
+
+impl Species {
+    /// True for `e-`.
+    pub fn is_electron(&self) -> bool {
+        matches!(self.kind, SpeciesKind::Electron)
+    }
+
+    /// Net charge.
+    pub fn charge(&self) -> i64 {
+        self.composition.charge()
+    }
+
+    /// The same species with no state label, for comparing what a species *is*.
+    pub fn without_state(&self) -> Species {
+        Species {
+            state: None,
+            ..self.clone()
+        }
+    }
+
+    /// Canonical ASCII, the form the parser reads back.
+    pub fn ascii(&self) -> String {
+        species_to_string(self, Style::Ascii)
+    }
+
+    /// Unicode with sub- and superscripts, for terminals.
+    pub fn unicode(&self) -> String {
+        species_to_string(self, Style::Unicode)
+    }
+
+    /// The mhchem form, without the `\ce{}` wrapper.
+    pub fn mhchem(&self) -> String {
+        species_to_string(self, Style::Mhchem)
+    }
+}
+
+impl FromStr for Species {
+    type Err = NotationError;
+    fn from_str(text: &str) -> Result<Species, NotationError> {
+        parse_species(text)
+    }
+}
+
+impl fmt::Display for Species {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.ascii())
+    }
+}
+
+/// An exact, non-negative coefficient as written (`2`, `1/2`, `0.25`); 1 when none was written.
+pub type Coefficient = Ratio<u64>;
+
+/// A species with its coefficient, one term of an equation side.
+#[derive(Clone, Debug, PartialEq, Eq, Hash)]
+pub struct Term {
+    /// As written; 1 when omitted.
+    pub coefficient: Coefficient,
+    /// The species.
+    pub species: Species,
+    /// Where the whole term was read.
+    pub span: Span,
+}
+
+/// The arrow between the sides, as the user wrote it.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Arrow {
+    /// `->` or `→`
+    Forward,
+    /// `=`
+    Equals,
+    /// `<->`, `<=>` or `⇌`
+    Equilibrium,
+}
+
+impl Arrow {
+    /// Canonical ASCII spelling.
+    pub fn ascii(self) -> &'static str {
+        match self {
+            Arrow::Forward => "->",
+            Arrow::Equals => "=",
+            Arrow::Equilibrium => "<=>",
+        }
+    }
+}
+
+/// A chemical equation or half-reaction as written: two sides and an arrow.
+#[derive(Clone, Debug, PartialEq, Eq, Hash)]
+pub struct Equation {
+    /// Left side.
+    pub reactants: Vec<Term>,
+    /// Right side.
+    pub products: Vec<Term>,
+    /// The arrow.
+    pub arrow: Arrow,
+}
+
+impl Equation {
+    /// True when an electron appears on either side.
+    pub fn has_electrons(&self) -> bool {
+        self.reactants
+            .iter()
+            .chain(&self.products)
+            .any(|t| t.species.is_electron())
+    }
+
+    /// Canonical ASCII, the form the parser reads back.
+    pub fn ascii(&self) -> String {
+        equation_to_string(self, Style::Ascii)
+    }
+
+    /// Unicode with sub- and superscripts and a real arrow.
+    pub fn unicode(&self) -> String {
+        equation_to_string(self, Style::Unicode)
+    }
+
+    /// LaTeX for the mhchem package: `\ce{…}`.
+    pub fn latex(&self) -> String {
+        format!("\\ce{{{}}}", equation_to_string(self, Style::Mhchem))
+    }
+}
+
+impl FromStr for Equation {
+    type Err = NotationError;
+    fn from_str(text: &str) -> Result<Equation, NotationError> {
+        parse_equation(text)
+    }
+}
+
+impl fmt::Display for Equation {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.ascii())
+    }
+}

@@ -1,0 +1,1058 @@
+//! The parser: text → [`Species`], [`Equation`] and [`Input`] values with spans.
+//!
+//! Built from small nom parsers, smallest first: counts, element symbols, units, formula
+//! bodies, charges, state labels, species, terms, sides, arrows, equations. nom stays inside
+//! this file: every public function returns the project's [`NotationError`].
+//!
+//! ## The rules where `+`, `-` and digits could mean two things
+//! - After a formula, digits followed by a sign are the **charge** only when the formula is one
+//!   element symbol (`Fe3+`, `S2-`) or ends with a square bracket (`[Fe(CN)6]4-`); otherwise
+//!   they are a subscript and the sign alone is the charge (`NO3-`, `NH4+`). A caret or braces
+//!   always mark a charge: `SO4^2-`, `Hg2^2+`, `SO4{2-}`, `Fe^{3+}`.
+//! - A sign followed by digits (`Fe+3`) is a charge only when the species ends there (end of
+//!   text, a space, a state label or an arrow); otherwise the `+` separates species and the
+//!   digits are the next coefficient (`2Fe+3Cl2`).
+//! - A single `+` between two formulas with no space separates them (`H2O+CO2`). Two or more
+//!   `+` between formulas (`Na++Cl-`) is ambiguous and refused: write spaces around the `+`
+//!   that separates species.
+//! - `-` followed by `>` is always the arrow, never a charge.
+
+use super::{
+    Arrow, Bracket, Component, Equation, Formula, NotationError, NotationErrorKind, Span, Species,
+    SpeciesKind, State, Term, Unit,
+};
+use crate::composition::Composition;
+use crate::elements::Element;
+use nom::IResult;
+use nom::error::{ErrorKind, ParseError};
+use num_rational::Ratio;
+use std::borrow::Cow;
+
+/// Documented bounds on what the parser accepts; input past them is a `limit` error.
+#[derive(Clone, Copy, Debug)]
+pub struct Limits {
+    /// Longest input, in bytes.
+    pub max_input_bytes: usize,
+    /// Deepest bracket nesting.
+    pub max_nesting: usize,
+    /// Largest subscript or adduct multiplier.
+    pub max_count: u32,
+    /// Largest charge magnitude.
+    pub max_charge: u32,
+    /// Largest numerator or denominator of a coefficient.
+    pub max_coefficient: u64,
+    /// Most terms in an equation or species list.
+    pub max_terms: usize,
+}
+
+/// The limits in force.
+pub const LIMITS: Limits = Limits {
+    max_input_bytes: 4096,
+    max_nesting: 8,
+    max_count: 1_000_000,
+    max_charge: 99,
+    max_coefficient: 1_000_000_000_000,
+    max_terms: 64,
+};
+
+/// What `couplet parse` can be given: a list of species (`SO4^2-`, `H2O + CO2`) or an equation.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum Input {
+    /// One or more terms with no arrow.
+    Species(Vec<Term>),
+    /// Two sides and an arrow.
+    Equation(Equation),
+}
+
+type Res<'a, T> = IResult<&'a str, T, PErr<'a>>;
+
+/// The error nom carries inside this file: where, how long, what.
+#[derive(Debug)]
+struct PErr<'a> {
+    at: &'a str,
+    len: usize,
+    kind: NotationErrorKind,
+    message: Cow<'static, str>,
+}
+
+impl<'a> ParseError<&'a str> for PErr<'a> {
+    fn from_error_kind(input: &'a str, _kind: ErrorKind) -> Self {
+        PErr {
+            at: input,
+            len: input.chars().next().map_or(0, char::len_utf8),
+            kind: NotationErrorKind::Syntax,
+            message: Cow::Borrowed("unexpected text"),
+        }
+    }
+    fn append(_: &'a str, _: ErrorKind, other: Self) -> Self {
+        other
+    }
+}
+
+/// A hard failure at `at` (no backtracking past it).
+fn fail<'a, T>(
+    at: &'a str,
+    len: usize,
+    kind: NotationErrorKind,
+    message: impl Into<Cow<'static, str>>,
+) -> Res<'a, T> {
+    Err(nom::Err::Failure(PErr {
+        at,
+        len,
+        kind,
+        message: message.into(),
+    }))
+}
+
+/// A soft miss: the caller may try something else here.
+fn miss<'a, T>(at: &'a str) -> Res<'a, T> {
+    Err(nom::Err::Error(PErr::from_error_kind(at, ErrorKind::Fail)))
+}
+
+fn syntax<'a, T>(at: &'a str, message: impl Into<Cow<'static, str>>) -> Res<'a, T> {
+    let len = at.chars().next().map_or(0, char::len_utf8);
+    fail(at, len, NotationErrorKind::Syntax, message)
+}
+
+fn first_char(s: &str) -> Option<char> {
+    s.chars().next()
+}
+
+fn describe(s: &str) -> String {
+    match first_char(s) {
+        Some(c) => format!("'{c}'"),
+        None => "the end of the input".to_owned(),
+    }
+}
+
+// ---------------------------------------------------------------- numbers
+
+const SUBSCRIPTS: [char; 10] = ['₀', '₁', '₂', '₃', '₄', '₅', '₆', '₇', '₈', '₉'];
+const SUPERSCRIPTS: [char; 10] = ['⁰', '¹', '²', '³', '⁴', '⁵', '⁶', '⁷', '⁸', '⁹'];
+
+fn digit_value(c: char, digits: &[char; 10]) -> Option<u64> {
+    digits.iter().position(|&d| d == c).map(|v| v as u64)
+}
+
+/// Digits in one script (ASCII, subscript or superscript) as a number, with their length in
+/// bytes; `None` when there are no such digits. Fails past `limit`.
+fn number_in<'a>(
+    input: &'a str,
+    script: Option<&[char; 10]>,
+    limit: u64,
+    what: &'static str,
+) -> Res<'a, Option<u64>> {
+    let mut value: u64 = 0;
+    let mut taken = 0;
+    for c in input.chars() {
+        let digit = match script {
+            None if c.is_ascii_digit() => (c as u8 - b'0') as u64,
+            Some(set) => match digit_value(c, set) {
+                Some(d) => d,
+                None => break,
+            },
+            None => break,
+        };
+        value = match value.checked_mul(10).and_then(|v| v.checked_add(digit)) {
+            Some(v) if v <= limit => v,
+            _ => {
+                let digits_len = input
+                    .char_indices()
+                    .find(|&(_, c)| !(c.is_ascii_digit() || script.is_some_and(|s| s.contains(&c))))
+                    .map_or(input.len(), |(i, _)| i);
+                return fail(
+                    input,
+                    digits_len,
+                    NotationErrorKind::Limit,
+                    format!("{what} is larger than the limit of {limit}"),
+                );
+            }
+        };
+        taken += c.len_utf8();
+    }
+    if taken == 0 {
+        Ok((input, None))
+    } else {
+        Ok((&input[taken..], Some(value)))
+    }
+}
+
+/// A subscript after an element or group, in ASCII or Unicode subscript digits.
+/// Returns the count and whether ASCII digits were written (only those can turn out to be a
+/// charge, as in `Fe3+`).
+fn count(input: &str) -> Res<'_, (u32, bool)> {
+    let max = super::LIMITS.max_count as u64;
+    let (rest, ascii) = number_in(input, None, max, "a count")?;
+    let (rest, value, written_ascii) = match ascii {
+        Some(v) => (rest, Some(v), true),
+        None => {
+            let (rest, sub) = number_in(input, Some(&SUBSCRIPTS), max, "a count")?;
+            (rest, sub, false)
+        }
+    };
+    match value {
+        None => Ok((input, (1, false))),
+        Some(0) => fail(
+            input,
+            input.len() - rest.len(),
+            NotationErrorKind::Syntax,
+            "a count of zero: leave the element out instead",
+        ),
+        Some(v) => Ok((rest, (v as u32, written_ascii))),
+    }
+}
+
+// ---------------------------------------------------------------- formulas
+
+/// An element symbol: a capital letter and, if it makes a known symbol, one small letter.
+fn element_symbol(input: &str) -> Res<'_, Element> {
+    let bytes = input.as_bytes();
+    match bytes.first() {
+        Some(b) if b.is_ascii_uppercase() => {}
+        Some(b) if b.is_ascii_lowercase() => {
+            return syntax(
+                input,
+                format!(
+                    "element symbols start with a capital letter, found {}",
+                    describe(input)
+                ),
+            );
+        }
+        _ => return miss(input),
+    }
+    if let Some(second) = bytes.get(1).filter(|b| b.is_ascii_lowercase()) {
+        let _ = second;
+        return match Element::from_symbol(&input[..2]) {
+            Some(element) => Ok((&input[2..], element)),
+            None => fail(
+                input,
+                2,
+                NotationErrorKind::UnknownElement,
+                format!("no element has the symbol '{}'", &input[..2]),
+            ),
+        };
+    }
+    match Element::from_symbol(&input[..1]) {
+        Some(element) => Ok((&input[1..], element)),
+        None => fail(
+            input,
+            1,
+            NotationErrorKind::UnknownElement,
+            format!("no element has the symbol '{}'", &input[..1]),
+        ),
+    }
+}
+
+/// Where a unit's count came from, so that `Fe3+` can give its digits to the charge.
+#[derive(Clone, Copy)]
+struct LastCount {
+    ascii_written: bool,
+    value: u32,
+}
+
+/// Parsing context: the whole text (for spans) and the bracket depth.
+#[derive(Clone, Copy)]
+struct Ctx<'a> {
+    text: &'a str,
+}
+
+impl<'a> Ctx<'a> {
+    fn offset(&self, rest: &str) -> usize {
+        self.text.len() - rest.len()
+    }
+
+    fn span(&self, from: &str, to: &str) -> Span {
+        Span::new(self.offset(from), self.offset(to))
+    }
+
+    /// One element with its count, or a bracketed group with its count.
+    fn unit(&self, input: &'a str, depth: usize) -> Res<'a, (Unit, LastCount)> {
+        let open = match first_char(input) {
+            Some('(') => Bracket::Round,
+            Some('[') => Bracket::Square,
+            _ => {
+                let (rest, element) = element_symbol(input)?;
+                let (rest, (count, ascii_written)) = count(rest)?;
+                let unit = Unit::Atom {
+                    element,
+                    count,
+                    span: self.span(input, rest),
+                };
+                return Ok((
+                    rest,
+                    (
+                        unit,
+                        LastCount {
+                            ascii_written,
+                            value: count,
+                        },
+                    ),
+                ));
+            }
+        };
+        // `(` before a small letter starts a state label, not a group.
+        if open == Bracket::Round && input[1..].starts_with(|c: char| c.is_ascii_lowercase()) {
+            return miss(input);
+        }
+        if depth >= super::LIMITS.max_nesting {
+            return fail(
+                input,
+                1,
+                NotationErrorKind::Limit,
+                format!(
+                    "brackets nest deeper than the limit of {}",
+                    super::LIMITS.max_nesting
+                ),
+            );
+        }
+        let (inner, (body, _)) = self.body_with_last(&input[1..], depth + 1)?;
+        let close = match open {
+            Bracket::Round => ')',
+            Bracket::Square => ']',
+        };
+        let Some(rest) = inner.strip_prefix(close) else {
+            return fail(
+                input,
+                1,
+                NotationErrorKind::Syntax,
+                format!(
+                    "this bracket is not closed: expected '{close}' before {}",
+                    describe(inner)
+                ),
+            );
+        };
+        let (rest, (count, ascii_written)) = count(rest)?;
+        let unit = Unit::Group {
+            bracket: open,
+            body,
+            count,
+            span: self.span(input, rest),
+        };
+        Ok((
+            rest,
+            (
+                unit,
+                LastCount {
+                    ascii_written,
+                    value: count,
+                },
+            ),
+        ))
+    }
+
+    /// One or more units, and how the last one's count was written.
+    fn body_with_last(
+        &self,
+        input: &'a str,
+        depth: usize,
+    ) -> Res<'a, (Vec<Unit>, Option<LastCount>)> {
+        let mut units = Vec::new();
+        let mut last = None;
+        let mut rest = input;
+        loop {
+            match self.unit(rest, depth) {
+                Ok((next, (unit, count))) => {
+                    units.push(unit);
+                    last = Some(count);
+                    rest = next;
+                }
+                Err(nom::Err::Error(_)) => break,
+                Err(e) => return Err(e),
+            }
+        }
+        if units.is_empty() {
+            let message = match first_char(rest) {
+                Some(')') | Some(']') => "empty brackets: expected an element symbol".to_owned(),
+                _ => format!("expected an element symbol, found {}", describe(rest)),
+            };
+            return syntax(rest, message);
+        }
+        Ok((rest, (units, last)))
+    }
+
+    /// The components of a formula: a body, then adducts after `·`, `*`, `•` or `.`.
+    fn components(&self, input: &'a str) -> Res<'a, (Vec<Component>, Option<LastCount>)> {
+        let (mut rest, (body, mut last)) = self.body_with_last(input, 0)?;
+        let mut components = vec![Component {
+            multiplier: 1,
+            body,
+        }];
+        while let Some(dot) = first_char(rest).filter(|c| matches!(c, '·' | '*' | '•' | '.')) {
+            let after_dot = &rest[dot.len_utf8()..];
+            let (after_count, multiplier) = match number_in(
+                after_dot,
+                None,
+                super::LIMITS.max_count as u64,
+                "an adduct multiplier",
+            )? {
+                (_, Some(0)) => {
+                    return fail(
+                        after_dot,
+                        1,
+                        NotationErrorKind::Syntax,
+                        "a multiplier of zero",
+                    );
+                }
+                (r, Some(m)) => (r, m as u32),
+                (r, None) => (r, 1),
+            };
+            let (next, (body, body_last)) = self.body_with_last(after_count, 0)?;
+            components.push(Component { multiplier, body });
+            last = body_last;
+            rest = next;
+        }
+        Ok((rest, (components, last)))
+    }
+
+    /// A formula with its charge, or the electron, then an optional state label.
+    fn species(&self, input: &'a str) -> Res<'a, Species> {
+        if let Some((rest, ())) = electron(input)? {
+            let (rest, state) = state_label(rest)?;
+            return Ok((
+                rest,
+                Species {
+                    kind: SpeciesKind::Electron,
+                    state,
+                    composition: Composition::charged(-1),
+                    span: self.span(input, rest),
+                },
+            ));
+        }
+        let (after_body, (mut components, last)) = self.components(input)?;
+        let single_atom = components.len() == 1
+            && components[0].body.len() == 1
+            && matches!(components[0].body[0], Unit::Atom { .. });
+        let square_end = components.len() == 1
+            && matches!(
+                components[0].body.last(),
+                Some(Unit::Group {
+                    bracket: Bracket::Square,
+                    ..
+                })
+            );
+        // Digits that may belong to the charge (`Fe3+`, `[Fe(CN)6]4-`).
+        let lendable = last
+            .filter(|l| l.ascii_written && (single_atom || square_end))
+            .map(|l| l.value);
+        let (rest, charge) = charge(after_body, lendable)?;
+        if let Charge::Borrowed(_) = charge {
+            match components[0].body.last_mut() {
+                Some(Unit::Atom { count, .. }) | Some(Unit::Group { count, .. }) => *count = 1,
+                None => {}
+            }
+        }
+        let charge_value = charge.value();
+        if charge_value.unsigned_abs() > super::LIMITS.max_charge {
+            return fail(
+                after_body,
+                after_body.len() - rest.len(),
+                NotationErrorKind::Limit,
+                format!(
+                    "a charge larger than the limit of {}",
+                    super::LIMITS.max_charge
+                ),
+            );
+        }
+        let formula = Formula {
+            components,
+            charge: charge_value,
+        };
+        let composition = match composition_of(&formula) {
+            Some(c) => c,
+            None => {
+                return fail(
+                    input,
+                    input.len() - rest.len(),
+                    NotationErrorKind::Limit,
+                    "atom counts in this formula overflow 64 bits",
+                );
+            }
+        };
+        let protons: u64 = composition
+            .counts()
+            .iter()
+            .map(|&(e, n)| e.atomic_number() as u64 * n)
+            .sum();
+        if charge_value > 0 && charge_value as u64 > protons {
+            return fail(
+                input,
+                input.len() - rest.len(),
+                NotationErrorKind::Chemistry,
+                format!(
+                    "a charge of +{charge_value} is more than the {protons} protons this formula has"
+                ),
+            );
+        }
+        let (rest, state) = state_label(rest)?;
+        Ok((
+            rest,
+            Species {
+                kind: SpeciesKind::Formula(formula),
+                state,
+                composition,
+                span: self.span(input, rest),
+            },
+        ))
+    }
+
+    /// An optional coefficient, optional spaces, then a species.
+    fn term(&self, input: &'a str) -> Res<'a, Term> {
+        let (rest, coefficient) = coefficient(input)?;
+        let after_ws = if coefficient.is_some() {
+            rest.trim_start()
+        } else {
+            rest
+        };
+        if coefficient.is_some() && !starts_species(after_ws) {
+            return syntax(
+                after_ws,
+                format!(
+                    "expected a formula after the coefficient, found {}",
+                    describe(after_ws)
+                ),
+            );
+        }
+        if !starts_species(after_ws) {
+            return syntax(
+                after_ws,
+                format!("expected a formula, found {}", describe(after_ws)),
+            );
+        }
+        let (rest, species) = self.species(after_ws)?;
+        Ok((
+            rest,
+            Term {
+                coefficient: coefficient.unwrap_or_else(|| Ratio::from_integer(1)),
+                species,
+                span: self.span(input, rest),
+            },
+        ))
+    }
+
+    /// Terms separated by `+`. `side` names the side in messages.
+    fn terms(&self, input: &'a str, side: &str) -> Res<'a, Vec<Term>> {
+        let mut rest = input.trim_start();
+        if rest.is_empty() || arrow(rest).is_ok() {
+            return syntax(rest, format!("the {side} is empty"));
+        }
+        let mut terms = Vec::new();
+        loop {
+            if terms.len() >= super::LIMITS.max_terms {
+                return fail(
+                    rest,
+                    rest.len(),
+                    NotationErrorKind::Limit,
+                    format!("more than {} species", super::LIMITS.max_terms),
+                );
+            }
+            let (next, term) = self.term(rest)?;
+            terms.push(term);
+            let after = next.trim_start();
+            match after.strip_prefix('+') {
+                Some(more) => {
+                    let more = more.trim_start();
+                    if more.is_empty() || arrow(more).is_ok() {
+                        return syntax(
+                            after,
+                            "a '+' with nothing after it: expected another species",
+                        );
+                    }
+                    rest = more;
+                }
+                None => return Ok((next, terms)),
+            }
+        }
+    }
+}
+
+/// The count lent to a charge, or the charge written on its own.
+enum Charge {
+    None,
+    Written(i32),
+    /// `Fe3+`: the digits read as a count are the charge magnitude.
+    Borrowed(i32),
+}
+
+impl Charge {
+    fn value(&self) -> i32 {
+        match *self {
+            Charge::None => 0,
+            Charge::Written(z) | Charge::Borrowed(z) => z,
+        }
+    }
+}
+
+fn is_sign(c: char) -> bool {
+    matches!(c, '+' | '-' | '−')
+}
+
+fn sign_of(c: char) -> i32 {
+    if c == '+' { 1 } else { -1 }
+}
+
+/// True where a species may end: end of text, space, state label or arrow.
+fn ends_species(rest: &str) -> bool {
+    match first_char(rest) {
+        None => true,
+        Some(c) if c.is_whitespace() => true,
+        Some('(') => rest[1..].starts_with(|c: char| c.is_ascii_lowercase()),
+        Some(_) => arrow(rest).is_ok(),
+    }
+}
+
+/// True where a term may start: a digit, a capital letter, a bracket, or the electron.
+fn starts_species(rest: &str) -> bool {
+    match first_char(rest) {
+        Some(c) if c.is_ascii_uppercase() || c == '(' || c == '[' => true,
+        Some('e') => true,
+        _ => false,
+    }
+}
+
+fn starts_term(rest: &str) -> bool {
+    starts_species(rest) || rest.starts_with(|c: char| c.is_ascii_digit() || c == '.')
+}
+
+/// The contents of a caret or brace charge: `2-`, `-2`, `-`, `--`, `+`.
+fn charge_body(input: &str) -> Res<'_, i32> {
+    let max = super::LIMITS.max_charge as u64;
+    let (rest, digits) = number_in(input, None, max, "a charge")?;
+    if let Some(magnitude) = digits {
+        return match first_char(rest).filter(|&c| is_sign(c)) {
+            Some(sign) => Ok((&rest[sign.len_utf8()..], sign_of(sign) * magnitude as i32)),
+            None => syntax(rest, "expected '+' or '-' after the charge number"),
+        };
+    }
+    let Some(sign) = first_char(input).filter(|&c| is_sign(c)) else {
+        return syntax(input, "expected a charge such as 2+, 3- or -");
+    };
+    let after = &input[sign.len_utf8()..];
+    let (rest, digits) = number_in(after, None, max, "a charge")?;
+    if let Some(magnitude) = digits {
+        return Ok((rest, sign_of(sign) * magnitude as i32));
+    }
+    let run = after.chars().take_while(|&c| c == sign).count();
+    let rest = &after[run * sign.len_utf8()..];
+    Ok((rest, sign_of(sign) * (run as i32 + 1)))
+}
+
+/// The charge written after a formula, in any of the accepted forms.
+fn charge(input: &str, lendable: Option<u32>) -> Res<'_, Charge> {
+    let Some(c) = first_char(input) else {
+        return Ok((input, Charge::None));
+    };
+    match c {
+        '^' => {
+            let after = &input[1..];
+            let (rest, z) = if let Some(inner) = after.strip_prefix('{') {
+                let (rest, z) = charge_body(inner)?;
+                match rest.strip_prefix('}') {
+                    Some(rest) => (rest, z),
+                    None => return syntax(rest, "expected '}' to close the charge"),
+                }
+            } else {
+                charge_body(after)?
+            };
+            Ok((rest, Charge::Written(z)))
+        }
+        '{' => {
+            let (rest, z) = charge_body(&input[1..])?;
+            match rest.strip_prefix('}') {
+                Some(rest) => Ok((rest, Charge::Written(z))),
+                None => syntax(rest, "expected '}' to close the charge"),
+            }
+        }
+        '⁺' | '⁻' | '⁰'..='⁹' | '¹' | '²' | '³' => {
+            let max = super::LIMITS.max_charge as u64;
+            let (rest, magnitude) = number_in(input, Some(&SUPERSCRIPTS), max, "a charge")?;
+            match first_char(rest) {
+                Some(s @ ('⁺' | '⁻')) => {
+                    let sign = if s == '⁺' { 1 } else { -1 };
+                    let rest = &rest[s.len_utf8()..];
+                    let magnitude = match magnitude {
+                        Some(m) => m as i32,
+                        None => {
+                            let run = rest.chars().take_while(|&r| r == s).count();
+                            return Ok((
+                                &rest[run * s.len_utf8()..],
+                                Charge::Written(sign * (run as i32 + 1)),
+                            ));
+                        }
+                    };
+                    Ok((rest, Charge::Written(sign * magnitude)))
+                }
+                _ => syntax(
+                    rest,
+                    "expected a superscript sign ⁺ or ⁻ after the charge digits",
+                ),
+            }
+        }
+        '+' | '-' | '−' => {
+            // `->` is the arrow, not a charge.
+            if c == '-' && input[1..].starts_with('>') {
+                return Ok((input, Charge::None));
+            }
+            let run_chars = input.chars().take_while(|&r| r == c).count();
+            let mut run_len = run_chars * c.len_utf8();
+            let mut run = run_chars as i32;
+            // A run of `-` must not swallow the `-` of a following `->`.
+            if c == '-' && input[run_len..].starts_with('>') {
+                run -= 1;
+                run_len -= 1;
+            }
+            let after = &input[run_len..];
+            let sign = sign_of(c);
+            // `Fe+3`: a sign, then digits, then the species ends.
+            if run == 1 && after.starts_with(|d: char| d.is_ascii_digit()) {
+                let max = super::LIMITS.max_charge as u64;
+                let (rest, digits) = number_in(after, None, u64::MAX / 10, "a charge")?;
+                if ends_species(rest) || (c != '+' && rest.starts_with('+')) {
+                    if lendable.is_some() {
+                        return syntax(
+                            input,
+                            "two charges written: use one form, e.g. Fe3+ or Fe+3",
+                        );
+                    }
+                    let magnitude = digits.unwrap_or(0);
+                    if magnitude > max {
+                        return fail(
+                            after,
+                            after.len() - rest.len(),
+                            NotationErrorKind::Limit,
+                            format!("a charge larger than the limit of {max}"),
+                        );
+                    }
+                    return Ok((rest, Charge::Written(sign * magnitude as i32)));
+                }
+                if c == '+' {
+                    // `2Fe+3Cl2`: the `+` separates, the digits are the next coefficient.
+                    return Ok((input, Charge::None));
+                }
+                return syntax(
+                    input,
+                    "a '-' between two formulas: separate species with ' + '",
+                );
+            }
+            let ends = ends_species(after) || (c != '+' && after.starts_with('+'));
+            if ends {
+                return Ok(match (lendable, run) {
+                    (Some(count), 1) => (after, Charge::Borrowed(sign * count as i32)),
+                    (Some(_), _) => {
+                        return syntax(
+                            input,
+                            "ambiguous charge: digits and repeated signs; write e.g. Fe^3+ or Fe3^2+",
+                        );
+                    }
+                    (None, _) => (after, Charge::Written(sign * run)),
+                });
+            }
+            if c == '+' && starts_term(after) {
+                if run == 1 {
+                    return Ok((input, Charge::None));
+                }
+                return syntax(
+                    input,
+                    "ambiguous '+' signs between formulas: write spaces around the '+' that separates species",
+                );
+            }
+            if c != '+' && starts_term(after) {
+                return syntax(
+                    input,
+                    "a '-' between two formulas: separate species with ' + '",
+                );
+            }
+            syntax(
+                after,
+                format!("unexpected {} after the charge", describe(after)),
+            )
+        }
+        _ => Ok((input, Charge::None)),
+    }
+}
+
+/// `e-` and its other spellings; `None` when the input does not start with the electron.
+fn electron(input: &str) -> Result<Option<(&str, ())>, nom::Err<PErr<'_>>> {
+    let Some(after) = input.strip_prefix('e') else {
+        return Ok(None);
+    };
+    for form in ["-", "^-", "⁻", "^{-}", "{-}", "−", "^−"] {
+        if let Some(rest) = after.strip_prefix(form) {
+            // `e->` reads as `e` then the arrow.
+            if form == "-" && rest.starts_with('>') {
+                break;
+            }
+            return Ok(Some((rest, ())));
+        }
+    }
+    Err(nom::Err::Failure(PErr {
+        at: input,
+        len: 1,
+        kind: NotationErrorKind::Syntax,
+        message: Cow::Borrowed(
+            "write the electron as e- (element symbols start with a capital letter)",
+        ),
+    }))
+}
+
+/// An optional state label: `(s)`, `(l)`, `(g)`, `(aq)`, `(cr)`, after optional spaces.
+fn state_label(input: &str) -> Res<'_, Option<State>> {
+    let trimmed = input.trim_start();
+    let Some(inner) = trimmed.strip_prefix('(') else {
+        return Ok((input, None));
+    };
+    if !inner.starts_with(|c: char| c.is_ascii_lowercase()) {
+        return Ok((input, None));
+    }
+    let label_len = inner
+        .find(|c: char| !c.is_ascii_lowercase())
+        .unwrap_or(inner.len());
+    let label = &inner[..label_len];
+    let after = &inner[label_len..];
+    match (State::from_label(label), after.strip_prefix(')')) {
+        (Some(state), Some(rest)) => Ok((rest, Some(state))),
+        _ => fail(
+            trimmed,
+            label_len + 1 + usize::from(after.starts_with(')')),
+            NotationErrorKind::Syntax,
+            format!("unknown state label '({label})': use (s), (l), (g), (aq) or (cr)"),
+        ),
+    }
+}
+
+/// An optional coefficient: `2`, `1/2`, `0.5`, `.5`.
+fn coefficient(input: &str) -> Res<'_, Option<Ratio<u64>>> {
+    let max = super::LIMITS.max_coefficient;
+    let (rest, whole) = number_in(input, None, max, "a coefficient")?;
+    let (rest, value) = if let Some(fraction) = rest.strip_prefix('.') {
+        let (after, digits) = number_in(fraction, None, max, "a coefficient")?;
+        let Some(decimals) = digits else {
+            return syntax(fraction, "expected digits after the decimal point");
+        };
+        let places = (fraction.len() - after.len()) as u32;
+        let scale = 10u64.pow(places.min(12));
+        if places > 12 {
+            return fail(
+                fraction,
+                places as usize,
+                NotationErrorKind::Limit,
+                "a coefficient with more than 12 decimal places",
+            );
+        }
+        let whole = whole.unwrap_or(0);
+        match whole
+            .checked_mul(scale)
+            .and_then(|w| w.checked_add(decimals))
+        {
+            Some(n) if n <= max => (after, Some(Ratio::new(n, scale))),
+            _ => {
+                return fail(
+                    input,
+                    input.len() - after.len(),
+                    NotationErrorKind::Limit,
+                    "a coefficient larger than the limit",
+                );
+            }
+        }
+    } else if let (Some(numerator), Some(denominator_text)) = (whole, rest.strip_prefix('/')) {
+        let (after, denominator) = number_in(denominator_text, None, max, "a coefficient")?;
+        match denominator {
+            Some(0) => return syntax(denominator_text, "a coefficient with a zero denominator"),
+            Some(d) => (after, Some(Ratio::new(numerator, d))),
+            None => return syntax(denominator_text, "expected a denominator after '/'"),
+        }
+    } else {
+        (rest, whole.map(Ratio::from_integer))
+    };
+    if value.is_some_and(|v| v == Ratio::from_integer(0)) {
+        return syntax(
+            input,
+            "a coefficient of zero: leave the species out instead",
+        );
+    }
+    Ok((rest, value))
+}
+
+/// The arrow between the sides.
+fn arrow(input: &str) -> Res<'_, Arrow> {
+    const ARROWS: [(&str, Arrow); 8] = [
+        ("<=>", Arrow::Equilibrium),
+        ("<->", Arrow::Equilibrium),
+        ("⇌", Arrow::Equilibrium),
+        ("⇄", Arrow::Equilibrium),
+        ("->", Arrow::Forward),
+        ("→", Arrow::Forward),
+        ("⟶", Arrow::Forward),
+        ("=", Arrow::Equals),
+    ];
+    for (text, kind) in ARROWS {
+        if let Some(rest) = input.strip_prefix(text) {
+            return Ok((rest, kind));
+        }
+    }
+    miss(input)
+}
+
+// ---------------------------------------------------------------- composition
+
+fn composition_of(formula: &Formula) -> Option<Composition> {
+    let mut composition = Composition::charged(formula.charge as i64);
+    for component in &formula.components {
+        add_units(
+            &mut composition,
+            &component.body,
+            component.multiplier as u64,
+        )?;
+    }
+    Some(composition)
+}
+
+fn add_units(composition: &mut Composition, units: &[Unit], multiplier: u64) -> Option<()> {
+    for unit in units {
+        match unit {
+            Unit::Atom { element, count, .. } => {
+                composition.add(*element, (*count as u64).checked_mul(multiplier)?)?;
+            }
+            Unit::Group { body, count, .. } => {
+                add_units(composition, body, (*count as u64).checked_mul(multiplier)?)?;
+            }
+        }
+    }
+    Some(())
+}
+
+// ---------------------------------------------------------------- entry points
+
+fn check_length(text: &str) -> Result<(), NotationError> {
+    let max = super::LIMITS.max_input_bytes;
+    if text.len() > max {
+        let mut start = max;
+        while !text.is_char_boundary(start) {
+            start -= 1;
+        }
+        return Err(NotationError::new(
+            NotationErrorKind::Limit,
+            format!("input longer than the limit of {max} bytes"),
+            Span::new(start, text.len()),
+            text,
+        ));
+    }
+    Ok(())
+}
+
+fn convert(text: &str, error: nom::Err<PErr<'_>>) -> NotationError {
+    match error {
+        nom::Err::Error(e) | nom::Err::Failure(e) => {
+            let start = text.len() - e.at.len();
+            NotationError::new(e.kind, e.message, Span::new(start, start + e.len), text)
+        }
+        nom::Err::Incomplete(_) => NotationError::new(
+            NotationErrorKind::Syntax,
+            "unexpected end of input",
+            Span::new(text.len(), text.len()),
+            text,
+        ),
+    }
+}
+
+fn trailing(text: &str, rest: &str, what: &str) -> NotationError {
+    let start = text.len() - rest.len();
+    let len = rest.chars().next().map_or(0, char::len_utf8);
+    let message = if rest.starts_with('+') || rest.starts_with('-') {
+        format!("unexpected {} after {what}", describe(rest))
+    } else if arrow(rest).is_ok() {
+        "a second arrow: an equation has exactly two sides".to_owned()
+    } else {
+        format!(
+            "unexpected {} after {what}: expected ' + ' or an arrow",
+            describe(rest)
+        )
+    };
+    NotationError::new(
+        NotationErrorKind::Syntax,
+        message,
+        Span::new(start, start + len),
+        text,
+    )
+}
+
+/// Reads one species, such as `SO4^2-`, `Fe³⁺`, `CuSO4·5H2O(s)` or `e-`. Spaces around it are
+/// ignored.
+pub fn parse_species(text: &str) -> Result<Species, NotationError> {
+    check_length(text)?;
+    let ctx = Ctx { text };
+    let start = text.trim_start();
+    if start.is_empty() {
+        return Err(NotationError::new(
+            NotationErrorKind::Syntax,
+            "empty input: expected a formula",
+            Span::new(0, text.len()),
+            text,
+        ));
+    }
+    if !starts_species(start) {
+        return Err(convert(
+            text,
+            syntax::<()>(
+                start,
+                format!("expected a formula, found {}", describe(start)),
+            )
+            .unwrap_err(),
+        ));
+    }
+    let (rest, species) = ctx.species(start).map_err(|e| convert(text, e))?;
+    let rest = rest.trim_start();
+    if !rest.is_empty() {
+        return Err(trailing(text, rest, "the species"));
+    }
+    Ok(species)
+}
+
+/// Reads an equation or half-reaction: `MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O`.
+pub fn parse_equation(text: &str) -> Result<Equation, NotationError> {
+    match parse_input(text)? {
+        Input::Equation(equation) => Ok(equation),
+        Input::Species(_) => {
+            let end = text.trim_end().len();
+            Err(NotationError::new(
+                NotationErrorKind::Syntax,
+                "no arrow: an equation needs ->, =, <=> or → between its sides",
+                Span::new(end, end),
+                text,
+            ))
+        }
+    }
+}
+
+/// Reads whatever `couplet parse` accepts: species separated by `+`, or an equation.
+pub fn parse_input(text: &str) -> Result<Input, NotationError> {
+    check_length(text)?;
+    let ctx = Ctx { text };
+    if text.trim().is_empty() {
+        return Err(NotationError::new(
+            NotationErrorKind::Syntax,
+            "empty input: expected a formula or an equation",
+            Span::new(0, text.len()),
+            text,
+        ));
+    }
+    let (rest, reactants) = ctx.terms(text, "left side").map_err(|e| convert(text, e))?;
+    let rest = rest.trim_start();
+    if rest.is_empty() {
+        return Ok(Input::Species(reactants));
+    }
+    let Ok((after_arrow, arrow)) = arrow(rest) else {
+        return Err(trailing(text, rest, "the species"));
+    };
+    let (rest, products) = ctx
+        .terms(after_arrow, "right side")
+        .map_err(|e| convert(text, e))?;
+    let rest = rest.trim_start();
+    if !rest.is_empty() {
+        return Err(trailing(text, rest, "the right side"));
+    }
+    Ok(Input::Equation(Equation {
+        reactants,
+        products,
+        arrow,
+    }))
+}
