@@ -18,3 +18,4 @@
 pub mod composition;
 pub mod elements;
 pub mod notation;
+pub mod reaction;

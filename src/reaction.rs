@@ -1,0 +1,302 @@
+//! A reaction as signed stoichiometric numbers ν (products > 0, reactants < 0), in exact
+//! rationals.
+//!
+//! This is the one representation that balancing, combining half-reactions into a cell,
+//! adding free energies of couples and stepping a discharge all work in: scaling, adding and
+//! reversing reactions are plain linear algebra on it, and species that end up on both sides
+//! cancel by construction. [`Reaction::imbalance`] recounts atoms and charge independently of
+//! how the reaction was made.
+
+use crate::elements::Element;
+use crate::notation::{Arrow, Equation, Species, Style, species_to_string};
+use num_bigint::BigInt;
+use num_integer::Integer;
+use num_rational::BigRational;
+use num_traits::{One, Signed, Zero};
+use std::fmt;
+
+/// One species and its signed stoichiometric number.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Entry {
+    /// The species.
+    pub species: Species,
+    /// ν: positive for products, negative for reactants, never zero.
+    pub nu: BigRational,
+}
+
+/// A reaction: species with signed stoichiometric numbers, in the order they were first added.
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub struct Reaction {
+    entries: Vec<Entry>,
+}
+
+/// What a reaction fails to conserve: net change (products − reactants) per element, and of charge.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Imbalance {
+    /// Elements whose atoms are not conserved, with the net change.
+    pub elements: Vec<(Element, BigRational)>,
+    /// Net change of charge (zero when conserved).
+    pub charge: BigRational,
+}
+
+impl Imbalance {
+    /// True when every element and the charge are conserved.
+    pub fn is_balanced(&self) -> bool {
+        self.elements.is_empty() && self.charge.is_zero()
+    }
+}
+
+/// Whether two species are the same for cancelling: the same formula and charge, and the same
+/// state label when both carry one (`H2O` and `H2O(l)` are the same species).
+pub fn same_species(a: &Species, b: &Species) -> bool {
+    a.kind == b.kind
+        && match (a.state, b.state) {
+            (Some(x), Some(y)) => x == y,
+            _ => true,
+        }
+}
+
+fn ratio_u64(c: &num_rational::Ratio<u64>) -> BigRational {
+    BigRational::new(BigInt::from(*c.numer()), BigInt::from(*c.denom()))
+}
+
+impl Reaction {
+    /// An empty reaction.
+    pub fn new() -> Reaction {
+        Reaction::default()
+    }
+
+    /// The reaction as written, with the written coefficients (omitted ones are 1).
+    pub fn from_equation(equation: &Equation) -> Reaction {
+        let mut reaction = Reaction::new();
+        for term in &equation.reactants {
+            reaction.add(&term.species, -ratio_u64(&term.coefficient));
+        }
+        for term in &equation.products {
+            reaction.add(&term.species, ratio_u64(&term.coefficient));
+        }
+        reaction
+    }
+
+    /// Adds `nu` to the stoichiometric number of `species`, dropping it when it reaches zero.
+    /// A state label fills in where the existing entry had none.
+    pub fn add(&mut self, species: &Species, nu: BigRational) {
+        if nu.is_zero() {
+            return;
+        }
+        match self
+            .entries
+            .iter()
+            .position(|e| same_species(&e.species, species))
+        {
+            Some(i) => {
+                let entry = &mut self.entries[i];
+                entry.nu += nu;
+                if entry.species.state.is_none() {
+                    entry.species.state = species.state;
+                }
+                if entry.nu.is_zero() {
+                    self.entries.remove(i);
+                }
+            }
+            None => self.entries.push(Entry {
+                species: species.clone(),
+                nu,
+            }),
+        }
+    }
+
+    /// Entries in order of first appearance.
+    pub fn entries(&self) -> &[Entry] {
+        &self.entries
+    }
+
+    /// True when no species remain.
+    pub fn is_empty(&self) -> bool {
+        self.entries.is_empty()
+    }
+
+    /// ν of `species` (zero when absent).
+    pub fn nu(&self, species: &Species) -> BigRational {
+        self.entries
+            .iter()
+            .find(|e| same_species(&e.species, species))
+            .map_or_else(BigRational::zero, |e| e.nu.clone())
+    }
+
+    /// ν of the electron: negative when electrons are consumed (a reduction), positive when
+    /// released (an oxidation), zero for a whole reaction.
+    pub fn electron_nu(&self) -> BigRational {
+        self.entries
+            .iter()
+            .find(|e| e.species.is_electron())
+            .map_or_else(BigRational::zero, |e| e.nu.clone())
+    }
+
+    /// Every ν multiplied by `factor` (a zero factor gives the empty reaction).
+    pub fn scaled(&self, factor: &BigRational) -> Reaction {
+        if factor.is_zero() {
+            return Reaction::new();
+        }
+        Reaction {
+            entries: self
+                .entries
+                .iter()
+                .map(|e| Entry {
+                    species: e.species.clone(),
+                    nu: &e.nu * factor,
+                })
+                .collect(),
+        }
+    }
+
+    /// The reverse reaction (every ν negated).
+    pub fn reversed(&self) -> Reaction {
+        self.scaled(&-BigRational::one())
+    }
+
+    /// The sum of two reactions; species on both sides cancel.
+    pub fn plus(&self, other: &Reaction) -> Reaction {
+        let mut sum = self.clone();
+        for e in &other.entries {
+            sum.add(&e.species, e.nu.clone());
+        }
+        sum
+    }
+
+    /// Recounts atoms of every element and the charge: products minus reactants.
+    pub fn imbalance(&self) -> Imbalance {
+        let mut elements: Vec<(Element, BigRational)> = Vec::new();
+        let mut charge = BigRational::zero();
+        for e in &self.entries {
+            charge += &e.nu * BigRational::from_integer(BigInt::from(e.species.charge()));
+            for &(element, count) in e.species.composition.counts() {
+                let change = &e.nu * BigRational::from_integer(BigInt::from(count));
+                match elements.iter_mut().find(|(el, _)| *el == element) {
+                    Some((_, total)) => *total += change,
+                    None => elements.push((element, change)),
+                }
+            }
+        }
+        elements.retain(|(_, n)| !n.is_zero());
+        Imbalance { elements, charge }
+    }
+
+    /// The same reaction scaled to the smallest whole numbers with no common factor, keeping
+    /// its direction. The empty reaction stays empty.
+    pub fn in_lowest_integers(&self) -> Reaction {
+        if self.entries.is_empty() {
+            return self.clone();
+        }
+        let mut denominators_lcm = BigInt::one();
+        for e in &self.entries {
+            denominators_lcm = denominators_lcm.lcm(e.nu.denom());
+        }
+        let mut numerators_gcd = BigInt::zero();
+        for e in &self.entries {
+            let whole = (&e.nu * BigRational::from_integer(denominators_lcm.clone())).to_integer();
+            numerators_gcd = numerators_gcd.gcd(&whole);
+        }
+        let factor = BigRational::new(denominators_lcm, numerators_gcd.abs());
+        self.scaled(&factor)
+    }
+
+    /// Reactants with positive coefficients, in order.
+    pub fn reactants(&self) -> impl Iterator<Item = (&Species, BigRational)> {
+        self.entries
+            .iter()
+            .filter(|e| e.nu.is_negative())
+            .map(|e| (&e.species, -e.nu.clone()))
+    }
+
+    /// Products with positive coefficients, in order.
+    pub fn products(&self) -> impl Iterator<Item = (&Species, BigRational)> {
+        self.entries
+            .iter()
+            .filter(|e| e.nu.is_positive())
+            .map(|e| (&e.species, e.nu.clone()))
+    }
+
+    /// Writes the reaction in a given style with an arrow, reactants first.
+    pub fn to_text(&self, style: Style, arrow: Arrow) -> String {
+        let side = |terms: Vec<(&Species, BigRational)>| -> String {
+            terms
+                .iter()
+                .map(|(species, c)| {
+                    let mut text = String::new();
+                    if !c.is_one() {
+                        text.push_str(&c.to_string());
+                        text.push(' ');
+                    }
+                    text.push_str(&species_to_string(species, style));
+                    text
+                })
+                .collect::<Vec<_>>()
+                .join(" + ")
+        };
+        let arrow_text = match (style, arrow) {
+            (Style::Unicode, Arrow::Forward) => "→",
+            (Style::Unicode, Arrow::Equilibrium) => "⇌",
+            (Style::Mhchem, _) => "->",
+            (_, a) => a.ascii(),
+        };
+        format!(
+            "{} {} {}",
+            side(self.reactants().collect()),
+            arrow_text,
+            side(self.products().collect())
+        )
+    }
+}
+
+impl fmt::Display for Reaction {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.to_text(Style::Ascii, Arrow::Forward))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn reaction(text: &str) -> Reaction {
+        Reaction::from_equation(&text.parse().unwrap())
+    }
+
+    #[test]
+    fn combining_a_cell_cancels_electrons_and_shared_species() {
+        // Zn/Cu: the classic textbook cell (common practice).
+        let cathode = reaction("Cu2+ + 2 e- -> Cu(s)");
+        let anode = reaction("Zn2+ + 2 e- -> Zn(s)");
+        let net = cathode.plus(&anode.reversed());
+        assert!(net.electron_nu().is_zero());
+        assert_eq!(net.to_string(), "Cu2+ + Zn(s) -> Cu(s) + Zn2+");
+        assert!(net.imbalance().is_balanced());
+    }
+
+    #[test]
+    fn lowest_integers_clears_fractions_and_common_factors() {
+        let r = reaction("1/2 O2 + 2 H+ + 2 e- -> H2O");
+        assert_eq!(
+            r.in_lowest_integers().to_string(),
+            "O2 + 4 H+ + 4 e- -> 2 H2O"
+        );
+        let r = reaction("4 H2 + 2 O2 -> 4 H2O");
+        assert_eq!(r.in_lowest_integers().to_string(), "2 H2 + O2 -> 2 H2O");
+    }
+
+    #[test]
+    fn imbalance_names_the_element_and_the_charge() {
+        let r = reaction("MnO4- + e- -> Mn2+");
+        let imbalance = r.imbalance();
+        let o = Element::from_symbol("O").unwrap();
+        assert!(
+            imbalance
+                .elements
+                .iter()
+                .any(|(e, n)| *e == o && *n == BigRational::from_integer((-4).into()))
+        );
+        // Charge: products +2, reactants -1 -1 = -2, so the net change is +4.
+        assert_eq!(imbalance.charge, BigRational::from_integer(4.into()));
+    }
+}
