@@ -1,0 +1,5 @@
+//! The one integration-test binary: a module per area, each with its own `check` helper.
+//!
+//! Every expected value that comes from outside the project names its source beside it.
+
+mod notation;
