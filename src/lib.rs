@@ -19,3 +19,4 @@ pub mod composition;
 pub mod elements;
 pub mod notation;
 pub mod reaction;
+pub mod table;

@@ -17,7 +17,9 @@ fn check(text: &str, atoms: &[(&str, u64)], charge: i64) {
 
 #[test]
 fn charge_forms_all_read_the_same() {
-    for text in ["Fe3+", "Fe+3", "Fe^3+", "Fe^{3+}", "Fe+++", "Fe³⁺", "Fe{3+}"] {
+    for text in [
+        "Fe3+", "Fe+3", "Fe^3+", "Fe^{3+}", "Fe+++", "Fe³⁺", "Fe{3+}",
+    ] {
         check(text, &[("Fe", 1)], 3);
     }
     for text in ["SO4^2-", "SO4--", "SO4{2-}", "SO₄²⁻", "SO4^{2-}", "SO4-2"] {
@@ -70,6 +72,11 @@ fn errors_point_at_the_fault() {
     ];
     for (text, kind, column) in cases {
         let err = couplet::notation::parse_input(text).unwrap_err();
-        assert_eq!((err.kind, err.column()), (kind, column), "{text}: {}", err.render());
+        assert_eq!(
+            (err.kind, err.column()),
+            (kind, column),
+            "{text}: {}",
+            err.render()
+        );
     }
 }

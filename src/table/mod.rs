@@ -1,0 +1,5 @@
+//! Standard-potential tables: reading couple files, and the loaded table of couples.
+
+pub mod record;
+
+pub use record::{CoupleFile, CoupleRecord, Field, FileFormat, ProblemKind, ReadProblem};
