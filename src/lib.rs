@@ -16,6 +16,7 @@
 #![deny(missing_docs)]
 
 pub mod composition;
+pub mod constants;
 pub mod elements;
 pub mod notation;
 pub mod reaction;
