@@ -2,5 +2,6 @@
 //!
 //! Every expected value that comes from outside the project names its source beside it.
 
+mod cell;
 mod notation;
 mod table;
