@@ -16,7 +16,11 @@
 #![deny(missing_docs)]
 
 pub mod balance;
+pub mod cell;
 pub mod composition;
+pub mod constants;
 pub mod elements;
 pub mod notation;
 pub mod reaction;
+pub mod scale;
+pub mod table;

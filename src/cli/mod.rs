@@ -2,7 +2,11 @@
 //! file and only calls the library and renders what it returns.
 
 mod balance;
+mod cell;
+mod common;
+mod derive;
 mod parse;
+mod table;
 
 use clap::{Parser, Subcommand};
 use std::io::Read;
@@ -36,6 +40,12 @@ enum Command {
     Parse(parse::ParseArgs),
     /// Balance an equation or half-reaction exactly, as written or in acid or base
     Balance(balance::BalanceArgs),
+    /// List, search and show couples of the standard-potential table
+    Table(table::TableCommandArgs),
+    /// Combine a cathode and an anode couple: net reaction, n, E°cell, ΔG°, K, temperature
+    Cell(cell::CellArgs),
+    /// A new couple from couples that share species, by adding free energies
+    Derive(derive::DeriveArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -54,6 +64,9 @@ pub fn run() -> ExitCode {
     let status = match cli.command {
         Command::Parse(args) => parse::run(&args),
         Command::Balance(args) => balance::run(&args),
+        Command::Table(args) => table::run(&args),
+        Command::Cell(args) => cell::run(&args),
+        Command::Derive(args) => derive::run(&args),
     };
     ExitCode::from(status)
 }
