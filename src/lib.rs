@@ -18,4 +18,5 @@
 pub mod composition;
 pub mod elements;
 pub mod notation;
+pub mod oxidation;
 pub mod reaction;
