@@ -29,7 +29,7 @@ mod rules;
 
 pub use ions::{IonTable, IonTableError, KnownIon, POLYATOMIC_IONS_TOML};
 pub use redox::{
-    Direction, ElementChange, RedoxAnalysis, RedoxError, RedoxKind, analyse, analyse_with,
+    ElementChange, RedoxAnalysis, RedoxError, RedoxKind, SpeciesPin, analyse, analyse_with,
     changed_elements, changes_one_element,
 };
 

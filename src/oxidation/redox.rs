@@ -12,22 +12,14 @@
 //! species that hold each set, add electrons where [`changes_one_element`] is true, balance in
 //! the reaction's medium, and check each half with [`analyse`].
 
+use super::Pin;
 use super::{Options, OxidationError, SpeciesOxidation, oxidation_numbers_with, signed_text};
 use crate::elements::Element;
-use crate::notation::Equation;
-use crate::reaction::Reaction;
+use crate::notation::{Equation, Species};
+use crate::reaction::{Reaction, same_species};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
-
-/// Which way electrons go.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
-pub enum Direction {
-    /// Oxidation number goes up (electrons lost).
-    Oxidation,
-    /// Oxidation number goes down (electrons gained).
-    Reduction,
-}
 
 /// Atoms of one element going from one oxidation number to another.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -137,38 +129,39 @@ type ElementSides = (
     Vec<(BigRational, BigRational)>,
 );
 
+/// A user pin for one species of a reaction (Fe=+2 in FeS2, not in Fe2O3).
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct SpeciesPin {
+    /// The species it applies to (state labels compare as in [`same_species`]).
+    pub species: Species,
+    /// The pinned value.
+    pub pin: Pin,
+}
+
 /// Analyses a balanced reaction or half-reaction with the built-in rules and ion table.
 pub fn analyse(reaction: &Reaction) -> Result<RedoxAnalysis, RedoxError> {
-    analyse_with(reaction, &Options::default())
+    analyse_with(reaction, &[])
 }
 
 fn species_oxidation(
-    species: &crate::notation::Species,
-    options: &Options,
+    species: &Species,
+    pins: &[SpeciesPin],
 ) -> Result<SpeciesOxidation, RedoxError> {
-    // A pin names an element that need not be in every species: pass on the relevant ones.
-    let relevant = Options {
-        pins: options
-            .pins
+    let options = Options {
+        pins: pins
             .iter()
-            .filter(|p| {
-                species
-                    .composition
-                    .counts()
-                    .iter()
-                    .any(|(e, _)| e.chemical_element() == p.element.chemical_element())
-            })
-            .cloned()
+            .filter(|p| same_species(&p.species, species))
+            .map(|p| p.pin.clone())
             .collect(),
     };
-    oxidation_numbers_with(species, &relevant).map_err(|source| RedoxError::Oxidation {
+    oxidation_numbers_with(species, &options).map_err(|source| RedoxError::Oxidation {
         species: species.ascii(),
         source,
     })
 }
 
-/// Analyses a balanced reaction or half-reaction; pins apply to every species holding the element.
-pub fn analyse_with(reaction: &Reaction, options: &Options) -> Result<RedoxAnalysis, RedoxError> {
+/// Analyses a balanced reaction or half-reaction, with pins for some of its species.
+pub fn analyse_with(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<RedoxAnalysis, RedoxError> {
     if reaction.is_empty() {
         return Err(RedoxError::Empty);
     }
@@ -193,7 +186,7 @@ pub fn analyse_with(reaction: &Reaction, options: &Options) -> Result<RedoxAnaly
             species.push(None);
             continue;
         }
-        let oxidation = species_oxidation(&entry.species, options)?;
+        let oxidation = species_oxidation(&entry.species, pins)?;
         for element in &oxidation.elements {
             let index = match sides.iter().position(|(e, _, _)| *e == element.element) {
                 Some(i) => i,
@@ -354,7 +347,7 @@ pub fn changed_elements(equation: &Equation) -> Result<Vec<Element>, RedoxError>
             if term.species.is_electron() {
                 continue;
             }
-            let oxidation = species_oxidation(&term.species, &Options::default())?;
+            let oxidation = species_oxidation(&term.species, &[])?;
             for element in &oxidation.elements {
                 let index = match states.iter().position(|(e, _, _)| *e == element.element) {
                     Some(i) => i,

@@ -37,16 +37,17 @@ fn usual_negative_state(element: Element) -> Option<i64> {
 }
 
 /// Bounds no oxidation number of the element can pass, from its group (common practice: the
-/// highest state is the group number for groups 1–7, +8 for 8–12, group − 10 for 13–18; the
-/// lowest for groups 14–17 is group − 18). `None` where the table has no group (f-block).
+/// highest state is the group number for groups 1–9, +9 for 10–12 (the highest known state is
+/// +9, IrO4+, from memory), group − 10 for 13–18; the lowest for groups 14–17 is group − 18).
+/// `None` where the table has no group (f-block).
 fn state_bounds(element: Element) -> Option<(i64, Option<i64>)> {
     let group = element.data().group? as i64;
     let highest = match element.symbol() {
         "O" => 2,
         "F" => 0,
         _ => match group {
-            1..=7 => group,
-            8..=12 => 8,
+            1..=9 => group,
+            10..=12 => 9,
             _ => group - 10,
         },
     };

@@ -3,3 +3,4 @@
 //! Every expected value that comes from outside the project names its source beside it.
 
 mod notation;
+mod oxidation;
