@@ -606,3 +606,32 @@ fn command_exit_statuses() {
     // A malformed pin is a usage error.
     assert_eq!(couplet(&["oxidation", "--assume", "S6", "SO4^2-"]).0, 2);
 }
+
+proptest! {
+    /// Whatever formula the parser accepts, assignment returns a value or an error, never a
+    /// panic, and an assignment always adds up to the charge.
+    #[test]
+    fn any_readable_formula_gets_an_answer_or_an_error(
+        parts in prop::collection::vec(
+            prop::sample::select(vec![
+                "H", "O", "N", "C", "S", "Cl", "F", "Na", "K", "Ca", "Fe", "Mn", "Cr", "Cu", "I",
+                "Xe", "B", "Al", "2", "3", "4", "7", "(", ")", "[", "]", "(OH)", "(CN)6", "NH4",
+                "SO4", "NO3", "99999",
+            ]),
+            1..10,
+        ),
+        charge in prop::sample::select(vec!["", "+", "-", "^2+", "^2-", "^3-"]),
+    ) {
+        let text = format!("{}{}", parts.concat(), charge);
+        if let Ok(species) = parse_species(&text) {
+            if let Ok(result) = oxidation_numbers(&species) {
+                let total: BigRational = result
+                    .elements
+                    .iter()
+                    .map(|e| &e.oxidation_number * BigRational::from_integer(BigInt::from(e.count)))
+                    .sum();
+                prop_assert_eq!(total, BigRational::from_integer(species.charge().into()), "{}", text);
+            }
+        }
+    }
+}
