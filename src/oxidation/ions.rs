@@ -449,9 +449,18 @@ fn try_split(
             fragment,
         )
         .ok()?;
-        if rest.iter().any(|a| a.status == Status::Assumed) && !component.found.is_empty() {
-            // A split is only worth keeping when the rest follows from the rules.
-            if pins.is_empty() {
+        if !component.found.is_empty() {
+            // A split is only worth keeping when the rest follows from the rules, and any O
+            // left over is plain oxide: O at another value means the ions were misread (HS− in
+            // NaHSO3 would leave "O3" at 0).
+            if pins.is_empty() && rest.iter().any(|a| a.status == Status::Assumed) {
+                return None;
+            }
+            let minus_two = BigRational::from_integer(BigInt::from(-2));
+            if rest
+                .iter()
+                .any(|a| a.element.symbol() == "O" && a.value != minus_two)
+            {
                 return None;
             }
         }

@@ -208,8 +208,14 @@ pub(crate) fn assign_fragment(
         let negatives = &ranked[..ranked.len() - 1];
         for &(i, _) in negatives {
             let state = usual_negative_state(slots[i].element).ok_or_else(|| {
+                // Name the elements that no usual negative state can settle (Cu and Fe in
+                // CuFeS2, not S).
                 OxidationError::Underdetermined {
-                    elements: open_slots.iter().map(|&j| slots[j].element).collect(),
+                    elements: open_slots
+                        .iter()
+                        .map(|&j| slots[j].element)
+                        .filter(|&e| usual_negative_state(e).is_none())
+                        .collect(),
                 }
             })?;
             slots[i].fixed = Some((

@@ -275,6 +275,22 @@ fn ion_tables_are_checked_when_read() {
             .message
             .contains("no oxidation number for O")
     );
+    // A table with HS− but no HSO3−: NaHSO3 must not be read as Na+ HS− O3 (S(IV), from memory).
+    let table = IonTable::from_toml(
+        "[[ion]]\nformula = \"HS-\"\nname = \"hydrogensulfide\"\noxidation = { H = \"+1\", S = \"-2\" }\n",
+    )
+    .unwrap();
+    let bisulfite = table
+        .oxidation_numbers(&parse_species("NaHSO3").unwrap(), &Options::default())
+        .unwrap();
+    assert_eq!(
+        signed_text(&bisulfite.element("S").unwrap().oxidation_number),
+        "+4"
+    );
+    assert_eq!(
+        signed_text(&bisulfite.element("O").unwrap().oxidation_number),
+        "-2"
+    );
     let syntax = "[[ion]]\nformula = \"NO3-\"\nname = \n";
     assert!(
         IonTable::from_toml(syntax)
