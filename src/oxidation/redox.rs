@@ -129,6 +129,18 @@ type ElementSides = (
     Vec<(BigRational, BigRational)>,
 );
 
+impl RedoxError {
+    /// Stable name for JSON output: `oxidation`, `not_balanced`, `electron_mismatch`, `empty`.
+    pub fn kind_name(&self) -> &'static str {
+        match self {
+            RedoxError::Oxidation { .. } => "oxidation",
+            RedoxError::NotBalanced { .. } => "not_balanced",
+            RedoxError::ElectronMismatch { .. } => "electron_mismatch",
+            RedoxError::Empty => "empty",
+        }
+    }
+}
+
 /// A user pin for one species of a reaction (Fe=+2 in FeS2, not in Fe2O3).
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct SpeciesPin {

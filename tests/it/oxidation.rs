@@ -651,3 +651,54 @@ proptest! {
         }
     }
 }
+
+#[test]
+fn command_analyses_reactions() {
+    // Permanganate/Mn2+ (Harris App. H, in tests/data): Mn +7 → +2, n = 5.
+    let (status, out) = couplet(&[
+        "oxidation",
+        "--json",
+        "MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)",
+    ]);
+    assert_eq!(status, 0);
+    let value: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(
+        value["redox"],
+        serde_json::json!({
+            "oxidized": [],
+            "reduced": [{"element": "Mn", "from": "+7", "to": "+2", "atoms": 1, "electrons": 5}],
+            "n": 5,
+            "kind": "reduction",
+            "electrons_written": 5,
+        })
+    );
+    // A wrong electron count is a finding (exit 1) that names both numbers.
+    let (status, out) = couplet(&[
+        "oxidation",
+        "--json",
+        "MnO4- + 8 H+ + 4 e- -> Mn2+ + 4 H2O(l)",
+    ]);
+    assert_eq!(status, 1);
+    let value: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(value["error"]["kind"], "electron_mismatch");
+    // Pins in a reaction name their species.
+    let args = [
+        "oxidation",
+        "--json",
+        "--assume",
+        "FeS2:Fe=+2",
+        "4 FeS2 + 11 O2 -> 2 Fe2O3 + 8 SO2",
+    ];
+    let value: serde_json::Value = serde_json::from_str(&couplet(&args).1).unwrap();
+    assert_eq!(value["redox"]["n"], 44);
+    assert_eq!(
+        couplet(&[
+            "oxidation",
+            "--assume",
+            "Fe=+2",
+            "4 FeS2 + 11 O2 -> 2 Fe2O3 + 8 SO2"
+        ])
+        .0,
+        2
+    );
+}
