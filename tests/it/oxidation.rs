@@ -702,3 +702,28 @@ fn command_analyses_reactions() {
         2
     );
 }
+
+/// Runs the binary and keeps standard output and standard error together, as a reader sees them.
+fn screen(args: &[&str]) -> String {
+    let output = std::process::Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+        .args(args)
+        .output()
+        .unwrap();
+    format!(
+        "{}{}",
+        String::from_utf8_lossy(&output.stdout),
+        String::from_utf8_lossy(&output.stderr)
+    )
+}
+
+/// The tables people read (values are checked against sources above; this pins the layout).
+#[test]
+fn command_tables() {
+    insta::assert_snapshot!("oxidation_table_sites", screen(&["oxidation", "NH4NO3"]));
+    insta::assert_snapshot!("oxidation_table_assumed", screen(&["oxidation", "FeS2"]));
+    insta::assert_snapshot!("oxidation_error", screen(&["oxidation", "CrO5"]));
+    insta::assert_snapshot!(
+        "oxidation_half_reaction",
+        screen(&["oxidation", "MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)"])
+    );
+}
