@@ -21,6 +21,7 @@ pub mod composition;
 pub mod constants;
 pub mod elements;
 pub mod notation;
+pub mod oxidation;
 pub mod reaction;
 pub mod scale;
 pub mod table;

@@ -5,6 +5,7 @@ mod balance;
 mod cell;
 mod common;
 mod derive;
+mod oxidation;
 mod parse;
 mod table;
 
@@ -28,6 +29,7 @@ pub const EXIT_USAGE: u8 = 2;
 balances them exactly, and computes the figures a cell designer checks. Exit status: 0 success, \
 1 the input was read but is chemically invalid, 2 usage or syntax error.",
     after_help = "Examples:\n  couplet parse 'CuSO4·5H2O'\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'\n  couplet parse --json 'Fe3+'\n  couplet balance --medium acid 'MnO4- + Fe2+ -> Mn2+ + Fe3+'"
+    after_help = "Examples:\n  couplet parse 'CuSO4·5H2O'\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'\n  couplet parse --json 'Fe3+'\n  couplet oxidation 'K4[Fe(CN)6]'\n  couplet oxidation --assume Fe=+2 FeS2"
 )]
 struct Cli {
     #[command(subcommand)]
@@ -46,6 +48,8 @@ enum Command {
     Cell(cell::CellArgs),
     /// A new couple from couples that share species, by adding free energies
     Derive(derive::DeriveArgs),
+    /// Oxidation number of every element of a formula or ion, with the rule that gave it
+    Oxidation(oxidation::OxidationArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -67,6 +71,7 @@ pub fn run() -> ExitCode {
         Command::Table(args) => table::run(&args),
         Command::Cell(args) => cell::run(&args),
         Command::Derive(args) => derive::run(&args),
+        Command::Oxidation(args) => oxidation::run(&args),
     };
     ExitCode::from(status)
 }

@@ -6,4 +6,5 @@ mod balance;
 mod cell;
 mod elements;
 mod notation;
+mod oxidation;
 mod table;
