@@ -28,8 +28,7 @@ pub const EXIT_USAGE: u8 = 2;
     long_about = "couplet reads half-reactions and formulas as chemists type them (MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O), \
 balances them exactly, and computes the figures a cell designer checks. Exit status: 0 success, \
 1 the input was read but is chemically invalid, 2 usage or syntax error.",
-    after_help = "Examples:\n  couplet parse 'CuSO4·5H2O'\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'\n  couplet parse --json 'Fe3+'\n  couplet balance --medium acid 'MnO4- + Fe2+ -> Mn2+ + Fe3+'"
-    after_help = "Examples:\n  couplet parse 'CuSO4·5H2O'\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'\n  couplet parse --json 'Fe3+'\n  couplet oxidation 'K4[Fe(CN)6]'\n  couplet oxidation --assume Fe=+2 FeS2"
+    after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet balance --medium acid 'MnO4- + Fe2+ -> Mn2+ + Fe3+'\n  couplet oxidation 'K4[Fe(CN)6]'\n  couplet table --element Mn\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'"
 )]
 struct Cli {
     #[command(subcommand)]
