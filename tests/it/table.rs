@@ -55,8 +55,24 @@ fn every_builtin_entry_parses_conserves_atoms_and_charge_and_is_a_reduction() {
     let table = Table::builtin();
     assert_eq!(table.couples().len(), file.records.len());
     assert!(table.overrides().is_empty());
-    // When the oxidation-number module merges, add here:
-    // every_builtin_entry_electrons_equal_the_oxidation_number_change (issue 5).
+}
+
+/// Every built-in entry's electrons equal its oxidation-number change (DOMAIN.md: a
+/// disagreement is a wrong formula or a wrong assignment, never something to hide).
+#[test]
+fn every_builtin_entry_electrons_equal_the_oxidation_number_change() {
+    let mut failures = Vec::new();
+    for couple in Table::builtin().couples() {
+        match couplet::oxidation::analyse(&couple.reaction) {
+            Ok(analysis) if analysis.n == analysis.electrons_written => {}
+            Ok(analysis) => failures.push(format!(
+                "{}: n from oxidation numbers {} but {} electrons written",
+                couple.reaction, analysis.n, analysis.electrons_written
+            )),
+            Err(error) => failures.push(format!("{}: {error}", couple.reaction)),
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
 }
 
 /// Ids the data file documents as "known disagreement" between two compilations by more than
