@@ -297,6 +297,39 @@ impl RowEchelon {
     }
 
     fn null_vector(&self, free: usize) -> Vec<BigInt> {
+        if !self.used_big_integers
+            && let Some(vector) = self.null_vector_small(free)
+        {
+            return vector.into_iter().map(BigInt::from).collect();
+        }
+        self.null_vector_big(free)
+    }
+
+    /// The same as [`RowEchelon::null_vector_big`] in checked `i128`; `None` on overflow.
+    fn null_vector_small(&self, free: usize) -> Option<Vec<i128>> {
+        let entry = |row: &Vec<BigInt>, c: usize| i128::try_from(&row[c]).ok();
+        let mut common: i128 = 1;
+        for (row, &pivot_column) in self.rows.iter().zip(&self.pivot_columns) {
+            if !Zero::is_zero(&row[free]) {
+                let pivot = entry(row, pivot_column)?;
+                common = (common / Integer::gcd(&common, &pivot)).checked_mul(pivot)?;
+            }
+        }
+        let mut vector = vec![0i128; self.columns];
+        vector[free] = common;
+        for (row, &pivot_column) in self.rows.iter().zip(&self.pivot_columns) {
+            let a = entry(row, free)?;
+            if a != 0 {
+                vector[pivot_column] = a
+                    .checked_mul(common / entry(row, pivot_column)?)?
+                    .checked_neg()?;
+            }
+        }
+        let content = vector.iter().fold(0i128, |g, x| Integer::gcd(&g, x));
+        Some(vector.into_iter().map(|x| x / content).collect())
+    }
+
+    fn null_vector_big(&self, free: usize) -> Vec<BigInt> {
         // With pivot d_r in row r, the vector x_free = 1, x_pivot(r) = −a_r,free / d_r solves
         // the system; multiplying by the lcm of the pivots involved clears the fractions.
         let mut common = BigInt::from(1);
