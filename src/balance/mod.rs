@@ -11,9 +11,10 @@
 //!   species (it keeps its side; none is added);
 //! - an equation without `e-` is first balanced without electrons; only when that is
 //!   impossible, and [`BalanceOptions::half_reaction_test`] says the equation is a
-//!   half-reaction, is `e-` added and the balance repeated. The chemistry rule is "exactly one
-//!   element changes oxidation state"; the oxidation-number module supplies that test. With no
-//!   test installed, only a written `e-` makes a half-reaction.
+//!   half-reaction, is `e-` added and the balance repeated. The rule is "exactly one element
+//!   changes oxidation state" ([`crate::oxidation::changes_one_element`], installed by
+//!   [`BalanceOptions::default`]). With no test installed, only a written `e-` makes a
+//!   half-reaction.
 //!
 //! [`ElectronRule::Always`] (a user saying "this is a half-reaction") adds `e-` whenever none
 //! is written; [`ElectronRule::Never`] never adds one.
@@ -27,7 +28,10 @@
 //! assert_eq!(balanced.ascii(), "MnO4- + 5 Fe2+ + 8 H+ -> Mn2+ + 5 Fe3+ + 4 H2O");
 //! ```
 
+mod halves;
 pub mod matrix;
+
+pub use halves::{HalfReactions, split};
 
 use crate::elements::Element;
 use crate::notation::{
@@ -106,8 +110,10 @@ pub type HalfReactionTest = fn(&Equation) -> bool;
 /// `None` when it cannot be told (one element both oxidised and reduced).
 pub type ElectronsTransferred = fn(&Reaction) -> Option<BigInt>;
 
-/// How to balance.
-#[derive(Clone, Copy, Debug, Default)]
+/// How to balance. The default balances as written, adds electrons to half-reactions, and
+/// takes the half-reaction test and the electron count of whole reactions from the
+/// oxidation-number module.
+#[derive(Clone, Copy, Debug)]
 pub struct BalanceOptions {
     /// Which solvent species may be added.
     pub medium: Medium,
@@ -118,6 +124,24 @@ pub struct BalanceOptions {
     /// n of a whole reaction; supplied by the oxidation-number module. Without it a whole
     /// reaction reports no electron count.
     pub electrons_transferred: Option<ElectronsTransferred>,
+}
+
+impl Default for BalanceOptions {
+    fn default() -> BalanceOptions {
+        BalanceOptions {
+            medium: Medium::None,
+            electrons: ElectronRule::HalfReactions,
+            half_reaction_test: Some(crate::oxidation::changes_one_element),
+            electrons_transferred: Some(electrons_from_oxidation_numbers),
+        }
+    }
+}
+
+/// n of a whole reaction from oxidation-number changes; `None` when some species has no
+/// oxidation numbers or n is not whole.
+fn electrons_from_oxidation_numbers(reaction: &Reaction) -> Option<BigInt> {
+    let analysis = crate::oxidation::analyse(reaction).ok()?;
+    analysis.n.is_integer().then(|| analysis.n.to_integer())
 }
 
 /// A reaction the balancer made and checked: atoms of every element and the charge are

@@ -5,7 +5,9 @@ use couplet::balance::{
     BalanceError, BalanceOptions, BalancedReaction, Conserved, ElectronRule, Impossible, Medium,
     balance_text,
 };
+use couplet::balance::{HalfReactions, split};
 use couplet::notation::Species;
+use couplet::oxidation::{ElementChange, RedoxAnalysis, analyse, signed_text};
 use num_bigint::BigInt;
 use num_traits::Signed;
 use std::fmt::Write;
@@ -114,11 +116,55 @@ fn human(balanced: &BalancedReaction) -> String {
         None => {
             let _ = writeln!(
                 out,
-                "electrons transferred: not computed (needs oxidation numbers)"
+                "electrons transferred: not determined (a species has no oxidation numbers)"
             );
         }
     }
+    let Some((analysis, halves)) = redox_of(balanced) else {
+        return out;
+    };
+    for (word, changes) in [
+        ("oxidised", &analysis.oxidized),
+        ("reduced", &analysis.reduced),
+    ] {
+        for change in changes {
+            let _ = writeln!(
+                out,
+                "{word:<9} {} {} → {}",
+                change.element,
+                signed_text(&change.from),
+                signed_text(&change.to)
+            );
+        }
+    }
+    let _ = writeln!(out, "kind      {}", analysis.kind.name().replace('_', " "));
+    if let Some(halves) = halves {
+        let _ = writeln!(out, "oxidation half  {}", halves.oxidation.ascii());
+        let _ = writeln!(out, "reduction half  {}", halves.reduction.ascii());
+    }
     out
+}
+
+/// The redox analysis of a balanced result and, for a whole redox reaction, its two halves.
+fn redox_of(balanced: &BalancedReaction) -> Option<(RedoxAnalysis, Option<HalfReactions>)> {
+    let analysis = analyse(balanced.reaction()).ok()?;
+    let halves = split(balanced, &analysis);
+    Some((analysis, halves))
+}
+
+fn changes_json(changes: &[ElementChange]) -> String {
+    let items: Vec<String> = changes
+        .iter()
+        .map(|c| {
+            format!(
+                "{{\"element\":{},\"from\":{},\"to\":{}}}",
+                json_string(c.element.symbol()),
+                json_string(&signed_text(&c.from)),
+                json_string(&signed_text(&c.to))
+            )
+        })
+        .collect();
+    format!("[{}]", items.join(","))
 }
 
 fn human_error(error: &BalanceError, line: &str, half: bool) -> String {
@@ -184,6 +230,28 @@ fn result_json(
                     let _ = write!(out, ",\"electrons\":{n}");
                 }
                 None => out.push_str(",\"electrons\":null"),
+            }
+            if let Some((analysis, halves)) = redox_of(balanced) {
+                let n = if analysis.n.is_integer() {
+                    analysis.n.to_integer().to_string()
+                } else {
+                    json_string(&signed_text(&analysis.n))
+                };
+                let _ = write!(
+                    out,
+                    ",\"redox\":{{\"oxidized\":{},\"reduced\":{},\"n\":{n},\"kind\":\"{}\"}}",
+                    changes_json(&analysis.oxidized),
+                    changes_json(&analysis.reduced),
+                    analysis.kind.name()
+                );
+                if let Some(halves) = halves {
+                    let _ = write!(
+                        out,
+                        ",\"half_reactions\":{{\"oxidation\":{},\"reduction\":{}}}",
+                        json_string(&halves.oxidation.ascii()),
+                        json_string(&halves.reduction.ascii())
+                    );
+                }
             }
         }
         Err(error) => {

@@ -227,6 +227,8 @@ fn units_composition(units: &[Unit], factor: u64, into: &mut Composition) -> Opt
 struct Found {
     candidates: Vec<usize>,
     times: u64,
+    /// Written as a bracketed group, e.g. (NO3)3 or (N3)2: the writer marked it as one unit.
+    bracketed: bool,
 }
 
 /// One component of a formula, scanned for ions.
@@ -250,11 +252,17 @@ fn scan(
                 let times = factor.checked_mul(*count as u64)?;
                 let mut atoms = Composition::default();
                 units_composition(body, 1, &mut atoms)?;
-                let candidates = polyatomic(table, table.with_atoms(atoms.counts()));
+                // A bracketed group may be a one-element ion too (azide in Pb(N3)2): the
+                // brackets say it is one unit, so there is no risk of cutting a molecule.
+                let candidates = table.with_atoms(atoms.counts());
                 if candidates.is_empty() {
                     scan(table, body, times, found, rest)?;
                 } else {
-                    found.push(Found { candidates, times });
+                    found.push(Found {
+                        candidates,
+                        times,
+                        bracketed: true,
+                    });
                 }
                 i += 1;
             }
@@ -267,6 +275,7 @@ fn scan(
                         found.push(Found {
                             candidates,
                             times: factor,
+                            bracketed: false,
                         });
                         i += len;
                     }
@@ -337,8 +346,10 @@ pub(super) fn assign(
         let mut rest = Composition::default();
         let factor = component.multiplier as u64;
         let ok = scan(table, &component.body, factor, &mut found, &mut rest);
+        // Carbon left over means an organic formula, which is not cut into ions unless the
+        // writer bracketed the ion (nitrate groups in C3H5(NO3)3).
         let usable = ok.is_some()
-            && !has_carbon(&rest)
+            && (!has_carbon(&rest) || found.iter().all(|f| f.bracketed))
             && !found
                 .iter()
                 .any(|f| f.candidates.iter().any(|&c| pinned(&table.ions[c])));

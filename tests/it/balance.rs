@@ -19,7 +19,7 @@ fn options(medium: &str, electrons_allowed: bool) -> BalanceOptions {
         electrons: if electrons_allowed {
             ElectronRule::Always
         } else {
-            ElectronRule::HalfReactions
+            ElectronRule::Never
         },
         ..BalanceOptions::default()
     }
@@ -135,14 +135,10 @@ fn every_corpus_entry() {
             _ => {
                 let expected = entry["balanced"].as_str().unwrap();
                 let balanced = check(input, medium, electrons_allowed, expected);
-                if entry["kind"] == "half" {
-                    assert_eq!(
-                        balanced.electrons(),
-                        Some(BigInt::from(
-                            entry["electrons_transferred"].as_u64().unwrap()
-                        )),
-                        "{id}"
-                    );
+                // Electrons of a half-reaction, or n of a whole reaction from oxidation
+                // numbers, as the corpus states them (null where it states none).
+                if let Some(n) = entry["electrons_transferred"].as_u64() {
+                    assert_eq!(balanced.electrons(), Some(BigInt::from(n)), "{id}");
                 }
             }
         }
@@ -253,10 +249,22 @@ fn the_half_reaction_test_adds_electrons_only_when_needed() {
     // Corpus half-01 (OpenStax 2e, Appendix L).
     let b = balance(&"MnO4- -> Mn2+".parse().unwrap(), &with_test).unwrap();
     assert_eq!(b.ascii(), "MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O");
-    // Corpus redox-45: balances without electrons, so the test is not consulted.
+    // Corpus redox-45: balances without electrons, so the test is not consulted; n = 5 comes
+    // from oxidation numbers.
     let b = balance(&"MnO4- + Fe2+ -> Mn2+ + Fe3+".parse().unwrap(), &with_test).unwrap();
     assert!(!b.is_half_reaction());
-    assert_eq!(b.electrons(), None);
+    assert_eq!(b.electrons(), Some(BigInt::from(5)));
+    // With the built-in test (one element changes oxidation state), a skeleton without e-
+    // becomes a half-reaction only when it cannot balance otherwise.
+    let acid = BalanceOptions {
+        medium: Medium::Acid,
+        ..BalanceOptions::default()
+    };
+    let b = balance(&"Cu -> Cu2+".parse().unwrap(), &acid).unwrap();
+    assert_eq!(b.ascii(), "Cu -> Cu2+ + 2 e-");
+    // Two elements oxidised and none reduced: not a half-reaction, and no balance.
+    let e = balance(&"Cu + Fe2+ -> Cu2+ + Fe3+".parse().unwrap(), &acid).unwrap_err();
+    assert_eq!(e.kind(), "impossible");
 }
 
 // ---- properties ----
@@ -386,7 +394,7 @@ fn command_prints_ascii_unicode_and_electrons() {
         .assert()
         .success()
         .stdout(
-            "MnO4- + 2 H2O + 3 e- -> MnO2 + 4 OH-\nMnO₄⁻ + 2 H₂O + 3 e⁻ → MnO₂ + 4 OH⁻\nelectrons: 3 (reduction half-reaction)\n",
+            "MnO4- + 2 H2O + 3 e- -> MnO2 + 4 OH-\nMnO₄⁻ + 2 H₂O + 3 e⁻ → MnO₂ + 4 OH⁻\nelectrons: 3 (reduction half-reaction)\nreduced   Mn +7 → +4\nkind      reduction\n",
         );
 }
 
@@ -410,7 +418,10 @@ fn command_json_schema() {
     );
     assert_eq!(v["products"][4]["species"], "H2O");
     assert_eq!(v["products"][4]["coefficient"], 1254);
-    assert!(v["electrons"].is_null());
+    // Corpus mol-02 states n = 1152.
+    assert_eq!(v["electrons"], 1152);
+    assert_eq!(v["redox"]["n"], 1152);
+    assert_eq!(v["redox"]["kind"], "redox");
     // Corpus half-41 (OpenStax 2e, Appendix L): electrons appear as a species and as a count.
     let output = couplet()
         .args(["balance", "--json", "--medium", "base", "O2 + e- -> OH-"])
@@ -424,7 +435,7 @@ fn command_json_schema() {
 
 #[test]
 fn command_batch_goes_on_after_a_bad_line() {
-    let input = "# acid batch\nMnO4- + Fe2+ -> Mn2+ + Fe3+\n\nCu -> Cu2+\nMnO4- + H2O2 -> Mn2+ + O2\nFe +\nH2 + Xx -> H2O\n";
+    let input = "# acid batch\nMnO4- + Fe2+ -> Mn2+ + Fe3+\n\nCu + Fe2+ -> Cu2+ + Fe3+\nMnO4- + H2O2 -> Mn2+ + O2\nFe +\nH2 + Xx -> H2O\n";
     let output = couplet()
         .args(["balance", "--json", "--medium", "acid", "-"])
         .write_stdin(input)
@@ -469,11 +480,11 @@ fn command_exit_codes() {
             "Pb would have to move across the arrow",
         ));
     couplet()
-        .args(["balance", "--medium", "acid", "Cu -> Cu2+"])
+        .args(["balance", "--medium", "acid", "Cu + Fe2+ -> Cu2+ + Fe3+"])
         .assert()
         .code(1)
         .stderr(predicates::str::contains(
-            "hint: if this is a half-reaction, --half",
+            "Fe2+ and Fe3+ would have to move across the arrow",
         ));
     couplet()
         .args(["balance", "Fe + -> Fe2+"])
