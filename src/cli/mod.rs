@@ -2,6 +2,7 @@
 //! file and only calls the library and renders what it returns.
 
 mod balance;
+mod capacity;
 mod cell;
 mod common;
 mod derive;
@@ -46,6 +47,8 @@ enum Command {
     Cell(cell::CellArgs),
     /// A new couple from couples that share species, by adding free energies
     Derive(derive::DeriveArgs),
+    /// Theoretical capacity (mAh/g, Ah/kg) and specific energy (Wh/kg, Wh/L) of materials and cells
+    Capacity(capacity::CapacityArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -67,6 +70,7 @@ pub fn run() -> ExitCode {
         Command::Table(args) => table::run(&args),
         Command::Cell(args) => cell::run(&args),
         Command::Derive(args) => derive::run(&args),
+        Command::Capacity(args) => capacity::run(&args),
     };
     ExitCode::from(status)
 }

@@ -3,6 +3,7 @@
 //! Every expected value that comes from outside the project names its source beside it.
 
 mod balance;
+mod capacity;
 mod cell;
 mod elements;
 mod notation;
