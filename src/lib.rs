@@ -16,11 +16,13 @@
 #![deny(missing_docs)]
 
 pub mod balance;
+pub mod capacity;
 pub mod cell;
 pub mod composition;
 pub mod constants;
 pub mod elements;
 pub mod notation;
+pub mod output;
 pub mod reaction;
 pub mod scale;
 pub mod table;
