@@ -15,7 +15,12 @@
 //! ```
 #![deny(missing_docs)]
 
+pub mod activity;
 pub mod composition;
 pub mod elements;
+pub mod export;
+pub mod nernst;
 pub mod notation;
+pub mod quotient;
 pub mod reaction;
+mod si;
