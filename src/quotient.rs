@@ -2,7 +2,7 @@
 //! one's activity is measured (by phase), its symbolic text, and the defaults assumed for
 //! species written without a state label.
 
-use crate::notation::{SpeciesKind, Species, State};
+use crate::notation::{Species, SpeciesKind, State};
 use crate::reaction::Reaction;
 use num_rational::BigRational;
 use num_traits::{One, Signed, ToPrimitive};
@@ -149,28 +149,49 @@ pub fn phase_of(species: &Species) -> (Phase, Option<String>) {
         None => {}
     }
     if is_water(species) {
-        return (Phase::Solvent, Some(format!("{name} taken as the solvent (liquid water)")));
+        return (
+            Phase::Solvent,
+            Some(format!("{name} taken as the solvent (liquid water)")),
+        );
     }
     if species.charge() != 0 {
-        return (Phase::Solute, Some(format!("{name} taken as a dissolved (aqueous) ion")));
+        return (
+            Phase::Solute,
+            Some(format!("{name} taken as a dissolved (aqueous) ion")),
+        );
     }
     let counts = species.composition.counts();
     if counts.len() == 1 {
         let (element, count) = counts[0];
         let symbol = element.symbol();
         if GAS_ELEMENTS.contains(&(symbol, count)) {
-            return (Phase::Gas, Some(format!("{name} taken as a gas (its element's standard state)")));
+            return (
+                Phase::Gas,
+                Some(format!(
+                    "{name} taken as a gas (its element's standard state)"
+                )),
+            );
         }
         if (symbol == "Br" && count == 2) || (symbol == "Hg" && count == 1) {
             return (
                 Phase::PureLiquid,
-                Some(format!("{name} taken as a pure liquid (its element's standard state)")),
+                Some(format!(
+                    "{name} taken as a pure liquid (its element's standard state)"
+                )),
             );
         }
-        return (Phase::Solid, Some(format!("{name} taken as a solid (its element's standard state)")));
+        return (
+            Phase::Solid,
+            Some(format!(
+                "{name} taken as a solid (its element's standard state)"
+            )),
+        );
     }
     if NEUTRAL_SOLUTES.contains(&name.as_str()) {
-        return (Phase::Solute, Some(format!("{name} taken as a dissolved neutral molecule")));
+        return (
+            Phase::Solute,
+            Some(format!("{name} taken as a dissolved neutral molecule")),
+        );
     }
     (
         Phase::Solid,
@@ -201,7 +222,7 @@ impl Quotient {
             if phase == Phase::Solvent && !options.water_enters {
                 assumptions.push(format!(
                     "a({}) = 1 (dilute solution; give a(H2O) or use a model that supplies it otherwise)",
-                    entry.species.ascii()
+                    entry.species.without_state().ascii()
                 ));
             }
             factors.push(Factor {
@@ -262,7 +283,7 @@ impl Quotient {
                     text.push('·');
                 }
                 count += 1;
-                let _ = write!(text, "a({})", f.species.ascii());
+                let _ = write!(text, "a({})", f.species.without_state().ascii());
                 let power = f.nu.abs();
                 if !power.is_one() {
                     let _ = write!(text, "^{}", ratio_text(&power));

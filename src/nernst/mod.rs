@@ -7,7 +7,7 @@ pub mod model;
 use crate::activity::water::{KW_FIT_MAX_KELVIN, KW_FIT_MIN_KELVIN, log10_kw};
 use crate::activity::{ActivityError, ActivityModel, GammaModel, Solution, same_substance};
 use crate::notation::Species;
-use crate::quotient::{ActivityKind, Phase, Quotient, QuotientOptions, Basis};
+use crate::quotient::{ActivityKind, Basis, Phase, Quotient, QuotientOptions};
 use crate::reaction::Reaction;
 use crate::si::{STANDARD_TEMPERATURE_KELVIN, thermal_voltage_volts};
 use thiserror::Error;
@@ -51,7 +51,9 @@ pub enum NernstError {
     #[error("pH was given but the reaction has neither H+ nor OH-")]
     PhUnused,
     /// Kw(T) is needed outside the range of its fit.
-    #[error("Kw at {0} K is outside the 273.15..333.15 K range of its fit; force it to extrapolate")]
+    #[error(
+        "Kw at {0} K is outside the 273.15..333.15 K range of its fit; force it to extrapolate"
+    )]
     KwTemperature(f64),
     /// From the activity model.
     #[error(transparent)]
@@ -182,7 +184,9 @@ fn positive(species: &Species, what: &'static str, value: f64) -> Result<f64, Ne
 }
 
 fn find<'a>(list: &'a [(Species, f64)], species: &Species) -> Option<&'a f64> {
-    list.iter().find(|(s, _)| same_substance(s, species)).map(|(_, v)| v)
+    list.iter()
+        .find(|(s, _)| same_substance(s, species))
+        .map(|(_, v)| v)
 }
 
 fn is_hydrogen_ion(species: &Species) -> bool {
@@ -271,9 +275,11 @@ pub fn evaluate(couple: &Couple, conditions: &Conditions) -> Result<Nernst, Nern
         Some(s) => conditions.model.water_activity(s, t)?,
         None => None,
     };
-    let has_water = couple.reaction.entries().iter().any(|e| {
-        crate::quotient::phase_of(&e.species).0 == Phase::Solvent
-    });
+    let has_water = couple
+        .reaction
+        .entries()
+        .iter()
+        .any(|e| crate::quotient::phase_of(&e.species).0 == Phase::Solvent);
     let given_water = couple
         .reaction
         .entries()
@@ -291,7 +297,11 @@ pub fn evaluate(couple: &Couple, conditions: &Conditions) -> Result<Nernst, Nern
 
     // Values for species the reaction does not use are mistakes, except amounts (ionic strength).
     for (s, _) in &conditions.activities {
-        let Some(f) = quotient.factors().iter().find(|f| same_substance(&f.species, s)) else {
+        let Some(f) = quotient
+            .factors()
+            .iter()
+            .find(|f| same_substance(&f.species, s))
+        else {
             return Err(NernstError::NotUsable {
                 species: s.ascii(),
                 reason: "an activity was given but the reaction does not contain it".into(),
@@ -305,7 +315,11 @@ pub fn evaluate(couple: &Couple, conditions: &Conditions) -> Result<Nernst, Nern
         }
     }
     for (s, _) in &conditions.pressures_bar {
-        match quotient.factors().iter().find(|f| same_substance(&f.species, s)) {
+        match quotient
+            .factors()
+            .iter()
+            .find(|f| same_substance(&f.species, s))
+        {
             Some(f) if f.phase == Phase::Gas => {}
             Some(_) => {
                 return Err(NernstError::NotUsable {
@@ -322,7 +336,10 @@ pub fn evaluate(couple: &Couple, conditions: &Conditions) -> Result<Nernst, Nern
         }
     }
     for (s, _) in &conditions.amounts {
-        if let Some(f) = quotient.factors().iter().find(|f| same_substance(&f.species, s))
+        if let Some(f) = quotient
+            .factors()
+            .iter()
+            .find(|f| same_substance(&f.species, s))
             && f.phase != Phase::Solute
         {
             return Err(NernstError::NotUsable {
@@ -365,7 +382,7 @@ pub fn evaluate(couple: &Couple, conditions: &Conditions) -> Result<Nernst, Nern
             let a_w = model_water.expect("water enters only when given or supplied");
             assumptions.push(format!(
                 "a({}) = {a_w:.4} from the table model (Gibbs–Duhem integration of the published γ± values)",
-                species.ascii()
+                species.without_state().ascii()
             ));
             (ActivityKind::Given, Some(a_w))
         } else if let (Some(ph), true) = (conditions.ph, is_hydrogen_ion(species)) {
@@ -395,7 +412,10 @@ pub fn evaluate(couple: &Couple, conditions: &Conditions) -> Result<Nernst, Nern
             }
         } else {
             let kind = quotient.default_kind(f);
-            match solution.as_ref().and_then(|s| s.amount(species).map(|m| (s, m))) {
+            match solution
+                .as_ref()
+                .and_then(|s| s.amount(species).map(|m| (s, m)))
+            {
                 Some((s, m)) => {
                     let g = conditions.model.gamma(species, s, t)?;
                     gamma = Some(g);

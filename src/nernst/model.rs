@@ -2,7 +2,9 @@
 //! for one state or a batch of states without allocating, for simulations.
 
 use crate::quotient::Quotient;
-use crate::si::{FARADAY_COULOMBS_PER_MOL, GAS_CONSTANT_JOULES_PER_MOL_KELVIN, STANDARD_TEMPERATURE_KELVIN};
+use crate::si::{
+    FARADAY_COULOMBS_PER_MOL, GAS_CONSTANT_JOULES_PER_MOL_KELVIN, STANDARD_TEMPERATURE_KELVIN,
+};
 use num_traits::ToPrimitive;
 use thiserror::Error;
 
@@ -144,7 +146,13 @@ impl CellModel {
             .entering()
             .map(|f| (f.species.ascii(), f.nu.to_f64().unwrap_or(f64::NAN)))
             .unzip();
-        CellModel::new(species, exponents, e0_volts, electrons, de0_dt_volts_per_kelvin)
+        CellModel::new(
+            species,
+            exponents,
+            e0_volts,
+            electrons,
+            de0_dt_volts_per_kelvin,
+        )
     }
 
     /// Species whose activities are expected, in order.
@@ -169,7 +177,12 @@ impl CellModel {
     }
 
     #[inline(always)]
-    fn check(&self, state: usize, activities: &[f64], temperature_kelvin: f64) -> Result<(), ModelError> {
+    fn check(
+        &self,
+        state: usize,
+        activities: &[f64],
+        temperature_kelvin: f64,
+    ) -> Result<(), ModelError> {
         if !(temperature_kelvin.is_finite() && temperature_kelvin > 0.0) {
             return Err(ModelError::BadTemperature {
                 state,
@@ -214,7 +227,8 @@ impl CellModel {
 
     #[inline(always)]
     fn potential_unchecked(&self, activities: &[f64], temperature_kelvin: f64) -> f64 {
-        self.e0_volts + self.de0_dt_volts_per_kelvin * (temperature_kelvin - STANDARD_TEMPERATURE_KELVIN)
+        self.e0_volts
+            + self.de0_dt_volts_per_kelvin * (temperature_kelvin - STANDARD_TEMPERATURE_KELVIN)
             - self.r_over_nf * temperature_kelvin * self.ln_q(activities)
     }
 
