@@ -2,5 +2,8 @@
 //!
 //! Every expected value that comes from outside the project names its source beside it.
 
+mod activity;
 mod elements;
+mod export;
+mod nernst;
 mod notation;
