@@ -16,11 +16,14 @@
 #![deny(missing_docs)]
 
 pub mod activity;
+pub mod cell;
 pub mod composition;
+pub mod constants;
 pub mod elements;
 pub mod export;
 pub mod nernst;
 pub mod notation;
 pub mod quotient;
 pub mod reaction;
-mod si;
+pub mod scale;
+pub mod table;

@@ -199,7 +199,10 @@ const ANIONS: &[&str] = &[
     "OH-", "F-", "Cl-", "Br-", "I-", "NO3-", "ClO4-", "SO4^2-", "CO3^2-", "PO4^3-",
 ];
 
-fn parsed(list: &'static [&'static str], cell: &'static OnceLock<Vec<Species>>) -> &'static [Species] {
+fn parsed(
+    list: &'static [&'static str],
+    cell: &'static OnceLock<Vec<Species>>,
+) -> &'static [Species] {
     cell.get_or_init(|| {
         list.iter()
             .map(|t| parse_species(t).expect("built-in ion list parses"))
@@ -370,8 +373,14 @@ fn identify_electrolyte(solutes: &[(Species, f64)]) -> Option<TabulatedElectroly
         let Some((cation, nu_c, anion, nu_a)) = split_electrolyte(&formula) else {
             continue;
         };
-        let m_c = ions.iter().find(|(s, _)| same_substance(s, &cation)).map(|(_, m)| *m);
-        let m_a = ions.iter().find(|(s, _)| same_substance(s, &anion)).map(|(_, m)| *m);
+        let m_c = ions
+            .iter()
+            .find(|(s, _)| same_substance(s, &cation))
+            .map(|(_, m)| *m);
+        let m_a = ions
+            .iter()
+            .find(|(s, _)| same_substance(s, &anion))
+            .map(|(_, m)| *m);
         if let (Some(m_c), Some(m_a)) = (m_c, m_a) {
             let molality = m_c / nu_c as f64;
             if ((m_a / nu_a as f64) - molality).abs() <= 1e-9 * molality {
@@ -420,7 +429,12 @@ impl ActivityModel {
         }
     }
 
-    fn check_temperature(&self, temperature_kelvin: f64, low: f64, high: f64) -> Result<(), ActivityError> {
+    fn check_temperature(
+        &self,
+        temperature_kelvin: f64,
+        low: f64,
+        high: f64,
+    ) -> Result<(), ActivityError> {
         if self.force || (temperature_kelvin >= low && temperature_kelvin <= high) {
             Ok(())
         } else {
@@ -465,8 +479,14 @@ impl ActivityModel {
                 }
             }
             model => {
-                self.check_temperature(temperature_kelvin, WATER_FIT_MIN_KELVIN, WATER_FIT_MAX_KELVIN)?;
-                let limit = model.ionic_strength_limit().expect("Debye–Hückel models have limits");
+                self.check_temperature(
+                    temperature_kelvin,
+                    WATER_FIT_MIN_KELVIN,
+                    WATER_FIT_MAX_KELVIN,
+                )?;
+                let limit = model
+                    .ionic_strength_limit()
+                    .expect("Debye–Hückel models have limits");
                 if !self.force && solution.ionic_strength > limit {
                     return Err(ActivityError::OutsideRange {
                         model,
@@ -483,7 +503,12 @@ impl ActivityModel {
     /// Neutral solutes get γ = 1 in every model. In the `table` model each ion of the electrolyte
     /// gets the mean coefficient γ±: exact for any Q in which the two ions enter in the
     /// electrolyte's ratio, a convention otherwise.
-    pub fn gamma(&self, species: &Species, solution: &Solution, temperature_kelvin: f64) -> Result<f64, ActivityError> {
+    pub fn gamma(
+        &self,
+        species: &Species,
+        solution: &Solution,
+        temperature_kelvin: f64,
+    ) -> Result<f64, ActivityError> {
         self.check(solution, temperature_kelvin)?;
         let z = species.charge() as f64;
         if z == 0.0 {
@@ -495,9 +520,10 @@ impl ActivityModel {
             GammaModel::Ideal => 0.0,
             GammaModel::DebyeHuckel => -a() * z * z * root_i,
             GammaModel::Extended => {
-                let size = ion_size_angstrom(species).ok_or_else(|| ActivityError::UnknownIonSize {
-                    species: species.ascii(),
-                })?;
+                let size =
+                    ion_size_angstrom(species).ok_or_else(|| ActivityError::UnknownIonSize {
+                        species: species.ascii(),
+                    })?;
                 -a() * z * z * root_i
                     / (1.0 + water::debye_huckel_b_per_angstrom(temperature_kelvin) * size * root_i)
             }
@@ -522,7 +548,11 @@ impl ActivityModel {
 
     /// The water activity the model supplies, if it supplies one: only `table`, from the
     /// Gibbs–Duhem equation over the same published γ± values.
-    pub fn water_activity(&self, solution: &Solution, temperature_kelvin: f64) -> Result<Option<f64>, ActivityError> {
+    pub fn water_activity(
+        &self,
+        solution: &Solution,
+        temperature_kelvin: f64,
+    ) -> Result<Option<f64>, ActivityError> {
         if self.model != GammaModel::Table {
             return Ok(None);
         }

@@ -4,7 +4,7 @@
 //! the same data imply through the Gibbs–Duhem equation.
 
 use super::ActivityError;
-use crate::si::WATER_MOLAR_MASS_KG_PER_MOL;
+use super::water::WATER_MOLAR_MASS_KG_PER_MOL;
 use std::sync::OnceLock;
 
 const CSV: &str = include_str!("../../data/activity_coefficients.csv");
@@ -136,7 +136,11 @@ impl ElectrolyteTable {
     /// `φ = 1 + (1/m)∫₀^m m' d ln γ±` and `ln a_w = −ν·m·M_w·φ`. The integral runs over the same
     /// interpolation as [`Self::gamma_pm`], with the exact limit γ± → 1 as m → 0 joining the first
     /// tabulated point.
-    pub fn water_activity(&self, molality: f64, ions_per_formula: u32) -> Result<f64, ActivityError> {
+    pub fn water_activity(
+        &self,
+        molality: f64,
+        ions_per_formula: u32,
+    ) -> Result<f64, ActivityError> {
         self.gamma_pm(molality)?;
         let mut knots: Vec<(f64, f64)> = vec![(0.0, 0.0)];
         knots.extend(self.points.iter().map(|p| (p.molality, p.gamma_pm.ln())));

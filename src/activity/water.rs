@@ -1,10 +1,14 @@
 //! Properties of liquid water that the activity models need: density, relative permittivity,
 //! the Debye–Hückel A and B parameters at a temperature, and the ion product Kw(T).
 
-use crate::si::{
-    AVOGADRO_PER_MOL, BOLTZMANN_JOULES_PER_KELVIN, ELEMENTARY_CHARGE_COULOMBS,
-    VACUUM_PERMITTIVITY_FARADS_PER_METRE,
-};
+use crate::constants::{AVOGADRO_PER_MOL, BOLTZMANN_JOULES_PER_KELVIN, ELEMENTARY_CHARGE_COULOMBS};
+
+/// Vacuum electric permittivity ε0 in F/m: CODATA 2018 recommended value 8.8541878128(13)e-12
+/// (measured, no longer exact in the 2019 SI).
+pub const VACUUM_PERMITTIVITY_FARADS_PER_METRE: f64 = 8.8541878128e-12;
+
+/// Molar mass of water in kg/mol (18.015268 g/mol, the IAPWS-95 value).
+pub const WATER_MOLAR_MASS_KG_PER_MOL: f64 = 0.018015268;
 
 /// Lowest temperature the water property fits below cover (0 °C).
 pub const WATER_FIT_MIN_KELVIN: f64 = 273.15;
@@ -49,7 +53,10 @@ pub fn debye_huckel_a(temperature_kelvin: f64) -> f64 {
     let permittivity =
         VACUUM_PERMITTIVITY_FARADS_PER_METRE * water_relative_permittivity(temperature_kelvin);
     let bjerrum_half = e * e
-        / (8.0 * std::f64::consts::PI * permittivity * BOLTZMANN_JOULES_PER_KELVIN
+        / (8.0
+            * std::f64::consts::PI
+            * permittivity
+            * BOLTZMANN_JOULES_PER_KELVIN
             * temperature_kelvin);
     bjerrum_half * screening_per_metre(temperature_kelvin) / std::f64::consts::LN_10
 }

@@ -1,7 +1,11 @@
 //! Command-line front end: argument definitions and dispatch. Each command lives in its own
 //! file and only calls the library and renders what it returns.
 
+mod cell;
+mod common;
+mod derive;
 mod parse;
+mod table;
 
 use clap::{Parser, Subcommand};
 use std::io::Read;
@@ -33,6 +37,12 @@ struct Cli {
 enum Command {
     /// Show how a formula, species list or equation is read: composition, charge, state, molar mass
     Parse(parse::ParseArgs),
+    /// List, search and show couples of the standard-potential table
+    Table(table::TableCommandArgs),
+    /// Combine a cathode and an anode couple: net reaction, n, E°cell, ΔG°, K, temperature
+    Cell(cell::CellArgs),
+    /// A new couple from couples that share species, by adding free energies
+    Derive(derive::DeriveArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -50,6 +60,9 @@ pub fn run() -> ExitCode {
     };
     let status = match cli.command {
         Command::Parse(args) => parse::run(&args),
+        Command::Table(args) => table::run(&args),
+        Command::Cell(args) => cell::run(&args),
+        Command::Derive(args) => derive::run(&args),
     };
     ExitCode::from(status)
 }

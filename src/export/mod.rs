@@ -231,10 +231,10 @@ impl Export<'_> {
             "source": self.source,
             "species": species,
             "constants": {
-                "elementary_charge_C": crate::si::ELEMENTARY_CHARGE_COULOMBS,
-                "avogadro_per_mol": crate::si::AVOGADRO_PER_MOL,
-                "boltzmann_J_per_K": crate::si::BOLTZMANN_JOULES_PER_KELVIN,
-                "standard_temperature_K": crate::si::STANDARD_TEMPERATURE_KELVIN,
+                "elementary_charge_C": crate::constants::ELEMENTARY_CHARGE_COULOMBS,
+                "avogadro_per_mol": crate::constants::AVOGADRO_PER_MOL,
+                "boltzmann_J_per_K": crate::constants::BOLTZMANN_JOULES_PER_KELVIN,
+                "standard_temperature_K": crate::constants::STANDARD_TEMPERATURE_KELVIN,
             },
         })
     }

@@ -6,10 +6,10 @@ pub mod model;
 
 use crate::activity::water::{KW_FIT_MAX_KELVIN, KW_FIT_MIN_KELVIN, log10_kw};
 use crate::activity::{ActivityError, ActivityModel, GammaModel, Solution, same_substance};
+use crate::constants::{STANDARD_TEMPERATURE_KELVIN, thermal_voltage_volts};
 use crate::notation::Species;
 use crate::quotient::{ActivityKind, Basis, Phase, Quotient, QuotientOptions};
 use crate::reaction::Reaction;
-use crate::si::{STANDARD_TEMPERATURE_KELVIN, thermal_voltage_volts};
 use thiserror::Error;
 
 pub use model::{CellModel, ModelError};

@@ -1,10 +1,10 @@
 //! A compiled cell model: the species of Q with their exponents, E°, n and dE°/dT, evaluated
 //! for one state or a batch of states without allocating, for simulations.
 
-use crate::quotient::Quotient;
-use crate::si::{
+use crate::constants::{
     FARADAY_COULOMBS_PER_MOL, GAS_CONSTANT_JOULES_PER_MOL_KELVIN, STANDARD_TEMPERATURE_KELVIN,
 };
+use crate::quotient::Quotient;
 use num_traits::ToPrimitive;
 use thiserror::Error;
 

@@ -3,7 +3,9 @@
 //! Every expected value that comes from outside the project names its source beside it.
 
 mod activity;
+mod cell;
 mod elements;
 mod export;
 mod nernst;
 mod notation;
+mod table;

@@ -1,0 +1,497 @@
+//! The cell engine: a cathode couple and an anode couple combined into the net cell reaction
+//! with n, E°cell, ΔG°, K and their temperature dependence; and derived couples by adding free
+//! energies of half-reactions.
+//!
+//! Half-reactions are combined as exact [`Reaction`]s (scale to the least common multiple of
+//! the electrons, reverse the anode, add), so species on both sides cancel by construction and
+//! the net reaction is recounted, never assumed balanced. Potentials are combined through
+//! free energies (DOMAIN.md), and only a couple minus a couple is a plain difference.
+
+use crate::constants::{
+    FARADAY_COULOMBS_PER_MOL, STANDARD_TEMPERATURE_KELVIN, WATER_PKW_AT_STANDARD_TEMPERATURE,
+    nernst_slope_volts_per_decade,
+};
+use crate::notation::{Species, parse_species};
+use crate::reaction::Reaction;
+use crate::table::{Couple, Medium, Origin, imbalance_text};
+use num_bigint::BigInt;
+use num_integer::Integer;
+use num_rational::BigRational;
+use num_traits::{One, Signed, ToPrimitive, Zero};
+
+/// Beyond this distance from 298.15 K a first-order temperature correction is a rough guide
+/// only (DOMAIN.md: good within roughly ±25 K).
+pub const LINEAR_TEMPERATURE_RANGE_KELVIN: f64 = 25.0;
+
+/// What the caller wants besides the two couples.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct CellOptions {
+    /// Temperature for E(T), ΔG(T) and K(T).
+    pub temperature_kelvin: f64,
+    /// Write both halves in this medium (acid ↔ base through Kw) before combining.
+    pub medium: Option<Medium>,
+}
+
+impl Default for CellOptions {
+    fn default() -> CellOptions {
+        CellOptions {
+            temperature_kelvin: STANDARD_TEMPERATURE_KELVIN,
+            medium: None,
+        }
+    }
+}
+
+/// Why two couples make no cell.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum CellError {
+    /// Both halves are the same couple: nothing happens.
+    #[error("cathode and anode are the same couple: the net reaction is empty")]
+    SameCouple,
+    /// One half is written with H+ and the other with OH-.
+    #[error(
+        "the cathode is written for {cathode} and the anode for {anode}; give --medium acid or --medium base to write both in one solution"
+    )]
+    MixedMedia {
+        /// Medium of the cathode couple.
+        cathode: Medium,
+        /// Medium of the anode couple.
+        anode: Medium,
+    },
+    /// The net reaction does not conserve atoms or charge (a half was unbalanced).
+    #[error("the net reaction does not balance ({0})")]
+    Unbalanced(String),
+    /// The temperature is not a positive finite number.
+    #[error("temperature must be a positive number of kelvins, not {0}")]
+    BadTemperature(f64),
+}
+
+/// Figures at a temperature other than 298.15 K, to first order in T − T°.
+#[derive(Clone, Debug, PartialEq)]
+pub struct AtTemperature {
+    /// The temperature.
+    pub temperature_kelvin: f64,
+    /// E°(T) = E°(T°) + (dE°/dT)(T − T°).
+    pub e0_volts: f64,
+    /// dE°cell/dT in mV/K.
+    pub dedt_millivolts_per_kelvin: f64,
+    /// ΔS° = nF·dE°/dT in J/(mol·K).
+    pub delta_s0_joules_per_mol_kelvin: f64,
+    /// ΔH° = ΔG° + T°ΔS° in kJ/mol (taken as constant over the range).
+    pub delta_h0_kilojoules_per_mol: f64,
+    /// ΔG°(T) = −nF·E°(T) in kJ/mol.
+    pub delta_g0_kilojoules_per_mol: f64,
+    /// log10 K(T).
+    pub log10_k: f64,
+}
+
+/// A cell: the two halves as used, the net reaction and its figures.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Cell {
+    /// The cathode couple (reduction), after any medium conversion.
+    pub cathode: Couple,
+    /// The anode couple, as a reduction (it runs in reverse).
+    pub anode: Couple,
+    /// Net reaction in lowest whole numbers, reactants → products.
+    pub net: Reaction,
+    /// Electrons transferred in the net reaction as written.
+    pub electrons: BigInt,
+    /// E°cell = E°(cathode) − E°(anode), V, at 298.15 K.
+    pub e0_volts: f64,
+    /// ΔG° = −nF·E°cell in kJ/mol of the net reaction as written, at 298.15 K.
+    pub delta_g0_kilojoules_per_mol: f64,
+    /// log10 K at 298.15 K (K itself overflows for strong cells).
+    pub log10_k: f64,
+    /// E°cell > 0: the reaction runs as written.
+    pub runs_as_written: bool,
+    /// The temperature asked for.
+    pub temperature_kelvin: f64,
+    /// Figures at that temperature when it is not 298.15 K and both dE°/dT are known.
+    pub at_temperature: Option<AtTemperature>,
+    /// Remarks the user should read (conversions, missing data, range of validity).
+    pub notes: Vec<String>,
+}
+
+impl Cell {
+    /// K at 298.15 K, or `None` when it overflows f64.
+    pub fn k(&self) -> Option<f64> {
+        let k = 10f64.powf(self.log10_k);
+        (k.is_finite() && k > 0.0).then_some(k)
+    }
+}
+
+/// log10 K for n electrons and E in volts at T: nFE/(RT ln 10).
+pub fn log10_k(electrons: f64, e_volts: f64, temperature_kelvin: f64) -> f64 {
+    electrons * e_volts / nernst_slope_volts_per_decade(temperature_kelvin)
+}
+
+/// ΔG = −nFE in kJ/mol.
+pub fn delta_g_kilojoules_per_mol(electrons: f64, e_volts: f64) -> f64 {
+    -electrons * FARADAY_COULOMBS_PER_MOL * e_volts / 1000.0
+}
+
+fn species(formula: &str) -> Species {
+    parse_species(formula).expect("a fixed formula parses")
+}
+
+/// The self-ionisation of water, H2O → H+ + OH-.
+fn water_ionisation() -> Reaction {
+    let mut w = Reaction::new();
+    w.add(&species("H2O(l)"), -BigRational::one());
+    w.add(&species("H+"), BigRational::one());
+    w.add(&species("OH-"), BigRational::one());
+    w
+}
+
+/// The couple written for another medium: H+ traded for H2O and OH- (or back) with
+/// the water self-ionisation, its E° moved by (ν/n)·(RT/F)·ln10·pKw. Neutral couples and
+/// couples already in the medium come back unchanged. `None` when nothing changed.
+pub fn in_medium(couple: &Couple, medium: Medium) -> Option<Couple> {
+    let ion = match medium {
+        Medium::Base => species("H+"),
+        Medium::Acid => species("OH-"),
+        Medium::Neutral => return None,
+    };
+    let nu = couple.reaction.nu(&ion);
+    if nu.is_zero() {
+        return None;
+    }
+    let reaction = couple
+        .reaction
+        .plus(&water_ionisation().scaled(&-nu.clone()));
+    let slope = nernst_slope_volts_per_decade(STANDARD_TEMPERATURE_KELVIN);
+    let shift = nu.to_f64().unwrap_or(f64::NAN) * slope * WATER_PKW_AT_STANDARD_TEMPERATURE
+        / couple.electrons_f64();
+    let mut converted = couple.clone();
+    converted.reaction = reaction;
+    converted.e0_volts = couple.e0_volts + shift;
+    converted.medium = medium;
+    converted.dedt_millivolts_per_kelvin = None;
+    converted.id = couple.id.as_ref().map(|id| format!("{id} (in {medium})"));
+    converted.note = Some(format!(
+        "converted from the {} form with pKw = {WATER_PKW_AT_STANDARD_TEMPERATURE} (Harris App. G)",
+        couple.medium
+    ));
+    Some(converted)
+}
+
+/// Combines a cathode couple and an anode couple into a cell.
+pub fn combine(cathode: &Couple, anode: &Couple, options: CellOptions) -> Result<Cell, CellError> {
+    let temperature = options.temperature_kelvin;
+    if !(temperature.is_finite() && temperature > 0.0) {
+        return Err(CellError::BadTemperature(temperature));
+    }
+    let mut notes = Vec::new();
+    let (mut cathode, mut anode) = (cathode.clone(), anode.clone());
+    if let Some(medium) = options.medium {
+        for half in [&mut cathode, &mut anode] {
+            if let Some(converted) = in_medium(half, medium) {
+                notes.push(format!(
+                    "{} written for {medium}: E° {:.4} V → {:.4} V (pKw {WATER_PKW_AT_STANDARD_TEMPERATURE}, Harris App. G)",
+                    half.label(),
+                    half.e0_volts,
+                    converted.e0_volts
+                ));
+                *half = converted;
+            }
+        }
+    }
+    let uses = |c: &Couple, formula: &str| !c.reaction.nu(&species(formula)).is_zero();
+    if (uses(&cathode, "H+") && uses(&anode, "OH-"))
+        || (uses(&cathode, "OH-") && uses(&anode, "H+"))
+    {
+        return Err(CellError::MixedMedia {
+            cathode: cathode.medium,
+            anode: anode.medium,
+        });
+    }
+    let (n_cathode, n_anode) = (cathode.electrons(), anode.electrons());
+    let common = lcm_rational(&n_cathode, &n_anode);
+    let sum = cathode
+        .reaction
+        .scaled(&(&common / &n_cathode))
+        .plus(&anode.reaction.scaled(&(&common / &n_anode)).reversed());
+    if sum.is_empty() {
+        return Err(CellError::SameCouple);
+    }
+    let net = sum.in_lowest_integers();
+    if let Some(detail) = imbalance_text(&net) {
+        return Err(CellError::Unbalanced(detail));
+    }
+    // in_lowest_integers scaled every ν by one factor; n follows it.
+    let factor = &net.entries()[0].nu / &sum.nu(&net.entries()[0].species);
+    let electrons_exact = &common * &factor;
+    let electrons = electrons_exact.to_integer();
+    let n = electrons_exact.to_f64().unwrap_or(f64::NAN);
+    let e0 = cathode.e0_volts - anode.e0_volts;
+    let mut cell = Cell {
+        net,
+        electrons,
+        e0_volts: e0,
+        delta_g0_kilojoules_per_mol: delta_g_kilojoules_per_mol(n, e0),
+        log10_k: log10_k(n, e0, STANDARD_TEMPERATURE_KELVIN),
+        runs_as_written: e0 > 0.0,
+        temperature_kelvin: temperature,
+        at_temperature: None,
+        notes,
+        cathode,
+        anode,
+    };
+    if (temperature - STANDARD_TEMPERATURE_KELVIN).abs() > 1e-9 {
+        match (
+            cell.cathode.dedt_millivolts_per_kelvin,
+            cell.anode.dedt_millivolts_per_kelvin,
+        ) {
+            (Some(dc), Some(da)) => {
+                let dedt_mv = dc - da;
+                let e_t = e0 + dedt_mv / 1000.0 * (temperature - STANDARD_TEMPERATURE_KELVIN);
+                let delta_s = n * FARADAY_COULOMBS_PER_MOL * dedt_mv / 1000.0;
+                cell.at_temperature = Some(AtTemperature {
+                    temperature_kelvin: temperature,
+                    e0_volts: e_t,
+                    dedt_millivolts_per_kelvin: dedt_mv,
+                    delta_s0_joules_per_mol_kelvin: delta_s,
+                    delta_h0_kilojoules_per_mol: cell.delta_g0_kilojoules_per_mol
+                        + STANDARD_TEMPERATURE_KELVIN * delta_s / 1000.0,
+                    delta_g0_kilojoules_per_mol: delta_g_kilojoules_per_mol(n, e_t),
+                    log10_k: log10_k(n, e_t, temperature),
+                });
+                if (temperature - STANDARD_TEMPERATURE_KELVIN).abs()
+                    > LINEAR_TEMPERATURE_RANGE_KELVIN
+                {
+                    cell.notes.push(format!(
+                        "{temperature} K is more than {LINEAR_TEMPERATURE_RANGE_KELVIN} K from 298.15 K: the first-order E°(T) is a rough guide only"
+                    ));
+                }
+            }
+            (c, a) => {
+                let missing: Vec<String> = [(c, &cell.cathode), (a, &cell.anode)]
+                    .iter()
+                    .filter(|(d, _)| d.is_none())
+                    .map(|(_, couple)| couple.label())
+                    .collect();
+                cell.notes.push(format!(
+                    "no dE°/dT for {}: figures are given at 298.15 K only",
+                    missing.join(" and ")
+                ));
+            }
+        }
+    }
+    Ok(cell)
+}
+
+fn lcm_rational(a: &BigRational, b: &BigRational) -> BigRational {
+    // For whole numbers this is the ordinary lcm; for fractions the smallest positive value
+    // that both divide into whole multiples.
+    let numer = (a.numer() * b.denom()).lcm(&(b.numer() * a.denom()));
+    BigRational::new(numer, a.denom() * b.denom())
+}
+
+/// A couple derived from others by adding free energies.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Derived {
+    /// The new couple (reaction in lowest whole numbers, E° from free energies).
+    pub couple: Couple,
+    /// The couples it came from, in order, each with the signed multiple used.
+    pub from: Vec<(Couple, BigRational)>,
+}
+
+/// Why couples cannot be combined into a new couple.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum DeriveError {
+    /// Fewer than two couples.
+    #[error("give at least two couples to combine")]
+    TooFew,
+    /// A couple shares no species (other than water, H+, OH- and electrons) with those before.
+    #[error("{0} shares no species with the couples before it")]
+    NothingShared(String),
+    /// The electrons cancel: the result is a whole reaction, not a half-reaction.
+    #[error(
+        "the electrons cancel: these couples make a cell reaction, not a new couple (see couplet cell)"
+    )]
+    NoElectrons,
+    /// The sum does not balance.
+    #[error("the combination does not balance ({0})")]
+    Unbalanced(String),
+}
+
+fn is_medium_species(s: &Species) -> bool {
+    s.is_electron()
+        || [species("H2O"), species("H+"), species("OH-")]
+            .iter()
+            .any(|w| w.kind == s.kind)
+}
+
+/// Combines couples that share species into one half-reaction whose E° follows from adding
+/// free energies: E° = Σ(ν_i n_i E°_i)/n. Each couple after the first is added or subtracted
+/// (and scaled) so that a species it shares with the sum so far cancels.
+pub fn derive(couples: &[Couple]) -> Result<Derived, DeriveError> {
+    let [first, rest @ ..] = couples else {
+        return Err(DeriveError::TooFew);
+    };
+    if rest.is_empty() {
+        return Err(DeriveError::TooFew);
+    }
+    let mut sum = first.reaction.clone();
+    // Σ multiple·n·E°: minus the free energy over F.
+    let mut electron_volts = first.electrons_f64() * first.e0_volts;
+    let mut from = vec![(first.clone(), BigRational::one())];
+    for couple in rest {
+        let shared = couple.reaction.entries().iter().find_map(|e| {
+            if is_medium_species(&e.species) {
+                return None;
+            }
+            let in_sum = sum.nu(&e.species);
+            (!in_sum.is_zero()).then(|| -in_sum / &e.nu)
+        });
+        let Some(multiple) = shared else {
+            return Err(DeriveError::NothingShared(couple.label()));
+        };
+        sum = sum.plus(&couple.reaction.scaled(&multiple));
+        electron_volts +=
+            multiple.to_f64().unwrap_or(f64::NAN) * couple.electrons_f64() * couple.e0_volts;
+        from.push((couple.clone(), multiple));
+    }
+    let mut electrons = -sum.electron_nu();
+    if electrons.is_zero() {
+        return Err(DeriveError::NoElectrons);
+    }
+    if electrons.is_negative() {
+        // The sum came out as an oxidation: its reverse is the couple, with the opposite E°.
+        sum = sum.reversed();
+        electrons = -electrons;
+        electron_volts = -electron_volts;
+    }
+    if let Some(detail) = imbalance_text(&sum) {
+        return Err(DeriveError::Unbalanced(detail));
+    }
+    let e0 = electron_volts / electrons.to_f64().unwrap_or(f64::NAN);
+    let reaction = sum.in_lowest_integers();
+    let mut couple =
+        Couple::from_reaction(reaction, e0).map_err(|e| DeriveError::Unbalanced(e.to_string()))?;
+    couple.origin = Origin::Given;
+    couple.source = Some(format!(
+        "derived by free-energy addition from {}",
+        from.iter()
+            .map(|(c, _)| c.label())
+            .collect::<Vec<_>>()
+            .join(", ")
+    ));
+    Ok(Derived { couple, from })
+}
+
+/// A species that the caution line names.
+fn hazard_of(species: &Species, is_product: bool) -> Option<&'static str> {
+    let counts = species.composition.counts();
+    let count = |symbol: &str| {
+        counts
+            .iter()
+            .find(|(e, _)| e.symbol() == symbol)
+            .map_or(0, |&(_, n)| n)
+    };
+    let only = |symbols: &[&str]| counts.iter().all(|(e, _)| symbols.contains(&e.symbol()));
+    let state_gas_or_none = !matches!(
+        species.state,
+        Some(s) if s != crate::notation::State::Gas
+    );
+    if is_product && species.charge() == 0 && state_gas_or_none {
+        for (formula, hazard) in [
+            ("H2", "hydrogen (flammable, explosive with air)"),
+            ("O2", "oxygen (feeds fires; with hydrogen explosive)"),
+            ("Cl2", "chlorine (toxic gas)"),
+        ] {
+            if species.kind == crate::notation::parse_species(formula).ok()?.kind {
+                return Some(hazard);
+            }
+        }
+    }
+    let cr = count("Cr");
+    if cr > 0 && only(&["Cr", "O", "H"]) {
+        // Oxidation number of Cr from charge balance with O −2 and H +1.
+        let o = count("O") as i64;
+        let h = count("H") as i64;
+        if (species.charge() + 2 * o - h) == 6 * cr as i64 {
+            return Some("chromium(VI) (carcinogenic)");
+        }
+    }
+    for (symbol, hazard) in [
+        ("Hg", "mercury (toxic)"),
+        ("Cd", "cadmium (toxic, carcinogenic)"),
+        ("Pb", "lead (toxic)"),
+        ("As", "arsenic (toxic)"),
+    ] {
+        if count(symbol) > 0 {
+            return Some(hazard);
+        }
+    }
+    if count("C") > 0 && count("C") == count("N") && count("O") == 0 && count("S") == 0 {
+        return Some("cyanide (highly toxic; never acidify)");
+    }
+    if count("F") > 0 && count("H") > 0 && only(&["H", "F"]) {
+        return Some("hydrogen fluoride (corrosive, toxic through skin)");
+    }
+    None
+}
+
+/// One caution line for a reaction, or `None` when none of the named hazards is involved.
+pub fn caution(reaction: &Reaction) -> Option<String> {
+    let mut hazards: Vec<&str> = Vec::new();
+    for entry in reaction.entries() {
+        if let Some(h) = hazard_of(&entry.species, entry.nu.is_positive())
+            && !hazards.contains(&h)
+        {
+            hazards.push(h);
+        }
+    }
+    if hazards.is_empty() {
+        return None;
+    }
+    Some(format!(
+        "caution: involves {}; these are ideal figures, not a procedure: follow local codes and the safety data sheets of every material",
+        hazards.join(", ")
+    ))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn couple(text: &str, e0: f64) -> Couple {
+        Couple::new(text, e0).unwrap()
+    }
+
+    #[test]
+    fn electrons_scale_to_their_least_common_multiple() {
+        // Values from data/potentials.toml (Harris App. H): Ag+/Ag 0.7996, Zn2+/Zn -0.762.
+        let cell = combine(
+            &couple("Ag+ + e- -> Ag(s)", 0.7996),
+            &couple("Zn2+ + 2 e- -> Zn(s)", -0.762),
+            CellOptions::default(),
+        )
+        .unwrap();
+        assert_eq!(cell.net.to_string(), "2 Ag+ + Zn(s) -> 2 Ag(s) + Zn2+");
+        assert_eq!(cell.electrons, BigInt::from(2));
+    }
+
+    #[test]
+    fn acid_and_base_halves_need_a_medium() {
+        let o2 = couple("O2(g) + 4 H+ + 4 e- -> 2 H2O(l)", 1.2291);
+        let zn = couple("Zn(OH)4^2- + 2 e- -> Zn(s) + 4 OH-", -1.199);
+        assert!(matches!(
+            combine(&o2, &zn, CellOptions::default()),
+            Err(CellError::MixedMedia { .. })
+        ));
+        let in_base = in_medium(&o2, Medium::Base).unwrap();
+        assert_eq!(
+            in_base.reaction.to_string(),
+            "O2(g) + 4 e- + 2 H2O(l) -> 4 OH-"
+        );
+        // O2/OH- is 0.401 V in OpenStax App. L: the conversion must land there.
+        assert!(
+            (in_base.e0_volts - 0.401).abs() < 0.001,
+            "{}",
+            in_base.e0_volts
+        );
+    }
+}

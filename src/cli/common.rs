@@ -1,0 +1,120 @@
+//! Pieces the table, cell and derive commands share: loading tables, naming couples, scales.
+
+use super::{EXIT_FINDINGS, EXIT_USAGE};
+use couplet::scale::Scale;
+use couplet::table::{Couple, CoupleFile, LookupError, Medium, Origin, Table};
+use std::path::PathBuf;
+
+/// Options every potential command takes.
+#[derive(clap::Args)]
+pub struct TableArgs {
+    /// Also read couples from this file (TOML [[couple]] tables, or .csv); repeatable; an id
+    /// already present replaces the earlier couple
+    #[arg(long = "table", value_name = "FILE")]
+    pub tables: Vec<PathBuf>,
+    /// Print potentials against this reference: she, rhe (with --ph), sce, ag-agcl-sat-kcl,
+    /// ag-agcl-3m-kcl, hg-hgo-1m-koh, hg-hg2so4-sat-k2so4, li-li+, … (see docs)
+    #[arg(long, value_name = "SCALE", default_value = "she")]
+    pub scale: String,
+    /// pH of the solution, for --scale rhe
+    #[arg(long)]
+    pub ph: Option<f64>,
+}
+
+/// Built-in table plus the user's files; notes about replaced ids go to standard error.
+pub fn load_table(args: &TableArgs) -> Result<Table, u8> {
+    let mut table = Table::builtin();
+    for path in &args.tables {
+        let file = match CoupleFile::read(path) {
+            Ok(file) => file,
+            Err(error) => {
+                eprintln!("error: cannot read {}: {error}", path.display());
+                return Err(EXIT_USAGE);
+            }
+        };
+        if let Err(error) = table.add_file(&file, Origin::File(path.clone())) {
+            eprintln!("{}", error.render());
+            return Err(EXIT_FINDINGS);
+        }
+    }
+    for replaced in table.overrides() {
+        eprintln!(
+            "note: couple '{}' from {} replaces the one from {}",
+            replaced.id, replaced.by, replaced.replaced
+        );
+    }
+    Ok(table)
+}
+
+/// The scale asked for, or an error printed.
+pub fn scale(args: &TableArgs) -> Result<Scale, u8> {
+    Scale::from_name(&args.scale, args.ph).map_err(|error| {
+        eprintln!("error: {error}");
+        EXIT_USAGE
+    })
+}
+
+/// Prints why a lookup failed and returns the exit status.
+pub fn report_lookup(error: &LookupError) -> u8 {
+    match error {
+        LookupError::Notation(e) => {
+            eprintln!("{}", e.render());
+            super::parse::error_status(e)
+        }
+        LookupError::Ambiguous { candidates, .. } => {
+            eprintln!("error: {error}");
+            for c in candidates {
+                eprintln!(
+                    "  {:<24} {:>8.4} V  {:<7}  {}",
+                    c.id.as_deref().unwrap_or("(no id)"),
+                    c.e0_volts,
+                    c.medium.name(),
+                    c.reaction
+                );
+            }
+            EXIT_FINDINGS
+        }
+        _ => {
+            eprintln!("error: {error}");
+            EXIT_FINDINGS
+        }
+    }
+}
+
+/// A couple named by id, `Ox/Red` or half-reaction; a typed half-reaction with its own E°
+/// (`e0`) need not be in the table.
+pub fn resolve(
+    table: &Table,
+    query: &str,
+    e0_volts: Option<f64>,
+    medium: Option<Medium>,
+) -> Result<Couple, u8> {
+    if let Some(e0) = e0_volts {
+        if !couplet::table::is_reaction_text(query) {
+            eprintln!(
+                "error: a potential given on the command line needs a typed half-reaction, not '{query}'"
+            );
+            return Err(EXIT_USAGE);
+        }
+        return Couple::new(query, e0).map_err(|error| {
+            match &error {
+                couplet::table::CoupleError::Notation(e) => eprintln!("{}", e.render()),
+                _ => eprintln!("error: {error}"),
+            }
+            match error {
+                couplet::table::CoupleError::Notation(e) => super::parse::error_status(&e),
+                _ => EXIT_FINDINGS,
+            }
+        });
+    }
+    table
+        .find(query, medium)
+        .cloned()
+        .map_err(|e| report_lookup(&e))
+}
+
+/// Reads `acid`/`base`/`neutral`.
+pub fn medium_arg(text: &str) -> Result<Medium, String> {
+    Medium::from_name(text)
+        .ok_or_else(|| format!("medium must be acid, base or neutral, not '{text}'"))
+}

@@ -1,0 +1,667 @@
+//! Reading couple files (TOML `[[couple]]` tables or CSV with the same columns) into records
+//! that remember where every value was written.
+//!
+//! This is the only reader of couple files: the loaded table and the data-file checker both
+//! start from [`CoupleFile`]. It judges form only (syntax, value types, required keys); the
+//! chemistry of an entry is left to whoever reads the records, so a checker can report every
+//! fault in a file instead of stopping at the first.
+
+use crate::notation::Span;
+use std::borrow::Cow;
+use toml::Spanned;
+use toml::de::{DeTable, DeValue};
+
+/// The keys a couple may have, in the documented order.
+pub const KNOWN_KEYS: [&str; 7] = ["id", "reaction", "e0", "dedt", "medium", "source", "note"];
+
+/// Keys every couple must have.
+pub const REQUIRED_KEYS: [&str; 2] = ["reaction", "e0"];
+
+/// A value and the byte span where it was written in the file.
+///
+/// For a TOML string the span includes the quotes; [`Field::content_start`] gives the first
+/// byte of the text itself when it can be mapped one to one.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Field<T> {
+    /// The value as read.
+    pub value: T,
+    /// Where it was written (for TOML strings, quotes included).
+    pub span: Span,
+    /// Byte offset in the file of the first character of a string value, when every byte of
+    /// the value appears literally in the file (no escapes), so that an offset inside the
+    /// value maps to `content_start + offset`.
+    pub content_start: Option<usize>,
+}
+
+impl<T> Field<T> {
+    /// The file offset of byte `offset` inside a string value, falling back to the start of
+    /// the span when the value cannot be mapped one to one (escapes, CSV quoting).
+    pub fn file_offset(&self, offset: usize) -> usize {
+        match self.content_start {
+            Some(start) => start + offset,
+            None => self.span.start,
+        }
+    }
+}
+
+/// Which of the two couple-file formats.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum FileFormat {
+    /// `[[couple]]` tables.
+    Toml,
+    /// A header row naming the columns, one couple per row; `#` starts a comment line.
+    Csv,
+}
+
+impl FileFormat {
+    /// CSV for a `.csv` file name, TOML otherwise.
+    pub fn from_path(path: &std::path::Path) -> FileFormat {
+        match path.extension().and_then(|e| e.to_str()) {
+            Some(ext) if ext.eq_ignore_ascii_case("csv") => FileFormat::Csv,
+            _ => FileFormat::Toml,
+        }
+    }
+
+    /// `toml` or `csv`.
+    pub fn name(self) -> &'static str {
+        match self {
+            FileFormat::Toml => "toml",
+            FileFormat::Csv => "csv",
+        }
+    }
+}
+
+/// One couple as written: every known key with its span, and the keys nobody knows.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct CoupleRecord {
+    /// Position among the couples of the file, from 0.
+    pub index: usize,
+    /// The whole entry (TOML table or CSV row).
+    pub span: Span,
+    /// `id`: a unique name for the couple.
+    pub id: Option<Field<String>>,
+    /// `reaction`: the half-reaction text, not yet parsed.
+    pub reaction: Option<Field<String>>,
+    /// `e0`: standard potential in volts vs SHE at 298.15 K.
+    pub e0_volts: Option<Field<f64>>,
+    /// `dedt`: temperature coefficient in mV/K.
+    pub dedt_millivolts_per_kelvin: Option<Field<f64>>,
+    /// `medium`: the text as written (`acid`, `base`, `neutral`); judged by the reader of the
+    /// record.
+    pub medium: Option<Field<String>>,
+    /// `source`: the publication.
+    pub source: Option<Field<String>>,
+    /// `note`: free text.
+    pub note: Option<Field<String>>,
+    /// Keys other than the known ones, with the span of the key.
+    pub unknown_keys: Vec<Field<String>>,
+}
+
+/// What kind of problem a file has with its form.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+#[non_exhaustive]
+pub enum ProblemKind {
+    /// The text is not valid TOML, CSV or UTF-8.
+    Syntax,
+    /// A known key holds a value of the wrong type (`e0 = "0.34"`).
+    WrongType,
+    /// A couple lacks `reaction` or `e0`.
+    MissingKey,
+}
+
+impl ProblemKind {
+    /// Stable name: `syntax`, `wrong_type`, `missing_key`.
+    pub fn name(self) -> &'static str {
+        match self {
+            ProblemKind::Syntax => "syntax",
+            ProblemKind::WrongType => "wrong_type",
+            ProblemKind::MissingKey => "missing_key",
+        }
+    }
+}
+
+/// A problem with the form of a file, located by byte span.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[error("{message}")]
+pub struct ReadProblem {
+    /// What kind.
+    pub kind: ProblemKind,
+    /// One line, lower-case, no trailing period.
+    pub message: String,
+    /// Where in the file.
+    pub span: Span,
+    /// The couple it concerns (index into [`CoupleFile::records`]), if any.
+    pub record: Option<usize>,
+}
+
+/// A couple file as read: its text, its records and the problems with its form.
+#[derive(Clone, Debug)]
+pub struct CoupleFile {
+    /// Which format it was read as.
+    pub format: FileFormat,
+    /// The text (invalid UTF-8 replaced, so spans stay valid for rendering).
+    pub text: String,
+    /// The couples, in file order.
+    pub records: Vec<CoupleRecord>,
+    /// Problems of form, in file order.
+    pub problems: Vec<ReadProblem>,
+    /// Top-level keys other than `couple` (TOML) or columns other than the known ones (CSV).
+    pub unknown_keys: Vec<Field<String>>,
+}
+
+impl CoupleFile {
+    /// Reads bytes in the given format. Invalid UTF-8 is a syntax problem at the first bad
+    /// byte, and nothing further is read.
+    pub fn from_bytes(bytes: &[u8], format: FileFormat) -> CoupleFile {
+        match std::str::from_utf8(bytes) {
+            Ok(text) => CoupleFile::from_text(text, format),
+            Err(error) => {
+                let at = error.valid_up_to();
+                CoupleFile {
+                    format,
+                    text: String::from_utf8_lossy(bytes).into_owned(),
+                    records: Vec::new(),
+                    problems: vec![ReadProblem {
+                        kind: ProblemKind::Syntax,
+                        message: format!("the file is not valid UTF-8 (byte {at})"),
+                        span: Span::new(at, at + 1),
+                        record: None,
+                    }],
+                    unknown_keys: Vec::new(),
+                }
+            }
+        }
+    }
+
+    /// Reads text in the given format.
+    pub fn from_text(text: &str, format: FileFormat) -> CoupleFile {
+        match format {
+            FileFormat::Toml => read_toml(text),
+            FileFormat::Csv => read_csv(text),
+        }
+    }
+
+    /// Reads a file from disk, choosing the format from its extension.
+    pub fn read(path: &std::path::Path) -> std::io::Result<CoupleFile> {
+        let bytes = std::fs::read(path)?;
+        Ok(CoupleFile::from_bytes(&bytes, FileFormat::from_path(path)))
+    }
+
+    /// 1-based line and column (in characters) of a byte offset.
+    pub fn line_column(&self, offset: usize) -> (usize, usize) {
+        line_column(&self.text, offset)
+    }
+}
+
+/// 1-based line and column (in characters) of byte `offset` in `text`.
+pub fn line_column(text: &str, offset: usize) -> (usize, usize) {
+    let mut offset = offset.min(text.len());
+    while !text.is_char_boundary(offset) {
+        offset -= 1;
+    }
+    let before = &text[..offset];
+    let line = before.matches('\n').count() + 1;
+    let line_start = before.rfind('\n').map_or(0, |i| i + 1);
+    (line, text[line_start..offset].chars().count() + 1)
+}
+
+fn span_of<T>(spanned: &Spanned<T>) -> Span {
+    let range = spanned.span();
+    Span::new(range.start, range.end)
+}
+
+/// Where the characters of a quoted TOML string start, if the value is written literally.
+fn literal_content_start(text: &str, span: Span, value: &str) -> Option<usize> {
+    let raw = text.get(span.start..span.end)?;
+    for quote in ["\"\"\"", "'''", "\"", "'"] {
+        if let Some(inner) = raw.strip_prefix(quote).and_then(|r| r.strip_suffix(quote)) {
+            if inner == value {
+                return Some(span.start + quote.len());
+            }
+            // A multi-line string drops a newline right after the opening quotes.
+            if quote.len() == 3 {
+                for newline in ["\r\n", "\n"] {
+                    if inner.strip_prefix(newline) == Some(value) {
+                        return Some(span.start + quote.len() + newline.len());
+                    }
+                }
+            }
+            return None;
+        }
+    }
+    None
+}
+
+/// A TOML float or integer as f64 (TOML allows `_` between digits, `inf` and `nan`).
+fn toml_number(value: &DeValue<'_>) -> Option<f64> {
+    let (text, radix) = match value {
+        DeValue::Float(f) => (f.as_str(), 10),
+        DeValue::Integer(i) => (i.as_str(), i.radix()),
+        _ => return None,
+    };
+    let cleaned: String = text.chars().filter(|&c| c != '_').collect();
+    if radix != 10 {
+        let digits = cleaned.get(2..).unwrap_or("");
+        return i64::from_str_radix(digits, radix).ok().map(|n| n as f64);
+    }
+    match cleaned.trim_start_matches('+') {
+        "inf" => Some(f64::INFINITY),
+        "-inf" => Some(f64::NEG_INFINITY),
+        "nan" | "-nan" => Some(f64::NAN),
+        number => number.parse().ok(),
+    }
+}
+
+fn read_toml(text: &str) -> CoupleFile {
+    let mut file = CoupleFile {
+        format: FileFormat::Toml,
+        text: text.to_owned(),
+        records: Vec::new(),
+        problems: Vec::new(),
+        unknown_keys: Vec::new(),
+    };
+    let (document, errors) = DeTable::parse_recoverable(text);
+    for error in &errors {
+        let range = error.span().unwrap_or(0..0);
+        file.problems.push(ReadProblem {
+            kind: ProblemKind::Syntax,
+            message: first_line_lower(error.message()),
+            span: Span::new(range.start, range.end),
+            record: None,
+        });
+    }
+    for (key, value) in document.get_ref().iter() {
+        if key.get_ref() != "couple" {
+            file.unknown_keys.push(string_field(text, key));
+            continue;
+        }
+        let Some(array) = value.get_ref().as_array() else {
+            file.problems.push(ReadProblem {
+                kind: ProblemKind::WrongType,
+                message: format!(
+                    "'couple' must be an array of tables ([[couple]]), found {}",
+                    value.get_ref().type_str()
+                ),
+                span: span_of(value),
+                record: None,
+            });
+            continue;
+        };
+        for item in array.iter() {
+            let index = file.records.len();
+            match item.get_ref().as_table() {
+                Some(table) => {
+                    let record = toml_record(text, index, span_of(item), table, &mut file);
+                    file.records.push(record);
+                }
+                None => file.problems.push(ReadProblem {
+                    kind: ProblemKind::WrongType,
+                    message: format!(
+                        "each couple must be a table, found {}",
+                        item.get_ref().type_str()
+                    ),
+                    span: span_of(item),
+                    record: None,
+                }),
+            }
+        }
+    }
+    file
+}
+
+fn string_field(text: &str, key: &Spanned<Cow<'_, str>>) -> Field<String> {
+    let span = span_of(key);
+    Field {
+        value: key.get_ref().to_string(),
+        content_start: literal_content_start(text, span, key.get_ref())
+            .or(Some(span.start).filter(|_| text.get(span.start..span.end) == Some(key.get_ref()))),
+        span,
+    }
+}
+
+fn toml_record(
+    text: &str,
+    index: usize,
+    span: Span,
+    table: &DeTable<'_>,
+    file: &mut CoupleFile,
+) -> CoupleRecord {
+    let mut record = CoupleRecord {
+        index,
+        span,
+        ..CoupleRecord::default()
+    };
+    let wrong_type = |key: &str, expected: &str, value: &Spanned<DeValue<'_>>| ReadProblem {
+        kind: ProblemKind::WrongType,
+        message: format!(
+            "'{key}' must be {expected}, found {}",
+            value.get_ref().type_str()
+        ),
+        span: span_of(value),
+        record: Some(index),
+    };
+    let mut problems = Vec::new();
+    for (key, value) in table.iter() {
+        let name = key.get_ref().as_ref();
+        let value_span = span_of(value);
+        match name {
+            "e0" | "dedt" => match toml_number(value.get_ref()) {
+                Some(number) => {
+                    let field = Some(Field {
+                        value: number,
+                        span: value_span,
+                        content_start: None,
+                    });
+                    if name == "e0" {
+                        record.e0_volts = field;
+                    } else {
+                        record.dedt_millivolts_per_kelvin = field;
+                    }
+                }
+                None => problems.push(wrong_type(name, "a number", value)),
+            },
+            "id" | "reaction" | "medium" | "source" | "note" => match value.get_ref().as_str() {
+                Some(string) => {
+                    let field = Some(Field {
+                        value: string.to_owned(),
+                        span: value_span,
+                        content_start: literal_content_start(text, value_span, string),
+                    });
+                    match name {
+                        "id" => record.id = field,
+                        "reaction" => record.reaction = field,
+                        "medium" => record.medium = field,
+                        "source" => record.source = field,
+                        _ => record.note = field,
+                    }
+                }
+                None => problems.push(wrong_type(name, "a string", value)),
+            },
+            _ => record.unknown_keys.push(string_field(text, key)),
+        }
+    }
+    for key in REQUIRED_KEYS {
+        if !table.iter().any(|(k, _)| k.get_ref() == key) {
+            problems.push(missing_key(key, index, span));
+        }
+    }
+    file.problems.extend(problems);
+    record
+}
+
+fn missing_key(key: &str, index: usize, span: Span) -> ReadProblem {
+    // Point at the start of the entry only: a whole table is many lines.
+    ReadProblem {
+        kind: ProblemKind::MissingKey,
+        message: format!("couple {} has no '{key}'", index + 1),
+        span: Span::new(span.start, span.start + 1),
+        record: Some(index),
+    }
+}
+
+fn first_line_lower(message: &str) -> String {
+    let line = message.lines().next().unwrap_or("").trim();
+    let line = line.trim_end_matches('.');
+    let mut chars = line.chars();
+    match chars.next() {
+        Some(first) => first.to_lowercase().chain(chars).collect(),
+        None => "invalid TOML".to_owned(),
+    }
+}
+
+/// Byte spans of the fields of one CSV row starting at `start` (standard quoting: `""` inside
+/// quotes is a quote). Returns the spans of the field contents and the end of the row.
+fn csv_field_spans(text: &str, start: usize) -> (Vec<(Span, Option<usize>)>, usize) {
+    let bytes = text.as_bytes();
+    let mut spans = Vec::new();
+    let mut i = start;
+    loop {
+        let field_start = i;
+        let mut quoted_clean = true;
+        if bytes.get(i) == Some(&b'"') {
+            i += 1;
+            while i < bytes.len() {
+                if bytes[i] == b'"' {
+                    if bytes.get(i + 1) == Some(&b'"') {
+                        quoted_clean = false;
+                        i += 2;
+                        continue;
+                    }
+                    i += 1;
+                    break;
+                }
+                i += 1;
+            }
+            while i < bytes.len() && !matches!(bytes[i], b',' | b'\n' | b'\r') {
+                i += 1;
+            }
+            let content = (quoted_clean && i > field_start + 1).then_some(field_start + 1);
+            spans.push((Span::new(field_start, i), content));
+        } else {
+            while i < bytes.len() && !matches!(bytes[i], b',' | b'\n' | b'\r') {
+                i += 1;
+            }
+            spans.push((Span::new(field_start, i), Some(field_start)));
+        }
+        if bytes.get(i) == Some(&b',') {
+            i += 1;
+            continue;
+        }
+        return (spans, i);
+    }
+}
+
+fn read_csv(text: &str) -> CoupleFile {
+    let mut file = CoupleFile {
+        format: FileFormat::Csv,
+        text: text.to_owned(),
+        records: Vec::new(),
+        problems: Vec::new(),
+        unknown_keys: Vec::new(),
+    };
+    let mut reader = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .comment(Some(b'#'))
+        .from_reader(text.as_bytes());
+    let mut header: Option<Vec<String>> = None;
+    for row in reader.records() {
+        let row = match row {
+            Ok(row) => row,
+            Err(error) => {
+                let at = error.position().map_or(0, |p| p.byte() as usize);
+                file.problems.push(ReadProblem {
+                    kind: ProblemKind::Syntax,
+                    message: first_line_lower(&error.to_string()),
+                    span: Span::new(at, at + 1),
+                    record: None,
+                });
+                break;
+            }
+        };
+        let start = row.position().map_or(0, |p| p.byte() as usize);
+        let (spans, end) = csv_field_spans(text, start);
+        let spans_fit = spans.len() == row.len();
+        let field_span = |i: usize| -> (Span, Option<usize>) {
+            if spans_fit {
+                spans[i]
+            } else {
+                (Span::new(start, end), None)
+            }
+        };
+        let Some(columns) = &header else {
+            let names: Vec<String> = row.iter().map(|c| c.trim().to_owned()).collect();
+            for (i, name) in names.iter().enumerate() {
+                if !KNOWN_KEYS.contains(&name.as_str()) {
+                    let (span, content_start) = field_span(i);
+                    file.unknown_keys.push(Field {
+                        value: name.clone(),
+                        span,
+                        content_start,
+                    });
+                }
+            }
+            for key in REQUIRED_KEYS {
+                if !names.iter().any(|n| n == key) {
+                    file.problems.push(ReadProblem {
+                        kind: ProblemKind::MissingKey,
+                        message: format!("the header row has no '{key}' column"),
+                        span: Span::new(start, end),
+                        record: None,
+                    });
+                }
+            }
+            header = Some(names);
+            continue;
+        };
+        let index = file.records.len();
+        let mut record = CoupleRecord {
+            index,
+            span: Span::new(start, end),
+            ..CoupleRecord::default()
+        };
+        if row.len() != columns.len() {
+            file.problems.push(ReadProblem {
+                kind: ProblemKind::Syntax,
+                message: format!(
+                    "row has {} fields, the header has {}",
+                    row.len(),
+                    columns.len()
+                ),
+                span: Span::new(start, end),
+                record: Some(index),
+            });
+        }
+        for (i, (name, cell)) in columns.iter().zip(row.iter()).enumerate() {
+            // An empty cell is an absent key: spreadsheets have no other way to leave one out.
+            if cell.trim().is_empty() {
+                continue;
+            }
+            let (span, content_start) = field_span(i);
+            let string = || {
+                Some(Field {
+                    value: cell.to_owned(),
+                    span,
+                    content_start,
+                })
+            };
+            match name.as_str() {
+                "id" => record.id = string(),
+                "reaction" => record.reaction = string(),
+                "medium" => record.medium = string(),
+                "source" => record.source = string(),
+                "note" => record.note = string(),
+                "e0" | "dedt" => match cell.trim().parse::<f64>() {
+                    Ok(number) => {
+                        let field = Some(Field {
+                            value: number,
+                            span,
+                            content_start: None,
+                        });
+                        if name == "e0" {
+                            record.e0_volts = field;
+                        } else {
+                            record.dedt_millivolts_per_kelvin = field;
+                        }
+                    }
+                    Err(_) => file.problems.push(ReadProblem {
+                        kind: ProblemKind::WrongType,
+                        message: format!("'{name}' must be a number, found '{}'", cell.trim()),
+                        span,
+                        record: Some(index),
+                    }),
+                },
+                _ => {}
+            }
+        }
+        for key in REQUIRED_KEYS {
+            let present = match key {
+                "reaction" => record.reaction.is_some(),
+                _ => {
+                    record.e0_volts.is_some()
+                        || file
+                            .problems
+                            .iter()
+                            .any(|p| p.record == Some(index) && p.kind == ProblemKind::WrongType)
+                }
+            };
+            if !present && columns.iter().any(|c| c == key) {
+                file.problems.push(missing_key(key, index, record.span));
+            }
+        }
+        file.records.push(record);
+    }
+    file
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn slice(file: &CoupleFile, span: Span) -> &str {
+        &file.text[span.start..span.end]
+    }
+
+    #[test]
+    fn toml_values_keep_their_spans() {
+        let text = "[[couple]]\nid = \"zn2+/zn\"\nreaction = \"Zn2+ + 2 e- -> Zn(s)\"\ne0 = -0.7618\ncolour = \"grey\"\n";
+        let file = CoupleFile::from_text(text, FileFormat::Toml);
+        assert!(file.problems.is_empty(), "{:?}", file.problems);
+        let record = &file.records[0];
+        let reaction = record.reaction.as_ref().unwrap();
+        assert_eq!(slice(&file, reaction.span), "\"Zn2+ + 2 e- -> Zn(s)\"");
+        assert_eq!(&text[reaction.file_offset(7)..reaction.file_offset(8)], "2");
+        let e0 = record.e0_volts.as_ref().unwrap();
+        assert_eq!(e0.value, -0.7618);
+        assert_eq!(slice(&file, e0.span), "-0.7618");
+        assert_eq!(record.unknown_keys[0].value, "colour");
+        assert_eq!(slice(&file, record.unknown_keys[0].span), "colour");
+    }
+
+    #[test]
+    fn toml_wrong_types_and_missing_keys_are_problems_not_failures() {
+        let text =
+            "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = \"0.80\"\n\n[[couple]]\ne0 = 0\n";
+        let file = CoupleFile::from_text(text, FileFormat::Toml);
+        assert_eq!(file.records.len(), 2);
+        let kinds: Vec<_> = file.problems.iter().map(|p| p.kind).collect();
+        assert_eq!(kinds, [ProblemKind::WrongType, ProblemKind::MissingKey]);
+        assert_eq!(slice(&file, file.problems[0].span), "\"0.80\"");
+        assert_eq!(file.records[1].e0_volts.as_ref().unwrap().value, 0.0);
+    }
+
+    #[test]
+    fn toml_syntax_errors_are_located() {
+        let text = "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\ne0 = 0.7996\n";
+        let file = CoupleFile::from_text(text, FileFormat::Toml);
+        let problem = &file.problems[0];
+        assert_eq!(problem.kind, ProblemKind::Syntax);
+        assert_eq!(file.line_column(problem.span.start).0, 2);
+    }
+
+    #[test]
+    fn invalid_utf8_is_a_syntax_problem_at_the_byte() {
+        let file = CoupleFile::from_bytes(b"[[couple]]\nid = \"\xff\"\n", FileFormat::Toml);
+        assert_eq!(file.problems[0].kind, ProblemKind::Syntax);
+        assert_eq!(file.problems[0].span.start, 17);
+    }
+
+    #[test]
+    fn csv_rows_read_like_toml_tables() {
+        let text = "# our own test rows\nid,reaction,e0,colour\nag+/ag,\"Ag+ + e- -> Ag(s)\",0.7996,x\nbad,\"Cu2+ + 2 e- -> Cu(s)\",abc,\n";
+        let file = CoupleFile::from_text(text, FileFormat::Csv);
+        assert_eq!(file.records.len(), 2);
+        assert_eq!(file.unknown_keys[0].value, "colour");
+        let reaction = file.records[0].reaction.as_ref().unwrap();
+        assert_eq!(reaction.value, "Ag+ + e- -> Ag(s)");
+        assert_eq!(slice(&file, reaction.span), "\"Ag+ + e- -> Ag(s)\"");
+        assert_eq!(
+            &text[reaction.file_offset(0)..reaction.file_offset(3)],
+            "Ag+"
+        );
+        assert_eq!(file.records[0].e0_volts.as_ref().unwrap().value, 0.7996);
+        assert_eq!(file.problems.len(), 1);
+        assert_eq!(file.problems[0].kind, ProblemKind::WrongType);
+        assert_eq!(slice(&file, file.problems[0].span), "abc");
+    }
+}

@@ -1,0 +1,322 @@
+//! The cell engine and the potential commands, against published values and facts of the
+//! trade (source beside each check).
+
+use assert_cmd::Command;
+use couplet::cell::{CellOptions, caution, combine, derive};
+use couplet::constants::FARADAY_COULOMBS_PER_MOL;
+use couplet::table::{Medium, Table};
+use num_bigint::BigInt;
+
+/// Combines two built-in couples (by id or Ox/Red) and checks the net reaction and E°cell (V)
+/// within `tolerance_volts`.
+fn check(cathode: &str, anode: &str, net: &str, e0_volts: f64, tolerance_volts: f64) {
+    let table = Table::builtin();
+    let cell = combine(
+        table.find(cathode, None).unwrap(),
+        table.find(anode, None).unwrap(),
+        CellOptions::default(),
+    )
+    .unwrap();
+    assert_eq!(cell.net.to_string(), net);
+    assert!(
+        (cell.e0_volts - e0_volts).abs() <= tolerance_volts,
+        "{cathode} | {anode}: {} V",
+        cell.e0_volts
+    );
+    assert!(cell.net.imbalance().is_balanced());
+}
+
+#[test]
+fn daniell_cell_is_one_point_one_volt() {
+    // Zn/Cu (Daniell) E° = 1.10 V: issue 5 and every general-chemistry text (common practice).
+    check(
+        "Cu2+/Cu",
+        "Zn2+/Zn",
+        "Cu2+ + Zn(s) -> Cu(s) + Zn2+",
+        1.10,
+        0.005,
+    );
+}
+
+#[test]
+fn lead_acid_cell_is_about_two_volts_and_six_make_twelve() {
+    // About 2 V per cell, six in series about 12 V (DOMAIN.md, common practice).
+    let table = Table::builtin();
+    let cell = combine(
+        table.find("PbO2/PbSO4", None).unwrap(),
+        table.find("PbSO4/Pb", None).unwrap(),
+        CellOptions::default(),
+    )
+    .unwrap();
+    assert_eq!(
+        cell.net.to_string(),
+        "PbO2(s) + 2 SO4^2- + 4 H+ + Pb(s) -> 2 PbSO4(s) + 2 H2O(l)"
+    );
+    assert_eq!(cell.electrons, BigInt::from(2));
+    assert!((cell.e0_volts - 2.0).abs() < 0.1, "{}", cell.e0_volts);
+    assert!((6.0 * cell.e0_volts - 12.0).abs() < 0.6);
+    assert!(caution(&cell.net).unwrap().contains("lead"));
+}
+
+#[test]
+fn alkaline_zinc_manganese_dioxide_cell_is_about_one_and_a_half_volts() {
+    // Zn/MnO2 alkaline about 1.5 V nominal (common practice); the thermodynamic E° to Mn2O3
+    // comes out a little lower, so the band is ±0.15 V.
+    check(
+        "MnO2/Mn2O3",
+        "ZnO/Zn",
+        "2 MnO2(s) + Zn(s) -> Mn2O3(s) + ZnO(s)",
+        1.5,
+        0.15,
+    );
+}
+
+#[test]
+fn free_energy_and_equilibrium_constant_follow_from_exact_constants() {
+    let table = Table::builtin();
+    let cell = combine(
+        table.find("cu2+/cu", None).unwrap(),
+        table.find("zn2+/zn", None).unwrap(),
+        CellOptions::default(),
+    )
+    .unwrap();
+    // F = 96485.33212 C/mol (CODATA 2018, exact product e·N_A).
+    assert!((FARADAY_COULOMBS_PER_MOL - 96_485.332_12).abs() < 1e-5);
+    let expected_dg = -2.0 * 96_485.332_12 * cell.e0_volts / 1000.0;
+    assert!((cell.delta_g0_kilojoules_per_mol - expected_dg).abs() < 1e-6);
+    // (RT/F) ln 10 = 0.0591593 V at 298.15 K (DOMAIN.md, from exact constants).
+    let expected_log10_k = 2.0 * cell.e0_volts / 0.059_159_3;
+    assert!((cell.log10_k - expected_log10_k).abs() < 1e-4);
+    assert!(cell.runs_as_written);
+}
+
+#[test]
+fn hydrogen_oxygen_cell_entropy_and_enthalpy_match_calorimetric_values() {
+    // 2 H2 + O2 -> 2 H2O(l): ΔS° = -326.6 J/(mol K) and ΔH° = -571.66 kJ/mol from the CODATA
+    // Key Values for Thermodynamics (Cox, Wagman & Medvedev 1989: S° H2O(l) 69.95, H2 130.680,
+    // O2 205.152 J/(mol K); ΔfH° H2O(l) -285.83 kJ/mol), values from memory. The engine gets
+    // them from E° and the tabulated dE°/dT of O2/H2O (Harris App. H, Bratsch 1989 lineage).
+    let table = Table::builtin();
+    let cell = combine(
+        table.find("o2/h2o", None).unwrap(),
+        table.find("h+/h2", None).unwrap(),
+        CellOptions {
+            temperature_kelvin: 308.15,
+            medium: None,
+        },
+    )
+    .unwrap();
+    let at = cell.at_temperature.as_ref().unwrap();
+    assert!((at.delta_s0_joules_per_mol_kelvin - (-326.6)).abs() < 1.0);
+    assert!((at.delta_h0_kilojoules_per_mol - (-571.66)).abs() < 0.5);
+    // E°(T) moves by dE°/dT·ΔT: -0.8456 mV/K × 10 K.
+    assert!((at.e0_volts - (1.2291 - 0.008_456)).abs() < 1e-9);
+    assert!(cell.notes.is_empty());
+}
+
+#[test]
+fn temperature_coefficients_agree_with_a_second_compilation() {
+    // Table dE°/dT (Harris App. H, main source Bratsch 1989) against the NBS-derived table
+    // (values listed in the second_check column of the project's reference potentials.csv):
+    // O2/H2O -0.846, Fe3+/Fe2+ 1.170, Cu+/Cu -0.754, Cu2+/Cu+ 0.776 mV/K.
+    let table = Table::builtin();
+    for (id, second) in [
+        ("o2/h2o", -0.846),
+        ("fe3+/fe2+", 1.170),
+        ("cu+/cu", -0.754),
+        ("cu2+/cu+", 0.776),
+    ] {
+        let dedt = table.by_id(id).unwrap().dedt_millivolts_per_kelvin.unwrap();
+        assert!((dedt - second).abs() <= 0.01, "{id}: {dedt} vs {second}");
+    }
+}
+
+#[test]
+fn far_temperatures_and_missing_coefficients_are_said() {
+    let table = Table::builtin();
+    let cell = combine(
+        table.find("PbO2/PbSO4", None).unwrap(),
+        table.find("PbSO4/Pb", None).unwrap(),
+        CellOptions {
+            temperature_kelvin: 330.0,
+            medium: None,
+        },
+    )
+    .unwrap();
+    assert!(cell.at_temperature.is_none());
+    assert!(cell.notes[0].contains("no dE°/dT"));
+    let cell = combine(
+        table.find("o2/h2o", None).unwrap(),
+        table.find("h+/h2", None).unwrap(),
+        CellOptions {
+            temperature_kelvin: 350.0,
+            medium: None,
+        },
+    )
+    .unwrap();
+    assert!(cell.notes[0].contains("rough guide"));
+}
+
+#[test]
+fn iron_three_to_metal_by_free_energy_addition() {
+    // Fe3+/Fe about -0.04 V (issue 5; PhysicsClassroom table -0.04 as listed in the reference
+    // potentials.csv); potentials do not simply add: (0.771 + 2(-0.44))/3.
+    let table = Table::builtin();
+    let derived = derive(&[
+        table.find("Fe3+/Fe2+", None).unwrap().clone(),
+        table.find("Fe2+/Fe", None).unwrap().clone(),
+    ])
+    .unwrap();
+    assert_eq!(derived.couple.reaction.to_string(), "Fe3+ + 3 e- -> Fe(s)");
+    assert!((derived.couple.e0_volts - (-0.04)).abs() < 0.005);
+}
+
+#[test]
+fn copper_two_to_metal_by_free_energy_addition() {
+    // Cu2+/Cu 0.339 V (Harris App. H) from Cu2+/Cu+ 0.161 and Cu+/Cu 0.518 (same source):
+    // Harris notes 0.518 + 0.161 = 2 × 0.339 + 0.001.
+    let table = Table::builtin();
+    let derived = derive(&[
+        table.find("Cu2+/Cu+", None).unwrap().clone(),
+        table.find("Cu+/Cu", None).unwrap().clone(),
+    ])
+    .unwrap();
+    assert_eq!(derived.couple.reaction.to_string(), "Cu2+ + 2 e- -> Cu(s)");
+    assert!((derived.couple.e0_volts - 0.339).abs() < 0.001);
+    // Derived the other way round: Fe3+/Fe2+ from Fe3+/Fe minus Fe2+/Fe is the reverse sum.
+    let back = derive(&[
+        table.find("Fe3+/Fe", None).unwrap().clone(),
+        table.find("Fe2+/Fe", None).unwrap().clone(),
+    ])
+    .unwrap();
+    assert_eq!(back.couple.reaction.to_string(), "Fe3+ + e- -> Fe2+");
+}
+
+#[test]
+fn base_forms_follow_from_acid_forms_through_kw() {
+    // O2/H2O 1.2291 V (Harris) written in base must give O2/OH- 0.401 V (OpenStax App. L).
+    let table = Table::builtin();
+    let cell = combine(
+        table.find("o2/h2o", None).unwrap(),
+        table.find("zno/zn", None).unwrap(),
+        CellOptions {
+            temperature_kelvin: 298.15,
+            medium: Some(Medium::Base),
+        },
+    )
+    .unwrap();
+    assert!((cell.cathode.e0_volts - 0.401).abs() < 0.001);
+    assert_eq!(cell.net.to_string(), "O2(g) + 2 Zn(s) -> 2 ZnO(s)");
+}
+
+fn couplet() -> Command {
+    Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+}
+
+#[test]
+fn cell_json_has_the_documented_fields() {
+    let output = couplet()
+        .args([
+            "cell",
+            "--cathode",
+            "Cu2+/Cu",
+            "--anode",
+            "zn2+/zn",
+            "--json",
+        ])
+        .output()
+        .unwrap();
+    assert!(output.status.success());
+    let value: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    for key in [
+        "cathode",
+        "anode",
+        "net",
+        "n",
+        "e0_V",
+        "delta_g0_kJ_per_mol",
+        "log10_k",
+        "temperature_K",
+        "scale",
+    ] {
+        assert!(value.get(key).is_some(), "{key}");
+    }
+    for key in ["id", "reaction", "e0_V", "n", "source"] {
+        assert!(value["cathode"].get(key).is_some(), "{key}");
+    }
+    assert_eq!(value["net"]["balanced"], "Cu2+ + Zn(s) -> Cu(s) + Zn2+");
+    assert_eq!(value["n"], 2);
+}
+
+#[test]
+fn ambiguous_couples_are_listed_with_exit_one() {
+    let output = couplet()
+        .args(["cell", "--cathode", "MnO4-/MnO2", "--anode", "Zn2+/Zn"])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(1));
+    let stderr = String::from_utf8(output.stderr).unwrap();
+    assert!(stderr.contains("mno4-/mno2-acid") && stderr.contains("mno4-/mno2-base"));
+}
+
+#[test]
+fn typed_half_reactions_take_a_given_potential() {
+    // Invented couple and potential for the test.
+    let output = couplet()
+        .args([
+            "cell",
+            "--cathode",
+            "Ag+ + e- -> Ag(s)",
+            "--cathode-e0",
+            "0.80",
+            "--anode",
+            "Zn2+/Zn",
+            "--json",
+        ])
+        .output()
+        .unwrap();
+    assert!(output.status.success());
+    let value: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    assert_eq!(value["net"]["balanced"], "2 Ag+ + Zn(s) -> 2 Ag(s) + Zn2+");
+    assert!((value["e0_V"].as_f64().unwrap() - 1.562).abs() < 1e-9);
+}
+
+#[test]
+fn user_table_overrides_are_announced() {
+    let dir = std::env::temp_dir().join(format!("couplet-table-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("mine.toml");
+    // Invented value for the test.
+    std::fs::write(
+        &path,
+        "[[couple]]\nid = \"zn2+/zn\"\nreaction = \"Zn2+ + 2 e- -> Zn(s)\"\ne0 = -0.70\n",
+    )
+    .unwrap();
+    let output = couplet()
+        .args(["table", "zn2+/zn", "--json", "--table"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    assert!(output.status.success());
+    assert!(
+        String::from_utf8(output.stderr)
+            .unwrap()
+            .contains("replaces")
+    );
+    let value: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    assert_eq!(value[0]["e0_V"], -0.70);
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+#[test]
+fn derive_json_lists_its_parts() {
+    let output = couplet()
+        .args(["derive", "Cu2+/Cu+", "Cu+/Cu", "--json"])
+        .output()
+        .unwrap();
+    assert!(output.status.success());
+    let value: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    assert_eq!(value["reaction"], "Cu2+ + 2 e- -> Cu(s)");
+    assert_eq!(value["n"], 2);
+    assert_eq!(value["from"].as_array().unwrap().len(), 2);
+}
