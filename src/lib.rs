@@ -21,6 +21,7 @@ pub mod capacity;
 pub mod cell;
 pub mod composition;
 pub mod constants;
+pub mod discharge;
 pub mod elements;
 pub mod export;
 pub mod nernst;

@@ -6,6 +6,7 @@ mod capacity;
 mod cell;
 mod common;
 mod derive;
+mod discharge;
 mod parse;
 mod table;
 
@@ -49,6 +50,8 @@ enum Command {
     Derive(derive::DeriveArgs),
     /// Theoretical capacity (mAh/g, Ah/kg) and specific energy (Wh/kg, Wh/L) of materials and cells
     Capacity(capacity::CapacityArgs),
+    /// Open-circuit voltage along a discharge from initial amounts, with CSV and SVG output
+    Discharge(discharge::DischargeArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -71,6 +74,7 @@ pub fn run() -> ExitCode {
         Command::Cell(args) => cell::run(&args),
         Command::Derive(args) => derive::run(&args),
         Command::Capacity(args) => capacity::run(&args),
+        Command::Discharge(args) => discharge::run(&args),
     };
     ExitCode::from(status)
 }

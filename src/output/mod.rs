@@ -4,6 +4,7 @@
 //! Outputs use the model and never the other way round: everything here takes computed
 //! values and renders them, with no chemistry of its own.
 
+pub mod csv;
 pub mod svg;
 
 use std::io::Write;

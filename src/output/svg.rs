@@ -6,6 +6,7 @@
 //! text (the same input gives the same bytes) whose labels are plain `<text>` elements in a
 //! generic font family: no system fonts are read and any viewer can render it.
 
+use crate::discharge::Discharge;
 use std::fmt::Write;
 
 /// One curve.
@@ -76,7 +77,60 @@ const PLOT_LEFT: f64 = 80.0;
 const PLOT_RIGHT: f64 = 730.0;
 const PLOT_TOP: f64 = 50.0;
 const PLOT_BOTTOM: f64 = 370.0;
-const LEGEND_ROW: f64 = 20.0;
+const LEGEND_ROW: f64 = 34.0;
+
+/// What a discharge plot puts along x.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum DischargeAxis {
+    /// State of charge, 1 (left) → 0 (right).
+    StateOfCharge,
+    /// Charge passed in Ah, 0 (left) → capacity (right).
+    Charge,
+}
+
+/// A plot of one or more discharge curves, E against state of charge or charge passed, each
+/// ending in a ring where its limiting reactant runs out (or where the curve stops).
+pub fn discharge_plot(title: &str, curves: &[(String, &Discharge)], axis: DischargeAxis) -> Plot {
+    let x_of = |p: &crate::discharge::DischargePoint| match axis {
+        DischargeAxis::StateOfCharge => p.state_of_charge,
+        DischargeAxis::Charge => p.charge_amp_hours,
+    };
+    let series = curves
+        .iter()
+        .map(|(label, curve)| Series {
+            label: label.clone(),
+            points: curve.points.iter().map(|p| (x_of(p), p.e_volts)).collect(),
+            marker: curve.points.last().map(|p| Marker {
+                x: x_of(p),
+                y: p.e_volts,
+                text: match &curve.stopped {
+                    None => format!("limiting: {} runs out", curve.limiting.ascii()),
+                    Some(_) => format!(
+                        "limiting: {}; curve stops early (see output)",
+                        curve.limiting.ascii()
+                    ),
+                },
+            }),
+        })
+        .collect();
+    let models: Vec<&str> = curves.iter().map(|(_, c)| c.gamma_model.name()).collect();
+    Plot {
+        title: title.to_owned(),
+        x_label: match axis {
+            DischargeAxis::StateOfCharge => {
+                "state of charge (1 = charged, 0 = limiting reactant used up)".to_owned()
+            }
+            DischargeAxis::Charge => "charge passed (Ah)".to_owned(),
+        },
+        y_label: "open-circuit voltage E (V)".to_owned(),
+        x_reversed: axis == DischargeAxis::StateOfCharge,
+        series,
+        footnote: Some(format!(
+            "Equilibrium (open-circuit) voltage from E = E° − (RT/nF) ln Q; γ model: {}. No overpotential or resistance.",
+            models.join(", ")
+        )),
+    }
+}
 
 /// Ticks at 1, 2 or 5 × 10^k covering `[low, high]`, about `target` of them.
 fn ticks(low: f64, high: f64, target: usize) -> (Vec<f64>, f64) {
@@ -144,7 +198,7 @@ pub fn render(plot: &Plot) -> Result<String, PlotError> {
     // A flat curve gets a 0.1 V window around it.
     let (y_low, y_high) = range(all().map(|p| p.1), 0.08, 0.1);
     let (x_ticks, x_step) = ticks(x_low, x_high, 8);
-    let (y_ticks, y_step) = ticks(y_low, y_high, 7);
+    let (y_ticks, y_step) = ticks(y_low, y_high, 9);
     let to_x = |x: f64| {
         let f = (x - x_low) / (x_high - x_low);
         let f = if plot.x_reversed { 1.0 - f } else { f };
@@ -282,17 +336,22 @@ pub fn render(plot: &Plot) -> Result<String, PlotError> {
             r#"<line x1="{PLOT_LEFT}" y1="{y:.1}" x2="{}" y2="{y:.1}" stroke="{colour}" stroke-width="2"{dash}/>"#,
             PLOT_LEFT + 36.0
         );
-        let text = match &s.marker {
-            Some(m) => format!("{} (○ {})", s.label, m.text),
-            None => s.label.clone(),
-        };
         let _ = writeln!(
             svg,
             r#"<text class="legend-entry" x="{}" y="{:.1}">{}</text>"#,
             PLOT_LEFT + 44.0,
             y + 4.5,
-            escape(&text)
+            escape(&s.label)
         );
+        if let Some(m) = &s.marker {
+            let _ = writeln!(
+                svg,
+                r##"<text class="legend-marker" x="{}" y="{:.1}" font-size="11" fill="#444444">○ {}</text>"##,
+                PLOT_LEFT + 44.0,
+                y + 19.0,
+                escape(&m.text)
+            );
+        }
     }
     if let Some(note) = &plot.footnote {
         let y = legend_top + LEGEND_ROW * plot.series.len() as f64 + 4.0;
