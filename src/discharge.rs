@@ -374,7 +374,13 @@ pub fn discharge(cell: &Cell, spec: &DischargeSpec) -> Result<Discharge, Dischar
     let mut stopped = None;
     let mut water_model_note = false;
     for step in 0..=spec.steps {
-        let xi = extent_end * step as f64 / spec.steps as f64;
+        // State of charge from the step count, so the ends are exactly 1 and 0.
+        let state_of_charge = (spec.steps - step) as f64 / spec.steps as f64;
+        let xi = if step == spec.steps {
+            extent_end
+        } else {
+            extent_end * step as f64 / spec.steps as f64
+        };
         let solvent = spec
             .solvent_kg
             .map(|kg| kg + water_nu * xi * water_kg_per_mol);
@@ -383,7 +389,7 @@ pub fn discharge(cell: &Cell, spec: &DischargeSpec) -> Result<Discharge, Dischar
                 water_model_note |= modelled_water;
                 points.push(DischargePoint {
                     extent_mol: xi,
-                    state_of_charge: 1.0 - xi / extent_end,
+                    state_of_charge,
                     charge_amp_hours: electrons * xi * AMP_HOURS_PER_MOL_ELECTRONS,
                     e_volts: e0 - thermal / electrons * ln_q,
                     ln_q,
@@ -393,10 +399,7 @@ pub fn discharge(cell: &Cell, spec: &DischargeSpec) -> Result<Discharge, Dischar
                 });
             }
             Err(reason) if step > 0 => {
-                stopped = Some(format!(
-                    "curve stops at soc {:.3}: {reason}",
-                    1.0 - xi / extent_end
-                ));
+                stopped = Some(format!("curve stops at soc {state_of_charge:.3}: {reason}"));
                 break;
             }
             Err(reason) => return Err(DischargeError::AtStart(reason)),
