@@ -491,6 +491,15 @@ pub fn cell_capacity(
                 .to_owned(),
         );
     }
+    if shares
+        .iter()
+        .any(|s| s.counted && s.role == MassRole::Electrolyte && s.species.charge() != 0)
+    {
+        notes.push(
+            "dissolved ions are counted by their own mass, without counter-ions or the water that dissolves them"
+                .to_owned(),
+        );
+    }
     let n = electrons.to_f64().unwrap_or(f64::NAN);
     let amp_hours_per_kg = milliamp_hours_per_gram(n, mass);
     let volume_known = missing.is_empty();

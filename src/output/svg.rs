@@ -113,7 +113,8 @@ pub fn discharge_plot(title: &str, curves: &[(String, &Discharge)], axis: Discha
             }),
         })
         .collect();
-    let models: Vec<&str> = curves.iter().map(|(_, c)| c.gamma_model.name()).collect();
+    let mut models: Vec<&str> = curves.iter().map(|(_, c)| c.gamma_model.name()).collect();
+    models.dedup();
     Plot {
         title: title.to_owned(),
         x_label: match axis {
@@ -126,7 +127,7 @@ pub fn discharge_plot(title: &str, curves: &[(String, &Discharge)], axis: Discha
         x_reversed: axis == DischargeAxis::StateOfCharge,
         series,
         footnote: Some(format!(
-            "Equilibrium (open-circuit) voltage from E = E° − (RT/nF) ln Q; γ model: {}. No overpotential or resistance.",
+            "Open-circuit E = E° − (RT/nF) ln Q; γ model: {}; no overpotential or resistance",
             models.join(", ")
         )),
     }
