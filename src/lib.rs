@@ -15,13 +15,20 @@
 //! ```
 #![deny(missing_docs)]
 
+pub mod activity;
 pub mod balance;
+pub mod capacity;
 pub mod cell;
 pub mod composition;
 pub mod constants;
+pub mod discharge;
 pub mod elements;
+pub mod export;
+pub mod nernst;
 pub mod notation;
+pub mod output;
 pub mod oxidation;
+pub mod quotient;
 pub mod reaction;
 pub mod scale;
 pub mod table;

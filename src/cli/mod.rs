@@ -2,9 +2,11 @@
 //! file and only calls the library and renders what it returns.
 
 mod balance;
+mod capacity;
 mod cell;
 mod common;
 mod derive;
+mod discharge;
 mod oxidation;
 mod parse;
 mod table;
@@ -49,6 +51,10 @@ enum Command {
     Derive(derive::DeriveArgs),
     /// Oxidation number of every element of a formula or ion, with the rule that gave it
     Oxidation(oxidation::OxidationArgs),
+    /// Theoretical capacity (mAh/g, Ah/kg) and specific energy (Wh/kg, Wh/L) of materials and cells
+    Capacity(capacity::CapacityArgs),
+    /// Open-circuit voltage along a discharge from initial amounts, with CSV and SVG output
+    Discharge(discharge::DischargeArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -71,6 +77,8 @@ pub fn run() -> ExitCode {
         Command::Cell(args) => cell::run(&args),
         Command::Derive(args) => derive::run(&args),
         Command::Oxidation(args) => oxidation::run(&args),
+        Command::Capacity(args) => capacity::run(&args),
+        Command::Discharge(args) => discharge::run(&args),
     };
     ExitCode::from(status)
 }

@@ -2,9 +2,14 @@
 //!
 //! Every expected value that comes from outside the project names its source beside it.
 
+mod activity;
 mod balance;
+mod capacity;
 mod cell;
+mod discharge;
 mod elements;
+mod export;
+mod nernst;
 mod notation;
 mod oxidation;
 mod table;

@@ -1,0 +1,316 @@
+//! `couplet capacity`: theoretical capacity of electrode materials and of a cell, with its
+//! specific energy on a stated mass basis and volumetric figures where densities are known.
+
+use super::common::{TableArgs, load_table, medium_arg, report_lookup, resolve};
+use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
+use couplet::capacity::{
+    Basis, CapacityError, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
+    half_reaction_materials,
+};
+use couplet::cell::{CellOptions, caution, combine};
+use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
+use couplet::notation::{Arrow, Style, parse_equation, parse_species};
+use couplet::reaction::Reaction;
+use couplet::table::{Medium, is_reaction_text};
+use serde_json::{Value, json};
+
+#[derive(clap::Args)]
+pub struct CapacityArgs {
+    /// A half-reaction, a couple (Ox/Red) or a table id; leave out and give --cathode and
+    /// --anode for a cell
+    #[arg(conflicts_with_all = ["cathode", "anode"], required_unless_present_all = ["cathode", "anode"])]
+    couple: Option<String>,
+    /// Cathode couple of a cell: an id, Ox/Red or a reduction half-reaction
+    #[arg(long, requires = "anode")]
+    cathode: Option<String>,
+    /// Anode couple of a cell, written as a reduction (it runs in reverse)
+    #[arg(long, requires = "cathode")]
+    anode: Option<String>,
+    /// E° (V vs SHE) of a typed cathode half-reaction that is not in the table
+    #[arg(long = "cathode-e0", allow_hyphen_values = true)]
+    cathode_e0: Option<f64>,
+    /// E° (V vs SHE) of a typed anode half-reaction that is not in the table
+    #[arg(long = "anode-e0", allow_hyphen_values = true)]
+    anode_e0: Option<f64>,
+    /// Write both halves for this solution: acid or base (converts with Kw)
+    #[arg(long, value_parser = medium_arg)]
+    medium: Option<Medium>,
+    /// Temperature in K for the cell voltage used in the energy (first order from dE°/dT)
+    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    temperature: f64,
+    /// Mass basis of the cell figures: active (electrode materials), with-electrolyte
+    /// (also consumed dissolved species and water) or all-reactants (gases too)
+    #[arg(long, default_value = "active", value_parser = basis_arg)]
+    basis: Basis,
+    /// Density of a species in g/cm3 (SPECIES=G_PER_CM3), repeatable; replaces the built-in
+    /// value from data/densities.toml
+    #[arg(long = "density", value_name = "SPECIES=G_PER_CM3")]
+    densities: Vec<String>,
+    #[command(flatten)]
+    table: TableArgs,
+    /// Print JSON: {"materials": [...], "cell": {...} | null}
+    #[arg(long)]
+    json: bool,
+}
+
+fn basis_arg(text: &str) -> Result<Basis, String> {
+    Basis::from_name(text).ok_or_else(|| {
+        format!("basis must be active, with-electrolyte or all-reactants, not '{text}'")
+    })
+}
+
+/// Reads `SPECIES=VALUE` into the built-in densities.
+fn densities(given: &[String]) -> Result<Densities, u8> {
+    let mut densities = Densities::builtin();
+    for item in given {
+        let Some((name, value)) = item.rsplit_once('=') else {
+            eprintln!("error: --density '{item}': expected SPECIES=G_PER_CM3");
+            return Err(EXIT_USAGE);
+        };
+        let species = match parse_species(name.trim()) {
+            Ok(s) => s,
+            Err(e) => {
+                eprintln!("error: --density '{item}': {}", e.message);
+                return Err(EXIT_USAGE);
+            }
+        };
+        let Ok(value) = value.trim().parse::<f64>() else {
+            eprintln!("error: --density '{item}': '{value}' is not a number");
+            return Err(EXIT_USAGE);
+        };
+        if let Err(e) = densities.insert(species, value, "given".to_owned()) {
+            eprintln!("error: --density '{item}': {e}");
+            return Err(EXIT_USAGE);
+        }
+    }
+    Ok(densities)
+}
+
+fn small_int(value: &num_bigint::BigInt) -> i64 {
+    value.to_string().parse().unwrap_or(0)
+}
+
+fn material_json(m: &MaterialCapacity) -> Value {
+    json!({
+        "species": m.species.ascii(),
+        "molar_mass_g_per_mol": m.molar_mass_g_per_mol,
+        "n": small_int(&m.electrons),
+        "mAh_per_g": m.milliamp_hours_per_gram,
+        // Extra fields; the four above are the stable schema.
+        "formula_units": small_int(&m.formula_units),
+        "side": m.side.name(),
+        "g_per_Ah": m.grams_per_amp_hour,
+        "density_g_per_cm3": m.density.as_ref().map(|d| d.grams_per_cm3),
+        "density_source": m.density.as_ref().map(|d| d.source.clone()),
+        "mAh_per_cm3": m.milliamp_hours_per_cm3,
+    })
+}
+
+fn cell_json(c: &CellCapacity) -> Value {
+    json!({
+        "basis": c.basis.name(),
+        "reaction": c.reaction.to_string(),
+        "mass_g_per_mol": c.mass_g_per_mol,
+        "n": small_int(&c.electrons),
+        "Ah_per_kg": c.amp_hours_per_kg,
+        "Wh_per_kg": c.watt_hours_per_kg,
+        // Extra fields; the six above are the stable schema.
+        "e_V": c.e_volts,
+        "g_per_Ah": c.grams_per_amp_hour,
+        "counted": c.shares.iter().filter(|s| s.counted).map(|s| s.species.ascii()).collect::<Vec<_>>(),
+        "not_counted": c.shares.iter().filter(|s| !s.counted).map(|s| s.species.ascii()).collect::<Vec<_>>(),
+        "Ah_per_L": c.amp_hours_per_litre,
+        "Wh_per_L": c.watt_hours_per_litre,
+        "missing_densities": c.missing_densities.iter().map(|s| s.ascii()).collect::<Vec<_>>(),
+        "notes": c.notes,
+    })
+}
+
+fn print_materials(materials: &[MaterialCapacity]) {
+    println!(
+        "{:<14} {:<15} {:>4} {:>11} {:>10} {:>9} {:>11}",
+        "material", "", "n", "M g/mol", "mAh/g", "g/Ah", "mAh/cm3"
+    );
+    for m in materials {
+        let n = if m.formula_units == 1.into() {
+            m.electrons.to_string()
+        } else {
+            format!("{}/{}", m.electrons, m.formula_units)
+        };
+        println!(
+            "{:<14} {:<15} {:>4} {:>11.3} {:>10.1} {:>9.3} {:>11}",
+            m.species.unicode(),
+            m.side.name(),
+            n,
+            m.molar_mass_g_per_mol,
+            m.milliamp_hours_per_gram,
+            m.grams_per_amp_hour,
+            m.milliamp_hours_per_cm3
+                .map_or_else(|| "-".to_owned(), |v| format!("{v:.0}"))
+        );
+        if m.assumed_solid {
+            println!(
+                "  note: {} has no state label: taken as a solid",
+                m.species.ascii()
+            );
+        }
+        if m.approximate_mass {
+            println!(
+                "  note: {} uses a mass number: its molar mass is approximate",
+                m.species.ascii()
+            );
+        }
+    }
+    println!("(mAh/g equals Ah/kg; n is electrons per formula unit; q = n·F/(3.6·M))");
+}
+
+fn print_cell(c: &CellCapacity) {
+    println!("basis    {}: {}", c.basis.name(), c.basis.description());
+    for s in &c.shares {
+        println!(
+            "  {} {:<12} {:<18} {:>10.3} g  {}",
+            if s.counted { "+" } else { " " },
+            format!("{} {}", s.coefficient, s.species.unicode()),
+            s.role.name(),
+            s.grams,
+            if s.counted { "counted" } else { "not counted" }
+        );
+    }
+    println!(
+        "mass     {:.3} g per mole of reaction (n = {})",
+        c.mass_g_per_mol, c.electrons
+    );
+    println!(
+        "capacity {:.1} Ah/kg  ({:.3} g/Ah)",
+        c.amp_hours_per_kg, c.grams_per_amp_hour
+    );
+    println!(
+        "energy   {:.0} Wh/kg  (at E = {:.4} V)",
+        c.watt_hours_per_kg, c.e_volts
+    );
+    match (c.amp_hours_per_litre, c.watt_hours_per_litre) {
+        (Some(ah), Some(wh)) => println!("volume   {ah:.0} Ah/L, {wh:.0} Wh/L"),
+        _ => println!(
+            "volume   no density for {} (give --density SPECIES=G_PER_CM3)",
+            c.missing_densities
+                .iter()
+                .map(|s| s.ascii())
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
+    }
+    for note in &c.notes {
+        println!("note: {note}");
+    }
+    println!("theoretical figures: no separator, case, current collector or unused electrolyte");
+}
+
+fn report(error: &CapacityError) -> u8 {
+    eprintln!("error: {error}");
+    EXIT_FINDINGS
+}
+
+pub fn run(args: &CapacityArgs) -> u8 {
+    let densities = match densities(&args.densities) {
+        Ok(d) => d,
+        Err(status) => return status,
+    };
+    let table = match load_table(&args.table) {
+        Ok(table) => table,
+        Err(status) => return status,
+    };
+    if let Some(query) = &args.couple {
+        // A typed half-reaction needs no potential for its capacity, so it need not be in the
+        // table.
+        let half = if is_reaction_text(query) {
+            match parse_equation(query) {
+                Ok(eq) => Reaction::from_equation(&eq),
+                Err(e) => {
+                    eprintln!("{}", e.render());
+                    return super::parse::error_status(&e);
+                }
+            }
+        } else {
+            match table.find(query, args.medium) {
+                Ok(c) => c.reaction.clone(),
+                Err(e) => return report_lookup(&e),
+            }
+        };
+        let materials = match half_reaction_materials(&half, &densities) {
+            Ok(m) => m,
+            Err(e) => return report(&e),
+        };
+        if args.json {
+            print_json(&json!({
+                "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
+                "cell": Value::Null,
+            }));
+        } else {
+            println!("half     {}", half.to_text(Style::Unicode, Arrow::Forward));
+            print_materials(&materials);
+        }
+        return EXIT_OK;
+    }
+    let (Some(cathode), Some(anode)) = (&args.cathode, &args.anode) else {
+        eprintln!("error: give a couple, or --cathode and --anode");
+        return EXIT_USAGE;
+    };
+    let cathode = match resolve(&table, cathode, args.cathode_e0, args.medium) {
+        Ok(c) => c,
+        Err(status) => return status,
+    };
+    let anode = match resolve(&table, anode, args.anode_e0, args.medium) {
+        Ok(c) => c,
+        Err(status) => return status,
+    };
+    let options = CellOptions {
+        temperature_kelvin: args.temperature,
+        medium: args.medium,
+    };
+    let cell = match combine(&cathode, &anode, options) {
+        Ok(cell) => cell,
+        Err(error) => {
+            eprintln!("error: {error}");
+            return EXIT_FINDINGS;
+        }
+    };
+    if !cell.runs_as_written {
+        eprintln!(
+            "error: E°cell = {:+.4} V: the reaction does not run as written and stores no energy; swap --cathode and --anode",
+            cell.e0_volts
+        );
+        return EXIT_FINDINGS;
+    }
+    let e_volts = cell
+        .at_temperature
+        .as_ref()
+        .map_or(cell.e0_volts, |t| t.e0_volts);
+    let figures = match cell_capacity(&cell.net, &cell.electrons, e_volts, args.basis, &densities) {
+        Ok(f) => f,
+        Err(e) => return report(&e),
+    };
+    let materials = cell_materials(&cell.net, &cell.electrons, &densities);
+    if args.json {
+        print_json(&json!({
+            "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
+            "cell": cell_json(&figures),
+        }));
+        return EXIT_OK;
+    }
+    println!(
+        "net      {}",
+        cell.net.to_text(Style::Unicode, Arrow::Forward)
+    );
+    println!("E°cell   {:+.4} V", cell.e0_volts);
+    for note in &cell.notes {
+        println!("note: {note}");
+    }
+    if !materials.is_empty() {
+        print_materials(&materials);
+    }
+    print_cell(&figures);
+    if let Some(line) = caution(&cell.net) {
+        println!("{line}");
+    }
+    EXIT_OK
+}

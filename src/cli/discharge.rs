@@ -1,0 +1,301 @@
+//! `couplet discharge`: open-circuit voltage of a cell along its discharge, from initial
+//! amounts, with CSV and SVG output written atomically.
+
+use super::common::{TableArgs, load_table, medium_arg, resolve};
+use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
+use couplet::activity::{ActivityModel, GammaModel};
+use couplet::cell::{CellOptions, caution, combine};
+use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
+use couplet::discharge::{Amount, Discharge, DischargeSpec, discharge};
+use couplet::notation::{Arrow, Species, Style, parse_species};
+use couplet::output::svg::{DischargeAxis, discharge_plot, render};
+use couplet::output::{csv::discharge_csv, write_atomically};
+use couplet::table::Medium;
+use serde_json::json;
+use std::path::PathBuf;
+
+#[derive(clap::Args)]
+pub struct DischargeArgs {
+    /// Cathode couple: an id, Ox/Red or a reduction half-reaction
+    #[arg(long)]
+    cathode: String,
+    /// Anode couple, written as a reduction (it runs in reverse)
+    #[arg(long)]
+    anode: String,
+    /// E° (V vs SHE) of a typed cathode half-reaction that is not in the table
+    #[arg(long = "cathode-e0", allow_hyphen_values = true)]
+    cathode_e0: Option<f64>,
+    /// E° (V vs SHE) of a typed anode half-reaction that is not in the table
+    #[arg(long = "anode-e0", allow_hyphen_values = true)]
+    anode_e0: Option<f64>,
+    /// Write both halves for this solution: acid or base (converts with Kw)
+    #[arg(long, value_parser = medium_arg)]
+    medium: Option<Medium>,
+    /// Initial amount SPECIES=VALUE in mol, or VALUEg in grams (Zn=10g); repeatable. A neutral
+    /// electrolyte (H2SO4=4, KOH=7) supplies its ions; reactants with no amount are in excess
+    #[arg(long = "amount", value_name = "SPECIES=VALUE", required = true)]
+    amounts: Vec<String>,
+    /// Mass of solvent water at the start, kg (needed when a dissolved species enters Q)
+    #[arg(long = "solvent-kg")]
+    solvent_kg: Option<f64>,
+    /// Activity model: ideal, debye-huckel, extended, davies or table
+    #[arg(long, default_value = "ideal")]
+    gamma: String,
+    /// Use the γ model beyond its documented range
+    #[arg(long)]
+    force: bool,
+    /// Pressure of a gas in bar, GAS=BAR (air: O2=0.21); gases not given are at 1 bar
+    #[arg(long = "pressure", value_name = "GAS=BAR")]
+    pressures: Vec<String>,
+    /// Temperature in K
+    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    temperature: f64,
+    /// Steps from charged to the end (points = steps + 1)
+    #[arg(long, default_value_t = 100)]
+    steps: usize,
+    /// Write the curve as CSV (columns soc, charge_Ah, e_V, …)
+    #[arg(long)]
+    csv: Option<PathBuf>,
+    /// Write an SVG plot of E against state of charge
+    #[arg(long)]
+    svg: Option<PathBuf>,
+    /// Plot against charge passed (Ah) instead of state of charge
+    #[arg(long = "plot-charge")]
+    plot_charge: bool,
+    #[command(flatten)]
+    table: TableArgs,
+    /// Print JSON (schema in docs-design.md)
+    #[arg(long)]
+    json: bool,
+}
+
+fn split_pair<'a>(option: &str, item: &'a str) -> Result<(Species, &'a str), u8> {
+    let Some((name, value)) = item.rsplit_once('=') else {
+        eprintln!("error: {option} '{item}': expected SPECIES=VALUE");
+        return Err(EXIT_USAGE);
+    };
+    match parse_species(name.trim()) {
+        Ok(s) => Ok((s, value.trim())),
+        Err(e) => {
+            eprintln!("error: {option} '{item}': {}", e.message);
+            Err(EXIT_USAGE)
+        }
+    }
+}
+
+fn number(option: &str, item: &str, text: &str) -> Result<f64, u8> {
+    text.parse::<f64>().map_err(|_| {
+        eprintln!("error: {option} '{item}': '{text}' is not a number");
+        EXIT_USAGE
+    })
+}
+
+fn amounts(items: &[String]) -> Result<Vec<(Species, Amount)>, u8> {
+    let mut out = Vec::new();
+    for item in items {
+        let (species, value) = split_pair("--amount", item)?;
+        let amount = if let Some(grams) = value.strip_suffix('g') {
+            Amount::Grams(number("--amount", item, grams.trim())?)
+        } else {
+            let mol = value.strip_suffix("mol").unwrap_or(value).trim();
+            Amount::Moles(number("--amount", item, mol)?)
+        };
+        out.push((species, amount));
+    }
+    Ok(out)
+}
+
+fn json_of(curve: &Discharge) -> serde_json::Value {
+    json!({
+        "reaction": curve.reaction,
+        "n": curve.electrons,
+        "e0_V": curve.e0_volts,
+        "temperature_K": curve.temperature_kelvin,
+        "gamma_model": curve.gamma_model.name(),
+        "limiting": curve.limiting.ascii(),
+        "excess": curve.excess.iter().map(|s| s.ascii()).collect::<Vec<_>>(),
+        "capacity_Ah": curve.capacity_amp_hours,
+        "energy_Wh": curve.energy_watt_hours,
+        "stopped": curve.stopped,
+        "assumptions": curve.assumptions,
+        "solutes": curve.solutes.iter().map(|s| s.ascii()).collect::<Vec<_>>(),
+        "points": curve.points.iter().map(|p| json!({
+            "soc": p.state_of_charge,
+            "charge_Ah": p.charge_amp_hours,
+            "e_V": p.e_volts,
+            "extent_mol": p.extent_mol,
+            "ln_q": p.ln_q,
+            "solvent_kg": p.solvent_kg,
+            "a_H2O": p.water_activity,
+            "molalities": p.molalities,
+        })).collect::<Vec<_>>(),
+    })
+}
+
+fn print_text(curve: &Discharge) {
+    println!("net       {}", curve.reaction);
+    println!(
+        "n         {}    E° {:+.4} V at {} K    γ model {}",
+        curve.electrons, curve.e0_volts, curve.temperature_kelvin, curve.gamma_model
+    );
+    println!(
+        "limiting  {} (runs out after {:.4} mol of reaction)",
+        curve.limiting.ascii(),
+        curve.extent_end_mol
+    );
+    if !curve.excess.is_empty() {
+        println!(
+            "excess    {}",
+            curve
+                .excess
+                .iter()
+                .map(|s| s.ascii())
+                .collect::<Vec<_>>()
+                .join(", ")
+        );
+    }
+    println!("{:>6} {:>12} {:>10}", "soc", "charge Ah", "E V");
+    let every = (curve.points.len() / 10).max(1);
+    for (i, p) in curve.points.iter().enumerate() {
+        if i % every == 0 || i + 1 == curve.points.len() {
+            println!(
+                "{:>6.3} {:>12.4} {:>10.4}",
+                p.state_of_charge, p.charge_amp_hours, p.e_volts
+            );
+        }
+    }
+    let mean = if curve.capacity_amp_hours > 0.0 {
+        curve.energy_watt_hours / curve.points.last().map_or(1.0, |p| p.charge_amp_hours)
+    } else {
+        f64::NAN
+    };
+    println!(
+        "capacity  {:.4} Ah    energy {:.4} Wh    mean E {:.4} V",
+        curve.capacity_amp_hours, curve.energy_watt_hours, mean
+    );
+    if let Some(reason) = &curve.stopped {
+        println!("note: {reason}");
+    }
+    for a in &curve.assumptions {
+        println!("assumed: {a}");
+    }
+    println!("open-circuit (equilibrium) voltages: no overpotential, resistance or self-discharge");
+}
+
+pub fn run(args: &DischargeArgs) -> u8 {
+    let Some(model) = GammaModel::from_name(&args.gamma) else {
+        eprintln!(
+            "error: --gamma must be ideal, debye-huckel, extended, davies or table, not '{}'",
+            args.gamma
+        );
+        return EXIT_USAGE;
+    };
+    let amounts = match amounts(&args.amounts) {
+        Ok(a) => a,
+        Err(status) => return status,
+    };
+    let mut pressures = Vec::new();
+    for item in &args.pressures {
+        let (gas, value) = match split_pair("--pressure", item) {
+            Ok(p) => p,
+            Err(status) => return status,
+        };
+        match number("--pressure", item, value) {
+            Ok(bar) => pressures.push((gas, bar)),
+            Err(status) => return status,
+        }
+    }
+    let table = match load_table(&args.table) {
+        Ok(table) => table,
+        Err(status) => return status,
+    };
+    let cathode = match resolve(&table, &args.cathode, args.cathode_e0, args.medium) {
+        Ok(c) => c,
+        Err(status) => return status,
+    };
+    let anode = match resolve(&table, &args.anode, args.anode_e0, args.medium) {
+        Ok(c) => c,
+        Err(status) => return status,
+    };
+    let cell = match combine(
+        &cathode,
+        &anode,
+        CellOptions {
+            temperature_kelvin: args.temperature,
+            medium: args.medium,
+        },
+    ) {
+        Ok(cell) => cell,
+        Err(error) => {
+            eprintln!("error: {error}");
+            return EXIT_FINDINGS;
+        }
+    };
+    let spec = DischargeSpec {
+        amounts,
+        solvent_kg: args.solvent_kg,
+        activity: ActivityModel {
+            model,
+            force: args.force,
+        },
+        pressures_bar: pressures,
+        steps: args.steps,
+    };
+    let curve = match discharge(&cell, &spec) {
+        Ok(curve) => curve,
+        Err(error) => {
+            eprintln!("error: {error}");
+            return EXIT_FINDINGS;
+        }
+    };
+    // Render everything before writing anything, so a rendering fault writes no file.
+    let svg = match &args.svg {
+        Some(_) => {
+            let axis = if args.plot_charge {
+                DischargeAxis::Charge
+            } else {
+                DischargeAxis::StateOfCharge
+            };
+            let label = format!(
+                "{}  (E° {:.3} V)",
+                cell.net.to_text(Style::Unicode, Arrow::Forward),
+                curve.e0_volts
+            );
+            match render(&discharge_plot(
+                "Open-circuit voltage along discharge",
+                &[(label, &curve)],
+                axis,
+            )) {
+                Ok(text) => Some(text),
+                Err(error) => {
+                    eprintln!("error: {error}");
+                    return EXIT_FINDINGS;
+                }
+            }
+        }
+        None => None,
+    };
+    for (path, text) in [
+        (
+            args.csv.as_ref(),
+            args.csv.as_ref().map(|_| discharge_csv(&curve)),
+        ),
+        (args.svg.as_ref(), svg),
+    ] {
+        if let (Some(path), Some(text)) = (path, text)
+            && let Err(error) = write_atomically(path, text.as_bytes())
+        {
+            eprintln!("error: cannot write {}: {error}", path.display());
+            return EXIT_USAGE;
+        }
+    }
+    if args.json {
+        print_json(&json_of(&curve));
+    } else {
+        print_text(&curve);
+        if let Some(line) = caution(&cell.net) {
+            println!("{line}");
+        }
+    }
+    EXIT_OK
+}
