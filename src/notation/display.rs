@@ -124,7 +124,7 @@ fn write_charge(out: &mut String, formula: &Formula, style: Style) {
                 }
                 out.push(sign);
             } else {
-                if !(lends && !shows_digits) {
+                if !lends || shows_digits {
                     out.push('^');
                 }
                 write_number(out, magnitude as u64, None);

@@ -27,7 +27,7 @@ fn options(medium: &str, electrons_allowed: bool) -> BalanceOptions {
 
 /// One side as (species without state label, coefficient), sorted: states and the order of
 /// added species are not part of what a balance says.
-fn side(terms: Vec<(String, BigInt)>) -> Vec<(String, BigInt)> {
+fn side(terms: Side) -> Side {
     let mut terms = terms;
     terms.sort();
     terms
@@ -46,7 +46,10 @@ fn identity(species: &couplet::notation::Species) -> String {
     format!("{} z{}", counts.join(" "), species.charge())
 }
 
-fn sides_of_reaction(reaction: &Reaction) -> (Vec<(String, BigInt)>, Vec<(String, BigInt)>) {
+/// One side of a reaction as (species identity, coefficient) pairs.
+type Side = Vec<(String, BigInt)>;
+
+fn sides_of_reaction(reaction: &Reaction) -> (Side, Side) {
     let r = reaction
         .reactants()
         .map(|(s, c)| (identity(s), c.to_integer()))
