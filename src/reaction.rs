@@ -166,6 +166,44 @@ impl Reaction {
 
     /// Recounts atoms of every element and the charge: products minus reactants.
     pub fn imbalance(&self) -> Imbalance {
+        if let Some(imbalance) = self.imbalance_in_machine_integers() {
+            return imbalance;
+        }
+        self.imbalance_in_rationals()
+    }
+
+    /// The recount when every ν is an integer that fits `i128` and no sum overflows (the usual
+    /// case for balanced reactions): the same sums, without normalising a rational at each
+    /// step. `None` sends the caller to the exact rational recount.
+    fn imbalance_in_machine_integers(&self) -> Option<Imbalance> {
+        let mut elements: Vec<(Element, i128)> = Vec::new();
+        let mut charge: i128 = 0;
+        for e in &self.entries {
+            if !e.nu.is_integer() {
+                return None;
+            }
+            let nu = i128::try_from(e.nu.numer()).ok()?;
+            charge = charge.checked_add(nu.checked_mul(i128::from(e.species.charge()))?)?;
+            for &(element, count) in e.species.composition.counts() {
+                let change = nu.checked_mul(i128::from(count))?;
+                match elements.iter_mut().find(|(el, _)| *el == element) {
+                    Some((_, total)) => *total = total.checked_add(change)?,
+                    None => elements.push((element, change)),
+                }
+            }
+        }
+        let whole = |n: i128| BigRational::from_integer(BigInt::from(n));
+        Some(Imbalance {
+            elements: elements
+                .into_iter()
+                .filter(|&(_, n)| n != 0)
+                .map(|(e, n)| (e, whole(n)))
+                .collect(),
+            charge: whole(charge),
+        })
+    }
+
+    fn imbalance_in_rationals(&self) -> Imbalance {
         let mut elements: Vec<(Element, BigRational)> = Vec::new();
         let mut charge = BigRational::zero();
         for e in &self.entries {
@@ -283,6 +321,18 @@ mod tests {
         );
         let r = reaction("4 H2 + 2 O2 -> 4 H2O");
         assert_eq!(r.in_lowest_integers().to_string(), "2 H2 + O2 -> 2 H2O");
+    }
+
+    #[test]
+    fn machine_integer_recount_agrees_with_the_rational_one() {
+        for text in [
+            "MnO4- + e- -> Mn2+",
+            "2 MnO4- + 5 H2C2O4 + 6 H+ -> 2 Mn2+ + 10 CO2 + 8 H2O",
+            "1/2 O2 + 2 H+ + 2 e- -> H2O",
+        ] {
+            let r = reaction(text);
+            assert_eq!(r.imbalance(), r.imbalance_in_rationals(), "{text}");
+        }
     }
 
     #[test]

@@ -90,7 +90,10 @@ impl IntegerMatrix {
 
 /// The integers elimination can run in: checked machine integers or big integers.
 trait Ring: Clone {
-    fn from_i128(value: i128) -> Self;
+    /// `None` when the value does not fit.
+    fn from_i128(value: i128) -> Option<Self>;
+    fn zero_value() -> Self;
+    fn into_i128(self) -> Option<i128>;
     fn is_zero(&self) -> bool;
     fn is_negative(&self) -> bool;
     /// `a·b − c·d`, `None` on overflow.
@@ -99,12 +102,49 @@ trait Ring: Clone {
     /// Division known to be exact.
     fn div_exact(&self, divisor: &Self) -> Self;
     fn negated(&self) -> Option<Self>;
-    fn into_big(self) -> BigInt;
+}
+
+impl Ring for i64 {
+    fn from_i128(value: i128) -> Option<Self> {
+        i64::try_from(value).ok()
+    }
+    fn zero_value() -> Self {
+        0
+    }
+    fn into_i128(self) -> Option<i128> {
+        Some(i128::from(self))
+    }
+    fn is_zero(&self) -> bool {
+        *self == 0
+    }
+    fn is_negative(&self) -> bool {
+        *self < 0
+    }
+    fn mul_sub(a: &Self, b: &Self, c: &Self, d: &Self) -> Option<Self> {
+        a.checked_mul(*b)?
+            .checked_sub(c.checked_mul(*d)?)
+            .filter(|&x| x != i64::MIN)
+    }
+    fn gcd(&self, other: &Self) -> Self {
+        Integer::gcd(self, other)
+    }
+    fn div_exact(&self, divisor: &Self) -> Self {
+        self / divisor
+    }
+    fn negated(&self) -> Option<Self> {
+        self.checked_neg()
+    }
 }
 
 impl Ring for i128 {
-    fn from_i128(value: i128) -> Self {
-        value
+    fn from_i128(value: i128) -> Option<Self> {
+        Some(value)
+    }
+    fn zero_value() -> Self {
+        0
+    }
+    fn into_i128(self) -> Option<i128> {
+        Some(self)
     }
     fn is_zero(&self) -> bool {
         *self == 0
@@ -129,14 +169,17 @@ impl Ring for i128 {
     fn negated(&self) -> Option<Self> {
         self.checked_neg()
     }
-    fn into_big(self) -> BigInt {
-        BigInt::from(self)
-    }
 }
 
 impl Ring for BigInt {
-    fn from_i128(value: i128) -> Self {
-        BigInt::from(value)
+    fn from_i128(value: i128) -> Option<Self> {
+        Some(BigInt::from(value))
+    }
+    fn zero_value() -> Self {
+        BigInt::zero()
+    }
+    fn into_i128(self) -> Option<i128> {
+        i128::try_from(&self).ok()
     }
     fn is_zero(&self) -> bool {
         Zero::is_zero(self)
@@ -156,9 +199,6 @@ impl Ring for BigInt {
     fn negated(&self) -> Option<Self> {
         Some(-self)
     }
-    fn into_big(self) -> BigInt {
-        self
-    }
 }
 
 /// The reduced row echelon form of an integer matrix, kept in integers: every nonzero row has
@@ -169,6 +209,8 @@ pub struct RowEchelon {
     columns: usize,
     /// Nonzero rows only, one per pivot.
     rows: Vec<Vec<BigInt>>,
+    /// The same rows in machine integers, when elimination never left them.
+    small_rows: Option<Vec<Vec<i128>>>,
     pivot_columns: Vec<usize>,
     used_big_integers: bool,
 }
@@ -179,9 +221,9 @@ fn eliminate<T: Ring>(matrix: &IntegerMatrix) -> Option<(Vec<Vec<T>>, Vec<usize>
         .map(|r| {
             (0..columns)
                 .map(|c| T::from_i128(matrix.get(r, c)))
-                .collect()
+                .collect::<Option<Vec<T>>>()
         })
-        .collect();
+        .collect::<Option<_>>()?;
     let mut pivot_columns = Vec::new();
     let mut rank = 0;
     for column in 0..columns {
@@ -203,7 +245,7 @@ fn eliminate<T: Ring>(matrix: &IntegerMatrix) -> Option<(Vec<Vec<T>>, Vec<usize>
             let g = pivot.gcd(&row[column]);
             let row_factor = pivot.div_exact(&g);
             let pivot_factor = row[column].div_exact(&g);
-            let mut content = T::from_i128(0);
+            let mut content = T::zero_value();
             for (entry, pivot_entry) in row.iter_mut().zip(&pivot_row) {
                 *entry = T::mul_sub(entry, &row_factor, pivot_entry, &pivot_factor)?;
                 content = content.gcd(entry);
@@ -224,16 +266,31 @@ fn eliminate<T: Ring>(matrix: &IntegerMatrix) -> Option<(Vec<Vec<T>>, Vec<usize>
     Some((rows, pivot_columns))
 }
 
+fn widen<T: Ring>(rows: Vec<Vec<T>>) -> Vec<Vec<i128>> {
+    rows.into_iter()
+        .map(|r| {
+            r.into_iter()
+                .map(|x| x.into_i128().expect("machine integers widen to i128"))
+                .collect()
+        })
+        .collect()
+}
+
 impl RowEchelon {
-    /// Reduces `matrix`, in checked `i128` when that suffices and in big integers otherwise.
+    /// Reduces `matrix`, in checked `i64` or `i128` when that suffices and in big integers
+    /// otherwise.
     pub fn new(matrix: &IntegerMatrix) -> RowEchelon {
-        match eliminate::<i128>(matrix) {
+        let small = eliminate::<i64>(matrix)
+            .map(|(rows, pivots)| (widen(rows), pivots))
+            .or_else(|| eliminate::<i128>(matrix));
+        match small {
             Some((rows, pivot_columns)) => RowEchelon {
                 columns: matrix.columns(),
                 rows: rows
-                    .into_iter()
-                    .map(|r| r.into_iter().map(Ring::into_big).collect())
+                    .iter()
+                    .map(|r| r.iter().map(|&x| BigInt::from(x)).collect())
                     .collect(),
+                small_rows: Some(rows),
                 pivot_columns,
                 used_big_integers: false,
             },
@@ -249,6 +306,7 @@ impl RowEchelon {
         RowEchelon {
             columns: matrix.columns(),
             rows,
+            small_rows: None,
             pivot_columns,
             used_big_integers: true,
         }
@@ -297,9 +355,7 @@ impl RowEchelon {
     }
 
     fn null_vector(&self, free: usize) -> Vec<BigInt> {
-        if !self.used_big_integers
-            && let Some(vector) = self.null_vector_small(free)
-        {
+        if let Some(vector) = self.null_vector_small(free) {
             return vector.into_iter().map(BigInt::from).collect();
         }
         self.null_vector_big(free)
@@ -307,22 +363,20 @@ impl RowEchelon {
 
     /// The same as [`RowEchelon::null_vector_big`] in checked `i128`; `None` on overflow.
     fn null_vector_small(&self, free: usize) -> Option<Vec<i128>> {
-        let entry = |row: &Vec<BigInt>, c: usize| i128::try_from(&row[c]).ok();
+        let rows = self.small_rows.as_ref()?;
         let mut common: i128 = 1;
-        for (row, &pivot_column) in self.rows.iter().zip(&self.pivot_columns) {
-            if !Zero::is_zero(&row[free]) {
-                let pivot = entry(row, pivot_column)?;
+        for (row, &pivot_column) in rows.iter().zip(&self.pivot_columns) {
+            if row[free] != 0 {
+                let pivot = row[pivot_column];
                 common = (common / Integer::gcd(&common, &pivot)).checked_mul(pivot)?;
             }
         }
         let mut vector = vec![0i128; self.columns];
         vector[free] = common;
-        for (row, &pivot_column) in self.rows.iter().zip(&self.pivot_columns) {
-            let a = entry(row, free)?;
+        for (row, &pivot_column) in rows.iter().zip(&self.pivot_columns) {
+            let a = row[free];
             if a != 0 {
-                vector[pivot_column] = a
-                    .checked_mul(common / entry(row, pivot_column)?)?
-                    .checked_neg()?;
+                vector[pivot_column] = a.checked_mul(common / row[pivot_column])?.checked_neg()?;
             }
         }
         let content = vector.iter().fold(0i128, |g, x| Integer::gcd(&g, x));
@@ -419,16 +473,22 @@ mod tests {
     }
 
     #[test]
+    fn products_past_i64_use_i128_before_big_integers() {
+        let large = 1i128 << 40;
+        let m = matrix(&[&[large, large + 1, 5], &[large + 7, large - 3, 11]]);
+        let e = RowEchelon::new(&m);
+        assert!(!e.used_big_integers());
+        assert_eq!(e.null_space(), RowEchelon::new_big(&m).null_space());
+        assert_null_space_identities(&m, &e);
+    }
+
+    #[test]
     fn small_matrices_stay_in_machine_integers() {
         let m = matrix(&[&[1, 0, -1], &[0, 1, -2]]);
         let e = RowEchelon::new(&m);
         assert!(!e.used_big_integers());
-        assert_eq!(
-            e,
-            RowEchelon {
-                used_big_integers: false,
-                ..RowEchelon::new_big(&m)
-            }
-        );
+        let reference = RowEchelon::new_big(&m);
+        assert_eq!(e.reduced_rows(), reference.reduced_rows());
+        assert_eq!(e.null_space(), reference.null_space());
     }
 }
