@@ -4,6 +4,7 @@
 mod cell;
 mod common;
 mod derive;
+mod nernst;
 mod parse;
 mod table;
 
@@ -43,6 +44,9 @@ enum Command {
     Cell(cell::CellArgs),
     /// A new couple from couples that share species, by adding free energies
     Derive(derive::DeriveArgs),
+    /// E against pH for a half-reaction (CSV: pH,E_V), other species at unit activity unless given
+    #[command(name = "ph-line")]
+    PhLine(nernst::PhLineArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -63,6 +67,7 @@ pub fn run() -> ExitCode {
         Command::Table(args) => table::run(&args),
         Command::Cell(args) => cell::run(&args),
         Command::Derive(args) => derive::run(&args),
+        Command::PhLine(args) => nernst::run_ph_line(&args),
     };
     ExitCode::from(status)
 }
