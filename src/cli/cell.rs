@@ -1,12 +1,15 @@
 //! `couplet cell`: a cathode and an anode couple combined into the net reaction and its figures.
 
 use super::common::{TableArgs, load_table, medium_arg, resolve, scale};
-use super::{EXIT_FINDINGS, EXIT_OK, print_json};
+use super::nernst::{NernstArgs, emit, json_fields, run_nernst, text};
+use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::cell::{CellOptions, caution, combine};
 use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
+use couplet::nernst::Standard;
 use couplet::notation::{Arrow, Style};
 use couplet::scale::Scale;
 use couplet::table::{Couple, Medium};
+use num_traits::ToPrimitive;
 use serde_json::{Value, json};
 
 #[derive(clap::Args)]
@@ -31,6 +34,9 @@ pub struct CellArgs {
     temperature: f64,
     #[command(flatten)]
     table: TableArgs,
+    /// Composition for the Nernst potential, γ model, export
+    #[command(flatten)]
+    nernst: NernstArgs,
     /// Print JSON (schema in the docs)
     #[arg(long)]
     json: bool,
@@ -75,6 +81,51 @@ pub fn run(args: &CellArgs) -> u8 {
         }
     };
     let at_t = cell.at_temperature.as_ref();
+    let dedt = match (
+        cell.cathode.dedt_millivolts_per_kelvin,
+        cell.anode.dedt_millivolts_per_kelvin,
+    ) {
+        (Some(c), Some(a)) => Some((c - a) / 1000.0),
+        _ => None,
+    };
+    let standard = Standard {
+        reaction: &cell.net,
+        e0_volts: cell.e0_volts,
+        electrons: cell.electrons.to_f64().unwrap_or(f64::NAN),
+        de0_dt_volts_per_kelvin: dedt,
+    };
+    let format = match args.nernst.emit_format() {
+        Ok(format) => format,
+        Err(message) => {
+            eprintln!("error: {message}");
+            return EXIT_USAGE;
+        }
+    };
+    let (nernst, gamma_model) =
+        match run_nernst(&args.nernst, &standard, args.table.ph, args.temperature) {
+            Ok(found) => found,
+            Err(message) => {
+                eprintln!("error: {message}");
+                return EXIT_USAGE;
+            }
+        };
+    if let Some(format) = format {
+        let source = format!(
+            "cathode {}; anode {}",
+            cell.cathode.source.as_deref().unwrap_or("given"),
+            cell.anode.source.as_deref().unwrap_or("given")
+        );
+        match emit(&standard, &nernst, format, &source) {
+            Ok(code) => {
+                print!("{code}");
+                return EXIT_OK;
+            }
+            Err(message) => {
+                eprintln!("error: {message}");
+                return EXIT_USAGE;
+            }
+        }
+    }
     if args.json {
         let side = |terms: Vec<(String, String)>| -> Value {
             Value::Array(
@@ -124,6 +175,7 @@ pub fn run(args: &CellArgs) -> u8 {
         }
         object.insert("notes".into(), json!(cell.notes));
         object.insert("caution".into(), json!(caution(&cell.net)));
+        object.extend(json_fields(&nernst, gamma_model));
         print_json(&value);
         return EXIT_OK;
     }
@@ -182,6 +234,7 @@ pub fn run(args: &CellArgs) -> u8 {
             scale.label()
         );
     }
+    print!("{}", text(&nernst, args.temperature));
     for note in &cell.notes {
         println!("note: {note}");
     }

@@ -7,6 +7,7 @@ mod cell;
 mod common;
 mod derive;
 mod discharge;
+mod nernst;
 mod oxidation;
 mod parse;
 mod table;
@@ -55,6 +56,9 @@ enum Command {
     Capacity(capacity::CapacityArgs),
     /// Open-circuit voltage along a discharge from initial amounts, with CSV and SVG output
     Discharge(discharge::DischargeArgs),
+    /// E against pH for a half-reaction (CSV: pH,E_V), other species at unit activity unless given
+    #[command(name = "ph-line")]
+    PhLine(nernst::PhLineArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -79,6 +83,7 @@ pub fn run() -> ExitCode {
         Command::Oxidation(args) => oxidation::run(&args),
         Command::Capacity(args) => capacity::run(&args),
         Command::Discharge(args) => discharge::run(&args),
+        Command::PhLine(args) => nernst::run_ph_line(&args),
     };
     ExitCode::from(status)
 }

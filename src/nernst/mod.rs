@@ -123,7 +123,7 @@ pub struct FactorValue {
 
 /// What the reaction is, for the Nernst equation.
 #[derive(Clone, Copy, Debug)]
-pub struct Couple<'a> {
+pub struct Standard<'a> {
     /// The reaction (a reduction half-reaction or a net cell reaction).
     pub reaction: &'a Reaction,
     /// E° at 298.15 K in V.
@@ -197,7 +197,7 @@ fn is_hydroxide(species: &Species) -> bool {
 }
 
 /// E° at `temperature_kelvin` from dE°/dT, with a note when far from 298.15 K.
-pub fn e0_at(couple: &Couple, temperature_kelvin: f64, assumptions: &mut Vec<String>) -> f64 {
+pub fn e0_at(couple: &Standard, temperature_kelvin: f64, assumptions: &mut Vec<String>) -> f64 {
     let dt = temperature_kelvin - STANDARD_TEMPERATURE_KELVIN;
     match couple.de0_dt_volts_per_kelvin {
         Some(slope) => {
@@ -224,7 +224,7 @@ pub fn e0_at(couple: &Couple, temperature_kelvin: f64, assumptions: &mut Vec<Str
 /// Computes Q and E for `couple` at `conditions`. Values are checked first (zero, negative, NaN
 /// and infinity are errors naming the species); factors left without a value are listed in
 /// [`Nernst::missing`] and leave E unknown.
-pub fn evaluate(couple: &Couple, conditions: &Conditions) -> Result<Nernst, NernstError> {
+pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, NernstError> {
     let t = conditions.temperature_kelvin;
     if !(t.is_finite() && t > 0.0) {
         return Err(NernstError::BadValue {
@@ -493,7 +493,7 @@ pub struct PhPoint {
 /// keep the values in `conditions`, or unit activity when not given (said in the assumptions of
 /// the returned evaluation at the first point).
 pub fn ph_line(
-    couple: &Couple,
+    couple: &Standard,
     conditions: &Conditions,
     from: f64,
     to: f64,

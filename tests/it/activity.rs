@@ -6,7 +6,7 @@ use couplet::activity::water::{
     debye_huckel_a, debye_huckel_b_per_angstrom, log10_kw, water_density_kg_per_m3,
 };
 use couplet::activity::{ActivityError, ActivityModel, GammaModel, Solution, split_electrolyte};
-use couplet::nernst::{Conditions, Couple, evaluate};
+use couplet::nernst::{Conditions, Standard, evaluate};
 use couplet::notation::parse_species;
 use couplet::reaction::Reaction;
 
@@ -173,7 +173,7 @@ fn lead_acid_open_circuit_voltage_follows_the_specific_gravity_rule() {
             .parse()
             .unwrap(),
     );
-    let couple = Couple {
+    let couple = Standard {
         reaction: &cell,
         e0_volts: 2.040,
         electrons: 2.0,

@@ -3,7 +3,7 @@
 
 use couplet::activity::{ActivityModel, GammaModel};
 use couplet::nernst::{
-    CellModel, Conditions, Couple, NernstError, evaluate, ph_line, slope_volts_per_decade,
+    CellModel, Conditions, NernstError, Standard, evaluate, ph_line, slope_volts_per_decade,
 };
 use couplet::notation::{Species, parse_species};
 use couplet::quotient::{ActivityKind, Phase, Quotient, QuotientOptions, phase_of};
@@ -20,7 +20,7 @@ fn species(text: &str) -> Species {
 /// E of `text` (E° in V, n) at 298.15 K with the given activities and molalities.
 fn e_at(text: &str, e0: f64, n: f64, conditions: Conditions) -> Result<f64, NernstError> {
     let r = reaction(text);
-    let couple = Couple {
+    let couple = Standard {
         reaction: &r,
         e0_volts: e0,
         electrons: n,
@@ -168,7 +168,7 @@ fn bad_values_are_errors_naming_the_species() {
 fn ph_line_slope_is_m_over_n_times_59_16_mv() {
     // dE/dpH = −(m/n)·(RT/F)·ln 10 (DOMAIN.md §Nernst): permanganate m = 8, n = 5.
     let r = reaction("MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)");
-    let couple = Couple {
+    let couple = Standard {
         reaction: &r,
         e0_volts: 1.507,
         electrons: 5.0,
@@ -182,7 +182,7 @@ fn ph_line_slope_is_m_over_n_times_59_16_mv() {
     assert!(assumptions.iter().any(|a| a.contains("MnO4-")));
     // In base, OH- from Kw: O2 + 2 H2O + 4 e- -> 4 OH- falls 59.16 mV per pH as well.
     let r = reaction("O2(g) + 2 H2O(l) + 4 e- -> 4 OH-");
-    let couple = Couple {
+    let couple = Standard {
         reaction: &r,
         e0_volts: 0.401,
         electrons: 4.0,
@@ -198,7 +198,7 @@ fn ph_line_slope_is_m_over_n_times_59_16_mv() {
 fn ph_sets_hydroxide_through_kw() {
     let text = "O2(g) + 2 H2O(l) + 4 e- -> 4 OH-";
     let r = reaction(text);
-    let couple = Couple {
+    let couple = Standard {
         reaction: &r,
         e0_volts: 0.401,
         electrons: 4.0,
@@ -232,7 +232,7 @@ fn compiled_model_matches_the_evaluation_and_checks_each_state() {
     let mut expected = Vec::new();
     for s in states {
         flat.extend_from_slice(&s);
-        let couple = Couple {
+        let couple = Standard {
             reaction: &r,
             e0_volts: 1.507,
             electrons: 5.0,
@@ -255,4 +255,100 @@ fn compiled_model_matches_the_evaluation_and_checks_each_state() {
     // Extreme Q does not overflow: ln Q is summed when the product leaves the f64 range.
     let e = model.evaluate(&[1e-300, 1e-300, 1e300], 298.15).unwrap();
     assert!(e.is_finite());
+}
+
+mod cli {
+    //! `couplet cell` with a composition, and `couplet ph-line`, through the binary.
+    use std::process::Command;
+
+    fn couplet(args: &[&str]) -> (i32, String, String) {
+        let output = Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+            .args(args)
+            .output()
+            .unwrap();
+        (
+            output.status.code().unwrap_or(-1),
+            String::from_utf8(output.stdout).unwrap(),
+            String::from_utf8(output.stderr).unwrap(),
+        )
+    }
+
+    #[test]
+    fn cell_json_gains_quotient_potential_model_and_assumptions() {
+        // Daniell cell at a(Cu2+) = 0.1, a(Zn2+) = 0.001: E = E° + (RT/2F)·ln 100 = E° + 59.16 mV.
+        let (code, out, err) = couplet(&[
+            "cell",
+            "--cathode",
+            "Cu2+/Cu",
+            "--anode",
+            "Zn2+/Zn",
+            "--activity",
+            "Cu2+=0.1",
+            "--activity",
+            "Zn2+=0.001",
+            "--json",
+        ]);
+        assert_eq!(code, 0, "{err}");
+        let json: serde_json::Value = serde_json::from_str(&out).unwrap();
+        assert_eq!(json["quotient"]["expression"], "Q = a(Zn2+) / a(Cu2+)");
+        let e0 = json["e0_V"].as_f64().unwrap();
+        assert!((json["e_V"].as_f64().unwrap() - e0 - 0.05916).abs() < 1e-5);
+        assert_eq!(json["gamma_model"], "ideal");
+        assert!(json["assumptions"].is_array());
+        let factors = json["quotient"]["factors"].as_array().unwrap();
+        assert!(
+            factors
+                .iter()
+                .any(|f| f["species"] == "Cu2+" && f["activity"] == "given" && f["exponent"] == -1)
+        );
+        // Without a composition Q stays symbolic.
+        let (_, out, _) = couplet(&[
+            "cell",
+            "--cathode",
+            "Cu2+/Cu",
+            "--anode",
+            "Zn2+/Zn",
+            "--json",
+        ]);
+        let json: serde_json::Value = serde_json::from_str(&out).unwrap();
+        assert!(json["e_V"].is_null() && json["quotient"]["value"].is_null());
+    }
+
+    #[test]
+    fn incomplete_or_bad_composition_is_a_usage_error_naming_the_species() {
+        let (code, _, err) = couplet(&[
+            "cell",
+            "--cathode",
+            "Cu2+/Cu",
+            "--anode",
+            "Zn2+/Zn",
+            "--activity",
+            "Cu2+=0.1",
+        ]);
+        assert_eq!(code, 2);
+        assert!(err.contains("Zn2+"), "{err}");
+        let (code, _, err) = couplet(&[
+            "cell",
+            "--cathode",
+            "Cu2+/Cu",
+            "--anode",
+            "Zn2+/Zn",
+            "--molality",
+            "Cu2+=-1",
+            "--molality",
+            "Zn2+=1",
+        ]);
+        assert_eq!(code, 2);
+        assert!(err.contains("Cu2+"), "{err}");
+    }
+
+    #[test]
+    fn ph_line_writes_csv() {
+        let (code, out, err) = couplet(&["ph-line", "MnO4-/Mn2+", "--from", "0", "--to", "2"]);
+        assert_eq!(code, 0, "{err}");
+        let rows: Vec<&str> = out.lines().collect();
+        assert_eq!(rows[0], "pH,E_V");
+        assert_eq!(rows.len(), 4);
+        assert!(err.contains("assumed"));
+    }
 }

@@ -1,0 +1,282 @@
+//! The Nernst options shared by `couplet cell` (composition, γ model, export) and the
+//! `couplet ph-line` command: reading `SPECIES=VALUE` arguments, rendering Q and E, and the
+//! JSON fields `quotient`, `e_V`, `gamma_model`, `assumptions`.
+
+use super::common::{TableArgs, load_table, medium_arg, resolve};
+use super::{EXIT_OK, EXIT_USAGE};
+use couplet::activity::{ActivityModel, GammaModel};
+use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
+use couplet::export::{Emit, Export};
+use couplet::nernst::{CellModel, Conditions, Nernst, Standard, evaluate, ph_line};
+use couplet::notation::{Species, parse_species};
+use couplet::quotient::Basis;
+use couplet::table::Medium;
+use serde_json::{Value, json};
+
+/// Composition, γ model and export options.
+#[derive(clap::Args, Clone, Debug, Default)]
+pub struct NernstArgs {
+    /// Activity of a species (dimensionless), e.g. --activity H2O=0.8; repeatable
+    #[arg(long = "activity", value_name = "SPECIES=VALUE")]
+    pub activities: Vec<String>,
+    /// Molality in mol/kg of an ion or a neutral electrolyte (H2SO4=5); repeatable
+    #[arg(
+        long = "molality",
+        value_name = "SPECIES=MOL_PER_KG",
+        conflicts_with = "molarities"
+    )]
+    pub molalities: Vec<String>,
+    /// Molarity in mol/L instead of molality (c° = 1 mol/L); repeatable
+    #[arg(long = "molarity", value_name = "SPECIES=MOL_PER_L")]
+    pub molarities: Vec<String>,
+    /// Partial pressure of a gas in bar (p° = 1 bar); repeatable
+    #[arg(long = "pressure", value_name = "GAS=BAR")]
+    pub pressures: Vec<String>,
+    /// Activity-coefficient model: ideal, debye-huckel, extended, davies, table
+    #[arg(long, value_name = "MODEL", default_value = "ideal")]
+    pub gamma: String,
+    /// Use the γ model beyond its documented range of ionic strength or temperature
+    #[arg(long)]
+    pub force: bool,
+    /// Write Q and E(activities, T) as text, latex, json, python, c or rust instead of the report
+    #[arg(long, value_name = "FORMAT")]
+    pub emit: Option<String>,
+}
+
+fn pairs(list: &[String], what: &str) -> Result<Vec<(Species, f64)>, String> {
+    list.iter()
+        .map(|item| {
+            let (name, value) = item
+                .rsplit_once('=')
+                .ok_or_else(|| format!("--{what} {item}: expected SPECIES=VALUE"))?;
+            let species = parse_species(name.trim())
+                .map_err(|e| format!("--{what} {item}: {}", e.message))?;
+            let value: f64 = value
+                .trim()
+                .parse()
+                .map_err(|_| format!("--{what} {item}: '{value}' is not a number"))?;
+            Ok((species, value))
+        })
+        .collect()
+}
+
+impl NernstArgs {
+    /// The conditions these options describe.
+    pub fn conditions(
+        &self,
+        ph: Option<f64>,
+        temperature_kelvin: f64,
+    ) -> Result<Conditions, String> {
+        let model = GammaModel::from_name(&self.gamma).ok_or_else(|| {
+            format!(
+                "--gamma {}: expected ideal, debye-huckel, extended, davies or table",
+                self.gamma
+            )
+        })?;
+        let (amounts, basis) = if self.molarities.is_empty() {
+            (pairs(&self.molalities, "molality")?, Basis::Molal)
+        } else {
+            (pairs(&self.molarities, "molarity")?, Basis::Molar)
+        };
+        Ok(Conditions {
+            temperature_kelvin,
+            activities: pairs(&self.activities, "activity")?,
+            amounts,
+            pressures_bar: pairs(&self.pressures, "pressure")?,
+            ph,
+            basis,
+            model: ActivityModel {
+                model,
+                force: self.force,
+            },
+            unspecified_at_unity: false,
+        })
+    }
+
+    /// The export format, if one was asked for.
+    pub fn emit_format(&self) -> Result<Option<Emit>, String> {
+        self.emit
+            .as_deref()
+            .map(|name| {
+                Emit::from_name(name).ok_or_else(|| {
+                    format!("--emit {name}: expected text, latex, json, python, c or rust")
+                })
+            })
+            .transpose()
+    }
+}
+
+/// The JSON fields the Nernst layer adds: `quotient`, `e_V`, `gamma_model`, `assumptions`.
+pub fn json_fields(result: &Nernst, model: GammaModel) -> serde_json::Map<String, Value> {
+    let factors: Vec<Value> = result
+        .factors
+        .iter()
+        .map(|f| {
+            let exponent = if f.exponent.fract() == 0.0 {
+                json!(f.exponent as i64)
+            } else {
+                json!(f.exponent)
+            };
+            json!({
+                "species": f.species,
+                "exponent": exponent,
+                "activity": f.kind.name(),
+                "value": f.value,
+            })
+        })
+        .collect();
+    let mut map = serde_json::Map::new();
+    map.insert(
+        "quotient".into(),
+        json!({"expression": result.quotient.expression(), "factors": factors, "value": result.q}),
+    );
+    map.insert("e_V".into(), json!(result.e_volts));
+    map.insert("gamma_model".into(), json!(model.name()));
+    map.insert("assumptions".into(), json!(result.assumptions));
+    map
+}
+
+/// The human report of Q and E.
+pub fn text(result: &Nernst, temperature_kelvin: f64) -> String {
+    let mut out = format!("Q        {}\n", result.quotient.expression());
+    for f in result.factors.iter().filter(|f| f.kind.name() != "unity") {
+        let value = f
+            .value
+            .map_or("no value".to_owned(), |v| format!("{v:.6e}"));
+        let gamma = f.gamma.map_or(String::new(), |g| format!("  (γ = {g:.4})"));
+        out.push_str(&format!(
+            "         a({}) = {value}  [{}]{gamma}\n",
+            f.species,
+            f.kind.name()
+        ));
+    }
+    if let Some(i) = result.ionic_strength {
+        out.push_str(&format!("I        {i:.4} mol/kg\n"));
+    }
+    match (result.q, result.e_volts) {
+        (Some(q), Some(e)) => {
+            out.push_str(&format!("Q        {q:.6e}\n"));
+            out.push_str(&format!("E        {e:+.4} V at {temperature_kelvin} K  (E = E° − (RT/nF)·ln Q)\n"));
+        }
+        _ => out.push_str("E        needs a value for every species of Q (--activity, --molality, --pressure, --ph)\n"),
+    }
+    for a in &result.assumptions {
+        out.push_str(&format!("assumed: {a}\n"));
+    }
+    out
+}
+
+/// Evaluates and, for `couplet cell`, checks that a composition given is complete.
+pub fn run_nernst(
+    args: &NernstArgs,
+    standard: &Standard,
+    ph: Option<f64>,
+    temperature_kelvin: f64,
+) -> Result<(Nernst, GammaModel), String> {
+    let conditions = args.conditions(ph, temperature_kelvin)?;
+    let result = evaluate(standard, &conditions).map_err(|e| e.to_string())?;
+    if !conditions.is_empty() {
+        result.e_volts().map_err(|e| e.to_string())?;
+    }
+    Ok((result, conditions.model.model))
+}
+
+/// Writes the export of `standard` in `format`.
+pub fn emit(
+    standard: &Standard,
+    result: &Nernst,
+    format: Emit,
+    source: &str,
+) -> Result<String, String> {
+    let model = CellModel::from_quotient(
+        &result.quotient,
+        standard.e0_volts,
+        standard.electrons,
+        standard.de0_dt_volts_per_kelvin.unwrap_or(0.0),
+    )
+    .map_err(|e| e.to_string())?;
+    Ok(Export {
+        reaction: standard.reaction.to_string(),
+        quotient: &result.quotient,
+        model: &model,
+        source: source.to_owned(),
+    }
+    .render(format))
+}
+
+/// `couplet ph-line`.
+#[derive(clap::Args)]
+pub struct PhLineArgs {
+    /// A couple (id, Ox/Red) or a typed reduction half-reaction with --e0
+    couple: String,
+    /// E° (V vs SHE) of a typed half-reaction that is not in the table
+    #[arg(long, allow_hyphen_values = true)]
+    e0: Option<f64>,
+    /// Pick the acid or base form when the table has both
+    #[arg(long, value_parser = medium_arg)]
+    medium: Option<Medium>,
+    /// First pH
+    #[arg(long, default_value_t = 0.0, allow_hyphen_values = true)]
+    from: f64,
+    /// Last pH
+    #[arg(long, default_value_t = 14.0, allow_hyphen_values = true)]
+    to: f64,
+    /// pH step
+    #[arg(long, default_value_t = 1.0)]
+    step: f64,
+    /// Temperature in K
+    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    temperature: f64,
+    /// Other species: activities, molalities, pressures (unit activity when not given)
+    #[command(flatten)]
+    nernst: NernstArgs,
+    #[command(flatten)]
+    table: TableArgs,
+}
+
+/// Prints `pH,E_V` rows (CSV) for the couple; assumptions go to standard error.
+pub fn run_ph_line(args: &PhLineArgs) -> u8 {
+    let table = match load_table(&args.table) {
+        Ok(table) => table,
+        Err(status) => return status,
+    };
+    let couple = match resolve(&table, &args.couple, args.e0, args.medium) {
+        Ok(c) => c,
+        Err(status) => return status,
+    };
+    let standard = Standard {
+        reaction: &couple.reaction,
+        e0_volts: couple.e0_volts,
+        electrons: couple.electrons_f64(),
+        de0_dt_volts_per_kelvin: couple.dedt_millivolts_per_kelvin.map(|d| d / 1000.0),
+    };
+    let conditions = match args.nernst.conditions(None, args.temperature) {
+        Ok(c) => c,
+        Err(message) => {
+            eprintln!("error: {message}");
+            return EXIT_USAGE;
+        }
+    };
+    match ph_line(&standard, &conditions, args.from, args.to, args.step) {
+        Ok((points, assumptions)) => {
+            println!("pH,E_V");
+            for p in points {
+                println!("{},{:.6}", p.ph, p.e_volts);
+            }
+            eprintln!(
+                "couple: {} (E° {} V, {})",
+                couple.reaction,
+                couple.e0_volts,
+                couple.source.as_deref().unwrap_or("given")
+            );
+            for a in assumptions {
+                eprintln!("assumed: {a}");
+            }
+            EXIT_OK
+        }
+        Err(error) => {
+            eprintln!("error: {error}");
+            EXIT_USAGE
+        }
+    }
+}
