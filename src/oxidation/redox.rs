@@ -7,10 +7,8 @@
 //! element are sorted by oxidation number and paired in that order, which moves every atom as
 //! little as possible (the smallest n that explains the change).
 //!
-//! Splitting a whole reaction into its two half-reactions needs the balancer: take the
-//! [`RedoxAnalysis::oxidized`] and [`RedoxAnalysis::reduced`] elements, give the balancer the
-//! species that hold each set, add electrons where [`changes_one_element`] is true, balance in
-//! the reaction's medium, and check each half with [`analyse`].
+//! Splitting a whole reaction into its two half-reactions is done by the balancer
+//! (`crate::balance::split`), from this analysis.
 
 use super::Pin;
 use super::{Options, OxidationError, SpeciesOxidation, oxidation_numbers_with, signed_text};
