@@ -1,9 +1,9 @@
 //! Chemical notation: the typed values that the parser returns and the displays write.
 //!
-//! Text flows one way: [`parse`] turns what a chemist types into [`Species`],
+//! Text flows one way: [`parse_input`] turns what a chemist types into [`Species`],
 //! [`Equation`] and [`Formula`] values that carry byte [`Span`]s into the input;
-//! [`display`] writes them back as canonical ASCII (which the parser reads again), Unicode,
-//! or LaTeX for the mhchem `\ce{}` macro. Element counts and charge are computed once, when a
+//! [`species_to_string`] and [`equation_to_string`] write them back as canonical ASCII (which
+//! the parser reads again), Unicode, or LaTeX for the mhchem `\ce{}` macro. Element counts and charge are computed once, when a
 //! species is read, with checked arithmetic.
 
 mod display;
