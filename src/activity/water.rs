@@ -1,5 +1,5 @@
 //! Properties of liquid water that the activity models need: density, relative permittivity,
-//! the Debye–Hückel A and B parameters at a temperature, and the ion product Kw(T).
+//! the Debye–Hückel A and B parameters at a temperature (Kw(T) is re-exported from [`crate::kw`]).
 
 use crate::constants::{AVOGADRO_PER_MOL, BOLTZMANN_JOULES_PER_KELVIN, ELEMENTARY_CHARGE_COULOMBS};
 
@@ -67,15 +67,6 @@ pub fn debye_huckel_b_per_angstrom(temperature_kelvin: f64) -> f64 {
     screening_per_metre(temperature_kelvin) * 1e-10
 }
 
-/// Lowest temperature of the Kw(T) fit (0 °C).
-pub const KW_FIT_MIN_KELVIN: f64 = 273.15;
-/// Highest temperature of the Kw(T) fit (60 °C).
-pub const KW_FIT_MAX_KELVIN: f64 = 333.15;
-
-/// log10 Kw of pure water (molality basis): Harned & Robinson 1940, Trans. Faraday Soc. 36,
-/// 973, `log10 Kw = −4470.99/T + 6.0875 − 0.01706·T`, fitted to their cell measurements over
-/// 0–60 °C (coefficients from memory; pKw 13.995 at 25 °C, the value Bandura & Lvov 2006,
-/// J. Phys. Chem. Ref. Data 35, 15 tabulate, is reproduced in the tests).
-pub fn log10_kw(temperature_kelvin: f64) -> f64 {
-    -4470.99 / temperature_kelvin + 6.0875 - 0.01706 * temperature_kelvin
-}
+/// Kw(T) lives in [`crate::kw`], the one place the project takes it from; re-exported here
+/// beside the other properties of water.
+pub use crate::kw::{KW_FIT_MAX_KELVIN, KW_FIT_MIN_KELVIN, log10_kw};

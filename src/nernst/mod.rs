@@ -4,9 +4,9 @@
 
 pub mod model;
 
-use crate::activity::water::{KW_FIT_MAX_KELVIN, KW_FIT_MIN_KELVIN, log10_kw};
 use crate::activity::{ActivityError, ActivityModel, GammaModel, Solution, same_substance};
 use crate::constants::{STANDARD_TEMPERATURE_KELVIN, thermal_voltage_volts};
+use crate::kw::{KW_FIT_MAX_KELVIN, KW_FIT_MIN_KELVIN, KW_SOURCE, log10_kw};
 use crate::notation::Species;
 use crate::quotient::{ActivityKind, Basis, Phase, Quotient, QuotientOptions};
 use crate::reaction::Reaction;
@@ -394,7 +394,7 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
             }
             let log_kw = log10_kw(t);
             assumptions.push(format!(
-                "a(OH-) = Kw/a(H+) with pKw = {:.3} at {t} K (Harned & Robinson 1940)",
+                "a(OH-) = Kw/a(H+) with pKw = {:.3} at {t} K ({KW_SOURCE})",
                 -log_kw
             ));
             (ActivityKind::Given, Some(10f64.powf(log_kw + ph)))
