@@ -146,7 +146,7 @@ pub fn text(result: &Nernst, temperature_kelvin: f64) -> String {
         let gamma = f.gamma.map_or(String::new(), |g| format!("  (γ = {g:.4})"));
         out.push_str(&format!(
             "         a({}) = {value}  [{}]{gamma}\n",
-            f.species,
+            f.label,
             f.kind.name()
         ));
     }

@@ -157,7 +157,7 @@ impl Export<'_> {
             .iter()
             .zip(self.quotient.entering())
         {
-            out.push_str(&format!("{name} = activity of {}\n", f.species.ascii()));
+            out.push_str(&format!("{name} = a({})\n", self.quotient.label(f)));
         }
         out
     }
@@ -166,7 +166,13 @@ impl Export<'_> {
         let m = self.model;
         let term = |f: &crate::quotient::Factor| {
             let power = crate::quotient::ratio_text(&num_traits::Signed::abs(&f.nu));
-            let base = format!("a_{{\\ce{{{}}}}}", f.species.without_state().mhchem());
+            // The same species name as `a(…)` elsewhere: no state label unless needed.
+            let shown = if self.quotient.label(f) == f.species.ascii() {
+                f.species.mhchem()
+            } else {
+                f.species.without_state().mhchem()
+            };
+            let base = format!("a_{{\\ce{{{shown}}}}}");
             if power == "1" {
                 base
             } else {
