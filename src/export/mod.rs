@@ -5,12 +5,31 @@
 //! Exporters never re-parse text: they work from the [`Quotient`] and the [`CellModel`].
 
 mod code;
+pub mod molality;
 
+use crate::activity::ActivityError;
 use crate::nernst::CellModel;
 use crate::notation::{Formula, Species, SpeciesKind, Style, species_to_string};
 use crate::quotient::Quotient;
 use serde_json::json;
 use std::fmt;
+use thiserror::Error;
+
+pub use molality::{Input, InputKind, MolalityForm};
+
+/// Why an export could not be written.
+#[derive(Debug, Error, Clone, PartialEq)]
+#[non_exhaustive]
+pub enum ExportError {
+    /// E(molalities, T) was asked for under the `table` model.
+    #[error(
+        "the table model interpolates published data and has no closed form; only E(activities, T) can be exported"
+    )]
+    NoClosedForm,
+    /// From the activity model (an ion with no known size in the extended model).
+    #[error(transparent)]
+    Activity(#[from] ActivityError),
+}
 
 /// The output formats.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -55,6 +74,9 @@ pub struct Export<'a> {
     pub model: &'a CellModel,
     /// Where E° came from.
     pub source: String,
+    /// E(molalities, T) under a γ model with a closed form, written after E(activities, T) by
+    /// the code exporters and described in the other formats; `None` for activities only.
+    pub molality: Option<MolalityForm>,
 }
 
 /// The argument name of a species: `a_` then the formula with brackets and dots turned into
