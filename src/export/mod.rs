@@ -181,6 +181,10 @@ impl Export<'_> {
         {
             out.push_str(&format!("{name} = a({})\n", self.quotient.label(f)));
         }
+        for line in self.molality.iter().flat_map(|f| f.describe()) {
+            out.push_str(&line);
+            out.push('\n');
+        }
         out
     }
 
@@ -223,14 +227,21 @@ impl Export<'_> {
         } else {
             format!("\\frac{{{top}}}{{{}}}", bottom.join("\\,"))
         };
-        format!(
-            "% reaction: {}\n% source: {}\n\\begin{{align}}\nQ &= {q} \\\\\nE &= {} - {}\\,(T - 298.15) - \\frac{{RT}}{{{}F}}\\ln Q\n\\end{{align}}\n",
+        // E = E° + (dE°/dT)(T − T°): the sign written is the sign of dE°/dT.
+        let slope = m.de0_dt_volts_per_kelvin();
+        let sign = if slope < 0.0 { '-' } else { '+' };
+        let mut out = format!(
+            "% reaction: {}\n% source: {}\n\\begin{{align}}\nQ &= {q} \\\\\nE &= {} {sign} {}\\,(T - 298.15) - \\frac{{RT}}{{{}F}}\\ln Q\n\\end{{align}}\n",
             self.reaction,
             self.source,
             m.e0_volts(),
-            m.de0_dt_volts_per_kelvin(),
+            slope.abs(),
             m.electrons()
-        )
+        );
+        for line in self.molality.iter().flat_map(|f| f.describe()) {
+            out.push_str(&format!("% {line}\n"));
+        }
+        out
     }
 
     /// The structure: reaction, E°, n, dE°/dT, and per species its exponent, activity kind and
@@ -258,6 +269,25 @@ impl Export<'_> {
             "dedt_V_per_K": self.model.de0_dt_volts_per_kelvin(),
             "source": self.source,
             "species": species,
+            "molality_function": self.molality.as_ref().map(|form| json!({
+                "gamma_model": form.model.name(),
+                "arguments": form.inputs.iter().map(|i| json!({
+                    "species": i.species.ascii(),
+                    "argument": i.name,
+                    "exponent": i.exponent,
+                    "kind": match i.kind {
+                        InputKind::Solute { .. } => match form.basis {
+                            crate::quotient::Basis::Molal => "molality",
+                            crate::quotient::Basis::Molar => "molarity",
+                        },
+                        InputKind::Gas => "pressure",
+                        InputKind::Water => "activity",
+                        InputKind::Spectator { .. } => "ionic_strength_only",
+                    },
+                })).collect::<Vec<_>>(),
+                "counter_ion_inferred": form.counter_ion_inferred,
+                "description": form.describe(),
+            })),
             "constants": {
                 "elementary_charge_C": crate::constants::ELEMENTARY_CHARGE_COULOMBS,
                 "avogadro_per_mol": crate::constants::AVOGADRO_PER_MOL,

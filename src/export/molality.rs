@@ -191,13 +191,18 @@ impl MolalityForm {
     /// Header lines describing the function (no comment markers).
     pub fn describe(&self) -> Vec<String> {
         let mut lines = vec![format!(
-            "E(molalities, T) with the {} activity-coefficient model: arguments are {} ({}), gas pressures (bar){}.",
+            "E(molalities, T) with the {} activity-coefficient model: arguments are {} ({}){}{}.",
             self.model,
             match self.basis {
                 Basis::Molal => "molalities",
                 Basis::Molar => "molarities",
             },
             self.unit(),
+            if self.inputs.iter().any(|i| i.kind == InputKind::Gas) {
+                ", gas pressures (bar)"
+            } else {
+                ""
+            },
             if self.inputs.iter().any(|i| i.kind == InputKind::Water) {
                 ", the activity of water (1 unless known)"
             } else {

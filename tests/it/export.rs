@@ -156,6 +156,11 @@ fn json_and_text_give_the_structure() {
     assert!(text.contains("Q = a(Mn2+) / (a(MnO4-)·a(H+)^8)"));
     let latex = render(Emit::Latex);
     assert!(latex.contains("\\frac{a_{\\ce{Mn^2+}}}"), "{latex}");
+    // E = E° + (dE°/dT)(T − T°) with dE°/dT = −0.66 mV/K: written as a minus, never "- -".
+    assert!(
+        latex.contains("E &= 1.507 - 0.00066\\,(T - 298.15)"),
+        "{latex}"
+    );
     assert!(Path::new(&scratch("x")).parent().is_some());
 }
 
@@ -217,7 +222,6 @@ impl MolalityCase {
                 }
                 InputKind::Gas => conditions.pressures_bar.push(entry),
                 InputKind::Water => conditions.activities.push(entry),
-                _ => unreachable!("no other input kinds"),
             }
         }
         let standard = Standard {
@@ -424,4 +428,47 @@ fn python_molality_export_refuses_ionic_strength_beyond_the_model() {
     std::fs::write(&path, py).unwrap();
     let out = run(Command::new("python3").arg("-I").arg(&path));
     assert!(out.contains("ionic strength beyond"), "{out}");
+}
+
+/// Standard output of the binary.
+fn stdout_of(args: &[&str]) -> String {
+    let output = Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+        .args(args)
+        .output()
+        .unwrap();
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    String::from_utf8(output.stdout).unwrap()
+}
+
+const DANIELL: [&str; 11] = [
+    "cell",
+    "--cathode",
+    "Cu2+/Cu",
+    "--anode",
+    "Zn2+/Zn",
+    "--gamma",
+    "davies",
+    "--molality",
+    "ZnSO4=0.01",
+    "--molality",
+    "CuSO4=0.02",
+];
+
+/// The text people read and the code they paste. The numbers in them are checked against
+/// sources and against the library elsewhere in this file and in nernst.rs; these pin the layout.
+#[test]
+fn snapshots_of_the_report_the_ph_line_and_every_export() {
+    insta::assert_snapshot!("cell_report_with_composition", stdout_of(&DANIELL));
+    let csv = stdout_of(&["ph-line", "MnO4-/Mn2+", "--from", "0", "--to", "14"]);
+    let head: Vec<&str> = csv.lines().take(6).collect();
+    insta::assert_snapshot!("ph_line_csv_head", head.join("\n"));
+    for format in ["text", "latex", "json", "python", "c", "rust"] {
+        let mut args = DANIELL.to_vec();
+        args.extend(["--emit", format]);
+        insta::assert_snapshot!(format!("daniell_emit_{format}"), stdout_of(&args));
+    }
 }
