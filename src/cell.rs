@@ -8,9 +8,9 @@
 //! free energies (DOMAIN.md), and only a couple minus a couple is a plain difference.
 
 use crate::constants::{
-    FARADAY_COULOMBS_PER_MOL, STANDARD_TEMPERATURE_KELVIN, WATER_PKW_AT_STANDARD_TEMPERATURE,
-    nernst_slope_volts_per_decade,
+    FARADAY_COULOMBS_PER_MOL, STANDARD_TEMPERATURE_KELVIN, nernst_slope_volts_per_decade,
 };
+use crate::kw::{KW_SOURCE, pkw};
 use crate::notation::{Species, parse_species};
 use crate::reaction::Reaction;
 use crate::table::{Couple, Medium, Origin, imbalance_text};
@@ -160,8 +160,9 @@ pub fn in_medium(couple: &Couple, medium: Medium) -> Option<Couple> {
         .reaction
         .plus(&water_ionisation().scaled(&-nu.clone()));
     let slope = nernst_slope_volts_per_decade(STANDARD_TEMPERATURE_KELVIN);
-    let shift = nu.to_f64().unwrap_or(f64::NAN) * slope * WATER_PKW_AT_STANDARD_TEMPERATURE
-        / couple.electrons_f64();
+    // Tabulated E° are for 298.15 K, so the conversion uses Kw at that temperature.
+    let pkw = pkw(STANDARD_TEMPERATURE_KELVIN);
+    let shift = nu.to_f64().unwrap_or(f64::NAN) * slope * pkw / couple.electrons_f64();
     let mut converted = couple.clone();
     converted.reaction = reaction;
     converted.e0_volts = couple.e0_volts + shift;
@@ -169,7 +170,7 @@ pub fn in_medium(couple: &Couple, medium: Medium) -> Option<Couple> {
     converted.dedt_millivolts_per_kelvin = None;
     converted.id = couple.id.as_ref().map(|id| format!("{id} (in {medium})"));
     converted.note = Some(format!(
-        "converted from the {} form with pKw = {WATER_PKW_AT_STANDARD_TEMPERATURE} (Harris App. G)",
+        "converted from the {} form with pKw = {pkw:.3} at 298.15 K ({KW_SOURCE})",
         couple.medium
     ));
     Some(converted)
@@ -187,10 +188,11 @@ pub fn combine(cathode: &Couple, anode: &Couple, options: CellOptions) -> Result
         for half in [&mut cathode, &mut anode] {
             if let Some(converted) = in_medium(half, medium) {
                 notes.push(format!(
-                    "{} written for {medium}: E° {:.4} V → {:.4} V (pKw {WATER_PKW_AT_STANDARD_TEMPERATURE}, Harris App. G)",
+                    "{} written for {medium}: E° {:.4} V → {:.4} V (pKw {:.3} at 298.15 K, {KW_SOURCE})",
                     half.label(),
                     half.e0_volts,
-                    converted.e0_volts
+                    converted.e0_volts,
+                    pkw(STANDARD_TEMPERATURE_KELVIN)
                 ));
                 *half = converted;
             }

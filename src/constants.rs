@@ -19,11 +19,6 @@ pub const GAS_CONSTANT_JOULES_PER_MOL_KELVIN: f64 = BOLTZMANN_JOULES_PER_KELVIN 
 /// The standard temperature T° = 298.15 K at which tables are given.
 pub const STANDARD_TEMPERATURE_KELVIN: f64 = 298.15;
 
-/// pKw of water at 298.15 K and zero ionic strength: Harris, *Quantitative Chemical
-/// Analysis*, App. G (Kw = 1.01×10⁻¹⁴). Used only to move a half-reaction between its acid
-/// and base forms; the same value the built-in table's derived base entries use.
-pub const WATER_PKW_AT_STANDARD_TEMPERATURE: f64 = 13.997;
-
 /// RT/F in volts at `temperature_kelvin`.
 pub fn thermal_voltage_volts(temperature_kelvin: f64) -> f64 {
     GAS_CONSTANT_JOULES_PER_MOL_KELVIN * temperature_kelvin / FARADAY_COULOMBS_PER_MOL

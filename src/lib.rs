@@ -24,6 +24,7 @@ pub mod constants;
 pub mod discharge;
 pub mod elements;
 pub mod export;
+pub mod kw;
 pub mod nernst;
 pub mod notation;
 pub mod output;

@@ -273,6 +273,24 @@ impl Quotient {
         }
     }
 
+    /// The name of a factor's species inside `a(…)` and `p(…)`: canonical ASCII without the
+    /// state label (`a(H2O)`, `a(O2)`), the phase being given by the activity kind. The label is
+    /// kept only when two species of the reaction would otherwise share a name (`O2(g)` and
+    /// `O2(aq)`). Every output that writes `a(…)` uses this.
+    pub fn label(&self, factor: &Factor) -> String {
+        let plain = factor.species.without_state().ascii();
+        let shared = self
+            .factors
+            .iter()
+            .filter(|f| f.species.without_state().ascii() == plain)
+            .count();
+        if shared > 1 {
+            factor.species.ascii()
+        } else {
+            plain
+        }
+    }
+
     /// `Q = a(Mn2+) / (a(MnO4-)·a(H+)^8)`; `Q = 1` when nothing enters.
     pub fn expression(&self) -> String {
         let side = |positive: bool| -> (String, usize) {
@@ -283,7 +301,7 @@ impl Quotient {
                     text.push('·');
                 }
                 count += 1;
-                let _ = write!(text, "a({})", f.species.without_state().ascii());
+                let _ = write!(text, "a({})", self.label(f));
                 let power = f.nu.abs();
                 if !power.is_one() {
                     let _ = write!(text, "^{}", ratio_text(&power));

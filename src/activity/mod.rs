@@ -327,14 +327,10 @@ impl Solution {
                 None => add_solute(&mut solutes, species, *amount),
             }
         }
-        let mut ionic_strength: f64 = solutes
-            .iter()
-            .map(|(s, m)| 0.5 * m * (s.charge() * s.charge()) as f64)
-            .sum();
+        let ionic_strength = ionic_strength_with_counter_ion(&solutes);
         let net_charge: f64 = solutes.iter().map(|(s, m)| m * s.charge() as f64).sum();
         let scale: f64 = solutes.iter().map(|(_, m)| m).sum::<f64>().max(1e-300);
         if net_charge.abs() > 1e-9 * scale {
-            ionic_strength += 0.5 * net_charge.abs();
             assumptions.push(format!(
                 "charge balance: {} mol/kg of an unnamed monovalent counter-{} assumed for the ionic strength",
                 net_charge.abs(),
@@ -357,6 +353,21 @@ impl Solution {
             .find(|(s, _)| same_substance(s, species))
             .map(|(_, m)| *m)
     }
+}
+
+/// `I = ½ Σ m_i z_i² + ½ |Σ m_i z_i|`: the ions given plus an unnamed monovalent counter-ion of
+/// whatever charge they leave unbalanced. The counter-ion term is always added (it is zero for a
+/// balanced solution, rounding aside) so that exported code, which computes I the same way, agrees
+/// with the library to the last digits; the assumption is reported only when it matters.
+pub fn ionic_strength_with_counter_ion(solutes: &[(Species, f64)]) -> f64 {
+    let mut squares = 0.0;
+    let mut net_charge = 0.0;
+    for (species, m) in solutes {
+        let z = species.charge() as f64;
+        squares += m * z * z;
+        net_charge += m * z;
+    }
+    0.5 * squares + 0.5 * net_charge.abs()
 }
 
 /// The one tabulated electrolyte whose ions make up exactly the solution's ions, in its

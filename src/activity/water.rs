@@ -1,5 +1,5 @@
 //! Properties of liquid water that the activity models need: density, relative permittivity,
-//! the Debye–Hückel A and B parameters at a temperature, and the ion product Kw(T).
+//! the Debye–Hückel A and B parameters at a temperature (Kw(T) is re-exported from [`crate::kw`]).
 
 use crate::constants::{AVOGADRO_PER_MOL, BOLTZMANN_JOULES_PER_KELVIN, ELEMENTARY_CHARGE_COULOMBS};
 
@@ -20,18 +20,34 @@ pub const WATER_FIT_MAX_KELVIN: f64 = 373.15;
 /// tests), 0–150 °C.
 pub fn water_density_kg_per_m3(temperature_kelvin: f64) -> f64 {
     let t = temperature_kelvin - 273.15;
-    (999.83952 + 16.945176 * t - 7.9870401e-3 * t * t - 46.170461e-6 * t.powi(3)
-        + 105.56302e-9 * t.powi(4)
-        - 280.54253e-12 * t.powi(5))
-        / (1.0 + 16.879850e-3 * t)
+    let c = KELL_DENSITY_NUMERATOR;
+    (c[0] + c[1] * t + c[2] * t * t + c[3] * t.powi(3) + c[4] * t.powi(4) + c[5] * t.powi(5))
+        / (1.0 + KELL_DENSITY_DENOMINATOR * t)
 }
+
+/// Kell's numerator coefficients, t in °C (kept public so the exporters write the very numbers
+/// the library uses).
+pub const KELL_DENSITY_NUMERATOR: [f64; 6] = [
+    999.83952,
+    16.945176,
+    -7.9870401e-3,
+    -46.170461e-6,
+    105.56302e-9,
+    -280.54253e-12,
+];
+/// Kell's denominator coefficient: `1 + b·t`, t in °C.
+pub const KELL_DENSITY_DENOMINATOR: f64 = 16.879850e-3;
+
+/// Malmberg & Maryott's coefficients, t in °C (public for the exporters, as above).
+pub const PERMITTIVITY_COEFFICIENTS: [f64; 4] = [87.740, -0.40008, 9.398e-4, -1.410e-6];
 
 /// Relative permittivity of water: Malmberg & Maryott 1956, J. Res. NBS 56, 1, eq. (2)
 /// (coefficients from memory; gives 78.30 at 25 °C and 87.74 at 0 °C as that paper's table does),
 /// 0–100 °C.
 pub fn water_relative_permittivity(temperature_kelvin: f64) -> f64 {
     let t = temperature_kelvin - 273.15;
-    87.740 - 0.40008 * t + 9.398e-4 * t * t - 1.410e-6 * t.powi(3)
+    let c = PERMITTIVITY_COEFFICIENTS;
+    c[0] + c[1] * t + c[2] * t * t + c[3] * t.powi(3)
 }
 
 /// The Debye screening factor κ/√I in m⁻¹ (kg/mol)^½ from the permittivity and density of water.
@@ -67,15 +83,6 @@ pub fn debye_huckel_b_per_angstrom(temperature_kelvin: f64) -> f64 {
     screening_per_metre(temperature_kelvin) * 1e-10
 }
 
-/// Lowest temperature of the Kw(T) fit (0 °C).
-pub const KW_FIT_MIN_KELVIN: f64 = 273.15;
-/// Highest temperature of the Kw(T) fit (60 °C).
-pub const KW_FIT_MAX_KELVIN: f64 = 333.15;
-
-/// log10 Kw of pure water (molality basis): Harned & Robinson 1940, Trans. Faraday Soc. 36,
-/// 973, `log10 Kw = −4470.99/T + 6.0875 − 0.01706·T`, fitted to their cell measurements over
-/// 0–60 °C (coefficients from memory; pKw 13.995 at 25 °C, the value Bandura & Lvov 2006,
-/// J. Phys. Chem. Ref. Data 35, 15 tabulate, is reproduced in the tests).
-pub fn log10_kw(temperature_kelvin: f64) -> f64 {
-    -4470.99 / temperature_kelvin + 6.0875 - 0.01706 * temperature_kelvin
-}
+/// Kw(T) lives in [`crate::kw`], the one place the project takes it from; re-exported here
+/// beside the other properties of water.
+pub use crate::kw::{KW_FIT_MAX_KELVIN, KW_FIT_MIN_KELVIN, log10_kw};

@@ -101,7 +101,7 @@ pub fn run(args: &CellArgs) -> u8 {
             return EXIT_USAGE;
         }
     };
-    let (nernst, gamma_model) =
+    let (nernst, conditions) =
         match run_nernst(&args.nernst, &standard, args.table.ph, args.temperature) {
             Ok(found) => found,
             Err(message) => {
@@ -115,7 +115,7 @@ pub fn run(args: &CellArgs) -> u8 {
             cell.cathode.source.as_deref().unwrap_or("given"),
             cell.anode.source.as_deref().unwrap_or("given")
         );
-        match emit(&standard, &nernst, format, &source) {
+        match emit(&standard, &nernst, &conditions, format, &source) {
             Ok(code) => {
                 print!("{code}");
                 return EXIT_OK;
@@ -175,7 +175,7 @@ pub fn run(args: &CellArgs) -> u8 {
         }
         object.insert("notes".into(), json!(cell.notes));
         object.insert("caution".into(), json!(caution(&cell.net)));
-        object.extend(json_fields(&nernst, gamma_model));
+        object.extend(json_fields(&nernst, conditions.model.model));
         print_json(&value);
         return EXIT_OK;
     }

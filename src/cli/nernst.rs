@@ -4,9 +4,9 @@
 
 use super::common::{TableArgs, load_table, medium_arg, resolve};
 use super::{EXIT_OK, EXIT_USAGE};
-use couplet::activity::{ActivityModel, GammaModel};
+use couplet::activity::{ActivityModel, GammaModel, Solution};
 use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
-use couplet::export::{Emit, Export};
+use couplet::export::{Emit, Export, ExportError, MolalityForm};
 use couplet::nernst::{CellModel, Conditions, Nernst, Standard, evaluate, ph_line};
 use couplet::notation::{Species, parse_species};
 use couplet::quotient::Basis;
@@ -146,7 +146,7 @@ pub fn text(result: &Nernst, temperature_kelvin: f64) -> String {
         let gamma = f.gamma.map_or(String::new(), |g| format!("  (γ = {g:.4})"));
         out.push_str(&format!(
             "         a({}) = {value}  [{}]{gamma}\n",
-            f.species,
+            f.label,
             f.kind.name()
         ));
     }
@@ -172,22 +172,37 @@ pub fn run_nernst(
     standard: &Standard,
     ph: Option<f64>,
     temperature_kelvin: f64,
-) -> Result<(Nernst, GammaModel), String> {
+) -> Result<(Nernst, Conditions), String> {
     let conditions = args.conditions(ph, temperature_kelvin)?;
     let result = evaluate(standard, &conditions).map_err(|e| e.to_string())?;
     if !conditions.is_empty() {
         result.e_volts().map_err(|e| e.to_string())?;
     }
-    Ok((result, conditions.model.model))
+    Ok((result, conditions))
 }
 
-/// Writes the export of `standard` in `format`.
+/// Writes the export of `standard` in `format`: E(activities, T), and E(molalities, T) when
+/// the γ model has a closed form (a note on standard error says why it is left out otherwise).
 pub fn emit(
     standard: &Standard,
     result: &Nernst,
+    conditions: &Conditions,
     format: Emit,
     source: &str,
 ) -> Result<String, String> {
+    let solution = if conditions.amounts.is_empty() {
+        None
+    } else {
+        Some(Solution::from_amounts(&conditions.amounts).map_err(|e| e.to_string())?)
+    };
+    let molality = match MolalityForm::new(&result.quotient, conditions.model, solution.as_ref()) {
+        Ok(form) => Some(form),
+        Err(ExportError::NoClosedForm) => {
+            eprintln!("note: {}", ExportError::NoClosedForm);
+            None
+        }
+        Err(error) => return Err(error.to_string()),
+    };
     let model = CellModel::from_quotient(
         &result.quotient,
         standard.e0_volts,
@@ -200,6 +215,7 @@ pub fn emit(
         quotient: &result.quotient,
         model: &model,
         source: source.to_owned(),
+        molality,
     }
     .render(format))
 }

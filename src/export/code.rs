@@ -4,7 +4,7 @@
 use super::{Export, argument_names};
 
 /// `17` or `0.5` written so each language reads it as a float.
-fn float(value: f64) -> String {
+pub(super) fn float(value: f64) -> String {
     let text = format!("{value:?}");
     if text.contains(['.', 'e', 'E']) || text.contains("inf") || text.contains("NaN") {
         text
@@ -30,7 +30,10 @@ fn header(export: &Export, comment: &str) -> String {
         "E = E0 + dE0/dT*(T - 298.15) - (R*T/(n*F))*ln(Q); activities are dimensionless".to_owned(),
         "(gases p/1 bar, solutes gamma*m/(1 mol/kg)); pure solids and liquids are 1 and left out."
             .to_owned(),
-    ] {
+    ]
+    .into_iter()
+    .chain(export.molality.iter().flat_map(|form| form.describe()))
+    {
         h.push_str(comment);
         h.push(' ');
         h.push_str(&line);
@@ -67,7 +70,10 @@ pub fn python(export: &Export) -> String {
         dedt = float(m.de0_dt_volts_per_kelvin()),
         ln_q = ln_q_terms(export, "math.log"),
         tuple_comma = if names.len() == 1 { "," } else { "" },
-    )
+    ) + &export
+        .molality
+        .as_ref()
+        .map_or(String::new(), |form| super::molality::python(export, form))
 }
 
 /// C99 with `<math.h>` (link with `-lm`).
@@ -95,7 +101,10 @@ pub fn c(export: &Export) -> String {
         n = float(m.electrons()),
         dedt = float(m.de0_dt_volts_per_kelvin()),
         ln_q = ln_q_terms(export, "log"),
-    )
+    ) + &export
+        .molality
+        .as_ref()
+        .map_or(String::new(), |form| super::molality::c(export, form))
 }
 
 /// Rust (no dependencies).
@@ -123,10 +132,13 @@ pub fn rust(export: &Export) -> String {
             .join(" + ")
     };
     format!(
-        "{header}\n/// Faraday constant F = e·N_A in C/mol (exact).\npub const FARADAY_C_PER_MOL: f64 = 1.602176634e-19 * 6.02214076e23;\n/// Molar gas constant R = k·N_A in J/(mol·K) (exact).\npub const GAS_CONSTANT_J_PER_MOL_K: f64 = 1.380649e-23 * 6.02214076e23;\n/// T° in K.\npub const STANDARD_TEMPERATURE_K: f64 = 298.15;\n/// E° in V at 298.15 K.\npub const E0_V: f64 = {e0};\n/// Electrons transferred.\npub const ELECTRONS: f64 = {n};\n/// dE°/dT in V/K.\npub const DE0_DT_V_PER_K: f64 = {dedt};\n\n/// ln Q from activities.\n#[allow(clippy::too_many_arguments)]\npub fn ln_quotient({params}) -> f64 {{\n    {ln_q}\n}}\n\n/// Q from activities.\n#[allow(clippy::too_many_arguments)]\npub fn quotient({params}) -> f64 {{\n    ln_quotient({args}).exp()\n}}\n\n/// E in volts from activities and temperature in kelvin.\n#[allow(clippy::too_many_arguments)]\npub fn potential_volts({params_t}temperature_k: f64) -> f64 {{\n    let r_over_nf = GAS_CONSTANT_J_PER_MOL_K / (ELECTRONS * FARADAY_C_PER_MOL);\n    E0_V + DE0_DT_V_PER_K * (temperature_k - STANDARD_TEMPERATURE_K)\n        - r_over_nf * temperature_k * ln_quotient({args})\n}}\n",
+        "{header}\n/// Faraday constant F = e·N_A in C/mol (exact).\npub const FARADAY_C_PER_MOL: f64 = 1.602176634e-19 * 6.02214076e23;\n/// Molar gas constant R = k·N_A in J/(mol·K) (exact).\npub const GAS_CONSTANT_J_PER_MOL_K: f64 = 1.380649e-23 * 6.02214076e23;\n/// T° in K.\npub const STANDARD_TEMPERATURE_K: f64 = 298.15;\n/// E° in V at 298.15 K.\npub const E0_V: f64 = {e0};\n/// Electrons transferred.\npub const ELECTRONS: f64 = {n};\n/// dE°/dT in V/K.\npub const DE0_DT_V_PER_K: f64 = {dedt};\n\n/// ln Q from activities.\n#[allow(non_snake_case, clippy::too_many_arguments)]\npub fn ln_quotient({params}) -> f64 {{\n    {ln_q}\n}}\n\n/// Q from activities.\n#[allow(non_snake_case, clippy::too_many_arguments)]\npub fn quotient({params}) -> f64 {{\n    ln_quotient({args}).exp()\n}}\n\n/// E in volts from activities and temperature in kelvin.\n#[allow(non_snake_case, clippy::too_many_arguments)]\npub fn potential_volts({params_t}temperature_k: f64) -> f64 {{\n    let r_over_nf = GAS_CONSTANT_J_PER_MOL_K / (ELECTRONS * FARADAY_C_PER_MOL);\n    E0_V + DE0_DT_V_PER_K * (temperature_k - STANDARD_TEMPERATURE_K)\n        - r_over_nf * temperature_k * ln_quotient({args})\n}}\n",
         header = header(export, "//"),
         e0 = float(m.e0_volts()),
         n = float(m.electrons()),
         dedt = float(m.de0_dt_volts_per_kelvin()),
-    )
+    ) + &export
+        .molality
+        .as_ref()
+        .map_or(String::new(), |form| super::molality::rust(export, form))
 }

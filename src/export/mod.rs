@@ -5,12 +5,31 @@
 //! Exporters never re-parse text: they work from the [`Quotient`] and the [`CellModel`].
 
 mod code;
+pub mod molality;
 
+use crate::activity::ActivityError;
 use crate::nernst::CellModel;
 use crate::notation::{Formula, Species, SpeciesKind, Style, species_to_string};
 use crate::quotient::Quotient;
 use serde_json::json;
 use std::fmt;
+use thiserror::Error;
+
+pub use molality::{Input, InputKind, MolalityForm};
+
+/// Why an export could not be written.
+#[derive(Debug, Error, Clone, PartialEq)]
+#[non_exhaustive]
+pub enum ExportError {
+    /// E(molalities, T) was asked for under the `table` model.
+    #[error(
+        "the table model interpolates published data and has no closed form; only E(activities, T) can be exported"
+    )]
+    NoClosedForm,
+    /// From the activity model (an ion with no known size in the extended model).
+    #[error(transparent)]
+    Activity(#[from] ActivityError),
+}
 
 /// The output formats.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -55,6 +74,9 @@ pub struct Export<'a> {
     pub model: &'a CellModel,
     /// Where E° came from.
     pub source: String,
+    /// E(molalities, T) under a γ model with a closed form, written after E(activities, T) by
+    /// the code exporters and described in the other formats; `None` for activities only.
+    pub molality: Option<MolalityForm>,
 }
 
 /// The argument name of a species: `a_` then the formula with brackets and dots turned into
@@ -157,7 +179,11 @@ impl Export<'_> {
             .iter()
             .zip(self.quotient.entering())
         {
-            out.push_str(&format!("{name} = activity of {}\n", f.species.ascii()));
+            out.push_str(&format!("{name} = a({})\n", self.quotient.label(f)));
+        }
+        for line in self.molality.iter().flat_map(|f| f.describe()) {
+            out.push_str(&line);
+            out.push('\n');
         }
         out
     }
@@ -166,7 +192,13 @@ impl Export<'_> {
         let m = self.model;
         let term = |f: &crate::quotient::Factor| {
             let power = crate::quotient::ratio_text(&num_traits::Signed::abs(&f.nu));
-            let base = format!("a_{{\\ce{{{}}}}}", f.species.without_state().mhchem());
+            // The same species name as `a(…)` elsewhere: no state label unless needed.
+            let shown = if self.quotient.label(f) == f.species.ascii() {
+                f.species.mhchem()
+            } else {
+                f.species.without_state().mhchem()
+            };
+            let base = format!("a_{{\\ce{{{shown}}}}}");
             if power == "1" {
                 base
             } else {
@@ -195,14 +227,21 @@ impl Export<'_> {
         } else {
             format!("\\frac{{{top}}}{{{}}}", bottom.join("\\,"))
         };
-        format!(
-            "% reaction: {}\n% source: {}\n\\begin{{align}}\nQ &= {q} \\\\\nE &= {} - {}\\,(T - 298.15) - \\frac{{RT}}{{{}F}}\\ln Q\n\\end{{align}}\n",
+        // E = E° + (dE°/dT)(T − T°): the sign written is the sign of dE°/dT.
+        let slope = m.de0_dt_volts_per_kelvin();
+        let sign = if slope < 0.0 { '-' } else { '+' };
+        let mut out = format!(
+            "% reaction: {}\n% source: {}\n\\begin{{align}}\nQ &= {q} \\\\\nE &= {} {sign} {}\\,(T - 298.15) - \\frac{{RT}}{{{}F}}\\ln Q\n\\end{{align}}\n",
             self.reaction,
             self.source,
             m.e0_volts(),
-            m.de0_dt_volts_per_kelvin(),
+            slope.abs(),
             m.electrons()
-        )
+        );
+        for line in self.molality.iter().flat_map(|f| f.describe()) {
+            out.push_str(&format!("% {line}\n"));
+        }
+        out
     }
 
     /// The structure: reaction, E°, n, dE°/dT, and per species its exponent, activity kind and
@@ -230,6 +269,25 @@ impl Export<'_> {
             "dedt_V_per_K": self.model.de0_dt_volts_per_kelvin(),
             "source": self.source,
             "species": species,
+            "molality_function": self.molality.as_ref().map(|form| json!({
+                "gamma_model": form.model.name(),
+                "arguments": form.inputs.iter().map(|i| json!({
+                    "species": i.species.ascii(),
+                    "argument": i.name,
+                    "exponent": i.exponent,
+                    "kind": match i.kind {
+                        InputKind::Solute { .. } => match form.basis {
+                            crate::quotient::Basis::Molal => "molality",
+                            crate::quotient::Basis::Molar => "molarity",
+                        },
+                        InputKind::Gas => "pressure",
+                        InputKind::Water => "activity",
+                        InputKind::Spectator { .. } => "ionic_strength_only",
+                    },
+                })).collect::<Vec<_>>(),
+                "counter_ion_inferred": form.counter_ion_inferred,
+                "description": form.describe(),
+            })),
             "constants": {
                 "elementary_charge_C": crate::constants::ELEMENTARY_CHARGE_COULOMBS,
                 "avogadro_per_mol": crate::constants::AVOGADRO_PER_MOL,

@@ -4,9 +4,9 @@
 
 pub mod model;
 
-use crate::activity::water::{KW_FIT_MAX_KELVIN, KW_FIT_MIN_KELVIN, log10_kw};
 use crate::activity::{ActivityError, ActivityModel, GammaModel, Solution, same_substance};
 use crate::constants::{STANDARD_TEMPERATURE_KELVIN, thermal_voltage_volts};
+use crate::kw::{KW_FIT_MAX_KELVIN, KW_FIT_MIN_KELVIN, KW_SOURCE, log10_kw};
 use crate::notation::Species;
 use crate::quotient::{ActivityKind, Basis, Phase, Quotient, QuotientOptions};
 use crate::reaction::Reaction;
@@ -109,8 +109,10 @@ impl Conditions {
 /// One factor of Q with the activity used.
 #[derive(Clone, Debug, PartialEq)]
 pub struct FactorValue {
-    /// Canonical ASCII of the species.
+    /// Canonical ASCII of the species, as written in the reaction (state label included).
     pub species: String,
+    /// The species as written inside `a(…)` ([`Quotient::label`]: no state label).
+    pub label: String,
     /// ν.
     pub exponent: f64,
     /// How the activity was obtained.
@@ -373,6 +375,7 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
     let mut ln_q = 0.0;
     for f in quotient.factors() {
         let species = &f.species;
+        let label = quotient.label(f);
         let mut gamma = None;
         let (kind, value) = if !f.enters {
             (ActivityKind::Unity, Some(1.0))
@@ -381,8 +384,7 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
         } else if f.phase == Phase::Solvent {
             let a_w = model_water.expect("water enters only when given or supplied");
             assumptions.push(format!(
-                "a({}) = {a_w:.4} from the table model (Gibbs–Duhem integration of the published γ± values)",
-                species.without_state().ascii()
+                "a({label}) = {a_w:.4} from the table model (Gibbs–Duhem integration of the published γ± values)"
             ));
             (ActivityKind::Given, Some(a_w))
         } else if let (Some(ph), true) = (conditions.ph, is_hydrogen_ion(species)) {
@@ -394,7 +396,7 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
             }
             let log_kw = log10_kw(t);
             assumptions.push(format!(
-                "a(OH-) = Kw/a(H+) with pKw = {:.3} at {t} K (Harned & Robinson 1940)",
+                "a(OH-) = Kw/a(H+) with pKw = {:.3} at {t} K ({KW_SOURCE})",
                 -log_kw
             ));
             (ActivityKind::Given, Some(10f64.powf(log_kw + ph)))
@@ -402,7 +404,7 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
             match find(&conditions.pressures_bar, species) {
                 Some(p) => (ActivityKind::Pressure, Some(*p)),
                 None if conditions.unspecified_at_unity => {
-                    assumptions.push(format!("p({}) = 1 bar (not given)", species.ascii()));
+                    assumptions.push(format!("p({label}) = 1 bar (not given)"));
                     (ActivityKind::Pressure, Some(1.0))
                 }
                 None => {
@@ -422,7 +424,7 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
                     (kind, Some(g * m))
                 }
                 None if conditions.unspecified_at_unity => {
-                    assumptions.push(format!("a({}) = 1 (not given)", species.ascii()));
+                    assumptions.push(format!("a({label}) = 1 (not given)"));
                     (ActivityKind::Given, Some(1.0))
                 }
                 None => {
@@ -438,6 +440,7 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
         }
         factors.push(FactorValue {
             species: species.ascii(),
+            label,
             exponent: f.exponent(),
             kind,
             value,

@@ -320,3 +320,41 @@ fn derive_json_lists_its_parts() {
     assert_eq!(value["n"], 2);
     assert_eq!(value["from"].as_array().unwrap().len(), 2);
 }
+
+#[test]
+fn acid_to_base_conversion_and_the_ph_path_share_one_kw() {
+    // Thermodynamic consistency (DOMAIN.md §pH): the acid form at pH p and the base form
+    // converted by the cell engine, evaluated at the same pH through a(OH-) = Kw/a(H+), are one
+    // electrode and must give one potential. That holds only if both steps use the same Kw.
+    use couplet::cell::in_medium;
+    use couplet::nernst::{Conditions, Standard, evaluate};
+    use couplet::notation::parse_species;
+    let table = Table::builtin();
+    let acid = table.find("o2/h2o", None).unwrap();
+    let base = in_medium(acid, Medium::Base).unwrap();
+    assert!(
+        base.note
+            .as_deref()
+            .unwrap()
+            .contains(couplet::kw::KW_SOURCE)
+    );
+    let e_at = |couple: &couplet::table::Couple, ph: f64| {
+        let mut conditions = Conditions::standard();
+        conditions.ph = Some(ph);
+        conditions.pressures_bar = vec![(parse_species("O2").unwrap(), 0.21)];
+        let standard = Standard {
+            reaction: &couple.reaction,
+            e0_volts: couple.e0_volts,
+            electrons: couple.electrons_f64(),
+            de0_dt_volts_per_kelvin: None,
+        };
+        evaluate(&standard, &conditions).unwrap().e_volts().unwrap()
+    };
+    for ph in [0.0, 3.5, 7.0, 12.0, 14.0] {
+        let (e_acid, e_base) = (e_at(acid, ph), e_at(&base, ph));
+        assert!(
+            (e_acid - e_base).abs() < 1e-12,
+            "pH {ph}: {e_acid} vs {e_base}"
+        );
+    }
+}

@@ -352,3 +352,71 @@ mod cli {
         assert!(err.contains("assumed"));
     }
 }
+
+#[test]
+fn species_inside_a_carry_no_state_label_unless_two_would_clash() {
+    // The form the issue asks for: `a(H2O)`, not `a(H2O(l))`, in every output that writes a(…).
+    let r = reaction("O2(g) + 4 H+ + 4 e- -> 2 H2O(l)");
+    let couple = Standard {
+        reaction: &r,
+        e0_volts: 1.229,
+        electrons: 4.0,
+        de0_dt_volts_per_kelvin: None,
+    };
+    let mut c = with_activities(&[("H2O(l)", 0.9), ("H+", 0.1)]);
+    c.pressures_bar = vec![(species("O2(g)"), 0.21)];
+    let result = evaluate(&couple, &c).unwrap();
+    assert_eq!(
+        result.quotient.expression(),
+        "Q = a(H2O)^2 / (a(O2)·a(H+)^4)"
+    );
+    let water = result.factors.iter().find(|f| f.label == "H2O").unwrap();
+    assert_eq!(water.species, "H2O(l)");
+    // Two forms of one substance keep their labels so the reader can tell them apart.
+    check_expression("O2(g) -> O2(aq)", "Q = a(O2(aq)) / a(O2(g))");
+}
+
+#[test]
+fn human_report_and_exports_write_a_of_water_without_state() {
+    let run = |extra: &[&str]| {
+        let mut args = vec![
+            "cell",
+            "--cathode",
+            "O2/H2O",
+            "--anode",
+            "H+/H2",
+            "--pressure",
+            "O2=0.21",
+            "--pressure",
+            "H2=1",
+            "--activity",
+            "H2O=0.9",
+        ];
+        args.extend_from_slice(extra);
+        let output = std::process::Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+            .args(&args)
+            .output()
+            .unwrap();
+        assert!(
+            output.status.success(),
+            "{}",
+            String::from_utf8_lossy(&output.stderr)
+        );
+        String::from_utf8(output.stdout).unwrap()
+    };
+    let report = run(&[]);
+    assert!(report.contains("a(H2O) = 9.000000e-1"), "{report}");
+    let json: serde_json::Value = serde_json::from_str(&run(&["--json"])).unwrap();
+    let expression = json["quotient"]["expression"].as_str().unwrap();
+    assert!(expression.contains("a(H2O)"), "{expression}");
+    let text = run(&["--emit", "text"]);
+    assert!(text.contains("a_H2O = a(H2O)"), "{text}");
+    let latex = run(&["--emit", "latex"]);
+    assert!(latex.contains("a_{\\ce{H2O}}"), "{latex}");
+    for out in [&report, &text, &latex, &expression.to_owned()] {
+        assert!(
+            !out.contains("a(H2O(l))") && !out.contains("H2O(l)}}"),
+            "{out}"
+        );
+    }
+}
