@@ -15,6 +15,7 @@
 //! ```
 #![deny(missing_docs)]
 
+pub mod balance;
 pub mod composition;
 pub mod elements;
 pub mod notation;

@@ -1,6 +1,7 @@
 //! Command-line front end: argument definitions and dispatch. Each command lives in its own
 //! file and only calls the library and renders what it returns.
 
+mod balance;
 mod parse;
 
 use clap::{Parser, Subcommand};
@@ -22,7 +23,7 @@ pub const EXIT_USAGE: u8 = 2;
     long_about = "couplet reads half-reactions and formulas as chemists type them (MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O), \
 balances them exactly, and computes the figures a cell designer checks. Exit status: 0 success, \
 1 the input was read but is chemically invalid, 2 usage or syntax error.",
-    after_help = "Examples:\n  couplet parse 'CuSO4·5H2O'\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'\n  couplet parse --json 'Fe3+'"
+    after_help = "Examples:\n  couplet parse 'CuSO4·5H2O'\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'\n  couplet parse --json 'Fe3+'\n  couplet balance --medium acid 'MnO4- + Fe2+ -> Mn2+ + Fe3+'"
 )]
 struct Cli {
     #[command(subcommand)]
@@ -33,6 +34,8 @@ struct Cli {
 enum Command {
     /// Show how a formula, species list or equation is read: composition, charge, state, molar mass
     Parse(parse::ParseArgs),
+    /// Balance an equation or half-reaction exactly, as written or in acid or base
+    Balance(balance::BalanceArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -50,6 +53,7 @@ pub fn run() -> ExitCode {
     };
     let status = match cli.command {
         Command::Parse(args) => parse::run(&args),
+        Command::Balance(args) => balance::run(&args),
     };
     ExitCode::from(status)
 }

@@ -11,7 +11,7 @@ mod error;
 mod parse;
 
 pub use display::{Style, equation_to_string, species_to_string};
-pub use error::{NotationError, NotationErrorKind};
+pub use error::{NotationError, NotationErrorKind, render_caret};
 pub use parse::{Input, LIMITS, Limits, parse_equation, parse_input, parse_species};
 
 use crate::composition::Composition;

@@ -2,4 +2,5 @@
 //!
 //! Every expected value that comes from outside the project names its source beside it.
 
+mod balance;
 mod notation;

@@ -1,0 +1,688 @@
+//! Exact balancing of equations and half-reactions, as written or in acid or base, into the
+//! normal form of DOMAIN.md §Balancing, with an independent recount before any result leaves.
+//!
+//! One coefficient per species, one conservation row per element plus one for the charge; the
+//! balanced reactions are the integer null space of that matrix ([`matrix`]). Balancing never
+//! touches floating point.
+//!
+//! ## When electrons are added
+//! Electrons belong to half-reactions only. With the default [`ElectronRule::HalfReactions`]:
+//! - an equation that contains `e-` is a half-reaction, and its `e-` is one of the user's
+//!   species (it keeps its side; none is added);
+//! - an equation without `e-` is first balanced without electrons; only when that is
+//!   impossible, and [`BalanceOptions::half_reaction_test`] says the equation is a
+//!   half-reaction, is `e-` added and the balance repeated. The chemistry rule is "exactly one
+//!   element changes oxidation state"; the oxidation-number module supplies that test. With no
+//!   test installed, only a written `e-` makes a half-reaction.
+//!
+//! [`ElectronRule::Always`] (a user saying "this is a half-reaction") adds `e-` whenever none
+//! is written; [`ElectronRule::Never`] never adds one.
+//!
+//! ```
+//! use couplet::balance::{BalanceOptions, Medium, balance};
+//!
+//! let skeleton = "MnO4- + Fe2+ -> Mn2+ + Fe3+".parse().unwrap();
+//! let options = BalanceOptions { medium: Medium::Acid, ..BalanceOptions::default() };
+//! let balanced = balance(&skeleton, &options).unwrap();
+//! assert_eq!(balanced.ascii(), "MnO4- + 5 Fe2+ + 8 H+ -> Mn2+ + 5 Fe3+ + 4 H2O");
+//! ```
+
+pub mod matrix;
+
+use crate::elements::Element;
+use crate::notation::{
+    Arrow, Equation, NotationError, NotationErrorKind, Span, Species, Style, parse_equation,
+    parse_species, render_caret,
+};
+use crate::reaction::{Reaction, same_species};
+use matrix::{IntegerMatrix, RowEchelon};
+use num_bigint::BigInt;
+use num_rational::BigRational;
+use num_traits::{Signed, Zero};
+use std::fmt;
+use std::str::FromStr;
+use std::sync::LazyLock;
+
+/// What the solvent may contribute.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
+pub enum Medium {
+    /// As written: no species are added (electrons follow [`ElectronRule`]).
+    #[default]
+    None,
+    /// Acidic water: H2O and H+ may be added.
+    Acid,
+    /// Basic water: H2O and OH- may be added.
+    Base,
+}
+
+impl Medium {
+    /// Stable name: `none`, `acid`, `base`.
+    pub fn name(self) -> &'static str {
+        match self {
+            Medium::None => "none",
+            Medium::Acid => "acid",
+            Medium::Base => "base",
+        }
+    }
+}
+
+impl FromStr for Medium {
+    type Err = String;
+    fn from_str(text: &str) -> Result<Medium, String> {
+        match text {
+            "none" => Ok(Medium::None),
+            "acid" => Ok(Medium::Acid),
+            "base" => Ok(Medium::Base),
+            other => Err(format!(
+                "unknown medium '{other}': expected none, acid or base"
+            )),
+        }
+    }
+}
+
+impl fmt::Display for Medium {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// When `e-` may be added (see the module documentation for the rule).
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
+pub enum ElectronRule {
+    /// Only to half-reactions: a written `e-`, or the half-reaction test.
+    #[default]
+    HalfReactions,
+    /// Always, when none is written: the caller says the input is a half-reaction.
+    Always,
+    /// Never.
+    Never,
+}
+
+/// Says whether an equation written without `e-` is a half-reaction (the rule: exactly one
+/// element changes oxidation state). Consulted only after an electron-free balance failed.
+pub type HalfReactionTest = fn(&Equation) -> bool;
+
+/// The number of electrons a balanced whole reaction transfers (from oxidation numbers), or
+/// `None` when it cannot be told (one element both oxidised and reduced).
+pub type ElectronsTransferred = fn(&Reaction) -> Option<BigInt>;
+
+/// How to balance.
+#[derive(Clone, Copy, Debug, Default)]
+pub struct BalanceOptions {
+    /// Which solvent species may be added.
+    pub medium: Medium,
+    /// When electrons may be added.
+    pub electrons: ElectronRule,
+    /// Decides half-reactions written without `e-`; supplied by the oxidation-number module.
+    pub half_reaction_test: Option<HalfReactionTest>,
+    /// n of a whole reaction; supplied by the oxidation-number module. Without it a whole
+    /// reaction reports no electron count.
+    pub electrons_transferred: Option<ElectronsTransferred>,
+}
+
+/// A reaction the balancer made and checked: atoms of every element and the charge are
+/// conserved, coefficients are the smallest positive integers, the user's species keep their
+/// order and side. Only [`balance`] constructs it.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct BalancedReaction {
+    reaction: Reaction,
+    medium: Medium,
+    electrons_transferred: Option<BigInt>,
+}
+
+impl BalancedReaction {
+    /// The reaction (signed stoichiometric numbers, all integers).
+    pub fn reaction(&self) -> &Reaction {
+        &self.reaction
+    }
+
+    /// The medium it was balanced in.
+    pub fn medium(&self) -> Medium {
+        self.medium
+    }
+
+    /// True when `e-` takes part.
+    pub fn is_half_reaction(&self) -> bool {
+        !self.reaction.electron_nu().is_zero()
+    }
+
+    /// Electrons: the `e-` coefficient of a half-reaction, or n of a whole reaction when the
+    /// oxidation-number module supplied it.
+    pub fn electrons(&self) -> Option<BigInt> {
+        if self.is_half_reaction() {
+            Some(self.reaction.electron_nu().to_integer().abs())
+        } else {
+            self.electrons_transferred.clone()
+        }
+    }
+
+    /// Reactants with their (positive integer) coefficients, in order.
+    pub fn reactants(&self) -> Vec<(&Species, BigInt)> {
+        self.reaction
+            .reactants()
+            .map(|(s, c)| (s, c.to_integer()))
+            .collect()
+    }
+
+    /// Products with their (positive integer) coefficients, in order.
+    pub fn products(&self) -> Vec<(&Species, BigInt)> {
+        self.reaction
+            .products()
+            .map(|(s, c)| (s, c.to_integer()))
+            .collect()
+    }
+
+    /// Canonical ASCII with `->`.
+    pub fn ascii(&self) -> String {
+        self.reaction.to_text(Style::Ascii, Arrow::Forward)
+    }
+
+    /// Unicode with sub- and superscripts and `→`.
+    pub fn unicode(&self) -> String {
+        self.reaction.to_text(Style::Unicode, Arrow::Forward)
+    }
+}
+
+/// A quantity that must be conserved: one element's atoms, or the charge.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Conserved {
+    /// Atoms of one element.
+    Element(Element),
+    /// Net charge.
+    Charge,
+}
+
+impl fmt::Display for Conserved {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Conserved::Element(e) => write!(f, "{e}"),
+            Conserved::Charge => f.write_str("the charge"),
+        }
+    }
+}
+
+/// Why no balance keeps every species on the side it was written.
+#[derive(Clone, Debug, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum Impossible {
+    /// Only the zero solution conserves everything; dropping this one quantity would allow a
+    /// balance.
+    CannotClose(Conserved),
+    /// Conservation forces these species to coefficient zero.
+    CannotTakePart {
+        /// The species that would get coefficient zero.
+        species: Vec<Species>,
+        /// The quantity that forces it, when one alone does.
+        because_of: Option<Conserved>,
+    },
+    /// The only balance puts these species on the other side of the arrow.
+    WrongSide {
+        /// The species that would have to move across the arrow.
+        species: Vec<Species>,
+        /// The balance they would give if moved.
+        moved: Reaction,
+    },
+    /// Only the zero solution conserves everything, and no single quantity is to blame.
+    NoBalance,
+}
+
+fn species_list(species: &[Species]) -> String {
+    let names: Vec<String> = species.iter().map(Species::ascii).collect();
+    match names.len() {
+        0 => String::new(),
+        1 => names[0].clone(),
+        n => format!("{} and {}", names[..n - 1].join(", "), names[n - 1]),
+    }
+}
+
+impl fmt::Display for Impossible {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Impossible::CannotClose(what) => write!(
+                f,
+                "{what} cannot close: no coefficients conserve it together with the rest"
+            ),
+            Impossible::CannotTakePart {
+                species,
+                because_of,
+            } => {
+                write!(
+                    f,
+                    "{} cannot take part: {} coefficient comes out zero",
+                    species_list(species),
+                    if species.len() == 1 { "its" } else { "their" }
+                )?;
+                if let Some(what) = because_of {
+                    write!(f, " ({what} cannot close otherwise)")?;
+                }
+                Ok(())
+            }
+            Impossible::WrongSide { species, moved } => write!(
+                f,
+                "no balance keeps every species on its written side: {} would have to move across the arrow ({moved})",
+                species_list(species)
+            ),
+            Impossible::NoBalance => {
+                f.write_str("no nonzero coefficients conserve every element and the charge")
+            }
+        }
+    }
+}
+
+/// Why balancing gave no single answer.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+#[non_exhaustive]
+pub enum BalanceError {
+    /// The text could not be read.
+    #[error("{0}")]
+    Notation(#[from] NotationError),
+    /// The balances form a family of dimension `basis.len()` ≥ 2.
+    #[error(
+        "not unique: the balances form a {}-dimensional family; every balance is a combination of the {} reactions listed",
+        basis.len(),
+        basis.len()
+    )]
+    NotUnique {
+        /// Independent balanced reactions spanning every answer, in lowest integers.
+        basis: Vec<Reaction>,
+    },
+    /// No balance keeps every species on the side it was written.
+    #[error("{0}")]
+    Impossible(Impossible),
+    /// A species is written twice.
+    #[error("{species} is written twice: write each species once")]
+    Repeated {
+        /// The species.
+        species: Species,
+        /// Where the second one was written.
+        span: Span,
+    },
+    /// The result failed the independent recount: a bug, never an answer.
+    #[error("internal error: the result {0} failed the recount of atoms and charge")]
+    Internal(String),
+}
+
+impl BalanceError {
+    /// Stable kind for JSON: `syntax`, `unknown_element`, `limit`, `not_unique`, `impossible`,
+    /// `internal`.
+    pub fn kind(&self) -> &'static str {
+        match self {
+            BalanceError::Notation(e) => match e.kind {
+                NotationErrorKind::UnknownElement => "unknown_element",
+                NotationErrorKind::Limit => "limit",
+                // A well-formed formula that no species can be is still a fault in what was
+                // typed, so it is reported with the typing faults.
+                _ => "syntax",
+            },
+            BalanceError::NotUnique { .. } => "not_unique",
+            BalanceError::Impossible(_) => "impossible",
+            BalanceError::Repeated { .. } => "syntax",
+            BalanceError::Internal(_) => "internal",
+        }
+    }
+
+    /// The error with the faulty part of `input` underlined where there is one.
+    pub fn render(&self, input: &str) -> String {
+        let headline = format!("error ({}): {self}", self.kind());
+        let span = match self {
+            BalanceError::Notation(e) => {
+                return render_caret(&e.input, e.span, &headline);
+            }
+            BalanceError::Repeated { span, .. } => Some(*span),
+            BalanceError::Impossible(Impossible::WrongSide { species, .. })
+            | BalanceError::Impossible(Impossible::CannotTakePart { species, .. }) => {
+                species.first().map(|s| s.span)
+            }
+            _ => None,
+        };
+        match span {
+            Some(span) if span.end <= input.len() && span.start < span.end => {
+                render_caret(input, span, &headline)
+            }
+            _ => headline,
+        }
+    }
+}
+
+fn fixed_species(text: &str) -> Species {
+    parse_species(text).expect("built-in species parse")
+}
+
+static WATER: LazyLock<Species> = LazyLock::new(|| fixed_species("H2O"));
+static PROTON: LazyLock<Species> = LazyLock::new(|| fixed_species("H+"));
+static HYDROXIDE: LazyLock<Species> = LazyLock::new(|| fixed_species("OH-"));
+static ELECTRON: LazyLock<Species> = LazyLock::new(|| fixed_species("e-"));
+
+/// Reads and balances an equation.
+pub fn balance_text(
+    text: &str,
+    options: &BalanceOptions,
+) -> Result<BalancedReaction, BalanceError> {
+    balance(&parse_equation(text)?, options)
+}
+
+/// Balances an equation or half-reaction into the normal form (see the module documentation).
+/// Coefficients written in the input are ignored.
+pub fn balance(
+    equation: &Equation,
+    options: &BalanceOptions,
+) -> Result<BalancedReaction, BalanceError> {
+    let written: Vec<(&Species, i8)> = equation
+        .reactants
+        .iter()
+        .map(|t| (&t.species, -1))
+        .chain(equation.products.iter().map(|t| (&t.species, 1)))
+        .collect();
+    for (i, (species, _)) in written.iter().enumerate() {
+        if written[..i].iter().any(|(s, _)| same_species(s, species)) {
+            return Err(BalanceError::Repeated {
+                species: (*species).clone(),
+                span: species.span,
+            });
+        }
+    }
+    let electrons_written = equation.has_electrons();
+    let reaction = match options.electrons {
+        ElectronRule::Never => solve(&written, options.medium, false),
+        ElectronRule::Always => solve(&written, options.medium, !electrons_written),
+        ElectronRule::HalfReactions => {
+            let plain = solve(&written, options.medium, false);
+            match (&plain, options.half_reaction_test) {
+                (Err(BalanceError::Impossible(_)), Some(is_half))
+                    if !electrons_written && is_half(equation) =>
+                {
+                    solve(&written, options.medium, true)
+                }
+                _ => plain,
+            }
+        }
+    }?;
+    let electrons_transferred = if reaction.electron_nu().is_zero() {
+        options.electrons_transferred.and_then(|n| n(&reaction))
+    } else {
+        None
+    };
+    Ok(BalancedReaction {
+        reaction,
+        medium: options.medium,
+        electrons_transferred,
+    })
+}
+
+/// One unknown of the system: a species and the side it must end on (−1 left, +1 right, 0 for
+/// added species, which go where their sign puts them).
+struct Column<'a> {
+    species: &'a Species,
+    side: i8,
+}
+
+fn columns<'a>(
+    written: &[(&'a Species, i8)],
+    medium: Medium,
+    add_electrons: bool,
+) -> Vec<Column<'a>> {
+    let mut columns: Vec<Column> = written
+        .iter()
+        .map(|&(species, side)| Column { species, side })
+        .collect();
+    let mut added: Vec<&'static Species> = Vec::new();
+    match medium {
+        Medium::None => {}
+        Medium::Acid => added.extend([&*WATER, &*PROTON]),
+        Medium::Base => added.extend([&*WATER, &*HYDROXIDE]),
+    }
+    if add_electrons {
+        added.push(&ELECTRON);
+    }
+    for species in added {
+        // A medium species the user wrote is the user's: it keeps its written side.
+        if !written.iter().any(|(s, _)| same_species(s, species)) {
+            columns.push(Column { species, side: 0 });
+        }
+    }
+    columns
+}
+
+/// The conservation matrix: one row per element (in order of first appearance), then the
+/// charge when any species is charged.
+fn conservation_matrix(columns: &[Column]) -> (IntegerMatrix, Vec<Conserved>) {
+    let mut rows: Vec<Conserved> = Vec::new();
+    for column in columns {
+        for &(element, _) in column.species.composition.counts() {
+            if !rows.contains(&Conserved::Element(element)) {
+                rows.push(Conserved::Element(element));
+            }
+        }
+    }
+    if columns.iter().any(|c| c.species.charge() != 0) {
+        rows.push(Conserved::Charge);
+    }
+    let mut matrix = IntegerMatrix::zeros(rows.len(), columns.len());
+    for (c, column) in columns.iter().enumerate() {
+        let composition = &column.species.composition;
+        for (r, row) in rows.iter().enumerate() {
+            let value = match row {
+                Conserved::Element(e) => i128::from(composition.count(*e)),
+                Conserved::Charge => i128::from(composition.charge()),
+            };
+            matrix.set(r, c, value);
+        }
+    }
+    (matrix, rows)
+}
+
+fn sign(x: &BigInt) -> i8 {
+    if x.is_positive() {
+        1
+    } else if x.is_negative() {
+        -1
+    } else {
+        0
+    }
+}
+
+/// Flips `vector` so that as many user species as possible sit on their written side (on a
+/// tie, the first user species with a nonzero entry decides).
+fn orient(vector: &mut [BigInt], columns: &[Column]) {
+    let mut agree = 0i64;
+    let mut first: Option<bool> = None;
+    for (x, column) in vector.iter().zip(columns) {
+        if column.side == 0 || x.is_zero() {
+            continue;
+        }
+        let same = sign(x) == column.side;
+        agree += if same { 1 } else { -1 };
+        first.get_or_insert(same);
+    }
+    if agree < 0 || (agree == 0 && first == Some(false)) {
+        for x in vector.iter_mut() {
+            *x = -&*x;
+        }
+    }
+}
+
+fn reaction_of(vector: &[BigInt], columns: &[Column]) -> Reaction {
+    let mut reaction = Reaction::new();
+    for (x, column) in vector.iter().zip(columns) {
+        reaction.add(column.species, BigRational::from_integer(x.clone()));
+    }
+    reaction
+}
+
+/// Whether some balance exists in which every user species takes part, judged from a null
+/// space basis (used only to find what to blame).
+fn all_user_species_can_take_part(basis: &[Vec<BigInt>], columns: &[Column]) -> bool {
+    !basis.is_empty()
+        && columns
+            .iter()
+            .enumerate()
+            .filter(|(_, c)| c.side != 0)
+            .all(|(i, _)| basis.iter().any(|v| !v[i].is_zero()))
+}
+
+/// The one conservation row without which every user species could take part. The charge is
+/// tried first (a missing `e-` is the usual cause), and a row whose removal leaves a balance
+/// with every species on its written side beats one that only lets every species take part.
+fn blame(matrix: &IntegerMatrix, rows: &[Conserved], columns: &[Column]) -> Option<Conserved> {
+    let mut order: Vec<usize> = (0..rows.len()).collect();
+    order.sort_by_key(|&r| rows[r] != Conserved::Charge);
+    let relaxed: Vec<(usize, Vec<Vec<BigInt>>)> = order
+        .into_iter()
+        .map(|r| (r, RowEchelon::new(&matrix.without_row(r)).null_space()))
+        .collect();
+    let keeps_sides = |basis: &Vec<Vec<BigInt>>| {
+        basis.len() == 1 && all_user_species_can_take_part(basis, columns) && {
+            let mut vector = basis[0].clone();
+            orient(&mut vector, columns);
+            vector
+                .iter()
+                .zip(columns)
+                .all(|(x, c)| c.side == 0 || sign(x) == c.side)
+        }
+    };
+    relaxed
+        .iter()
+        .find(|(_, basis)| keeps_sides(basis))
+        .or_else(|| {
+            relaxed
+                .iter()
+                .find(|(_, basis)| all_user_species_can_take_part(basis, columns))
+        })
+        .map(|(r, _)| rows[*r])
+}
+
+/// How well a reaction respects the written sides: species on their side count for it, species
+/// on the wrong side count twice against it.
+fn side_score(vector: &[BigInt], columns: &[Column]) -> i64 {
+    vector
+        .iter()
+        .zip(columns)
+        .filter(|(x, c)| c.side != 0 && !x.is_zero())
+        .map(|(x, c)| if sign(x) == c.side { 1 } else { -2 })
+        .sum()
+}
+
+fn primitive(vector: Vec<BigInt>) -> Vec<BigInt> {
+    let content = vector
+        .iter()
+        .fold(BigInt::zero(), |g, x| num_integer::Integer::gcd(&g, x));
+    if content.is_zero() {
+        return vector;
+    }
+    vector.into_iter().map(|x| x / &content).collect()
+}
+
+/// Rewrites a null-space basis so that each vector keeps as many user species on their written
+/// side as small combinations `a·vᵢ + b·vⱼ` (a ≠ 0, so the span is unchanged) allow: a chemist
+/// reads "these reactions, in any positive mix" far more easily than vectors with species
+/// thrown across the arrow.
+fn prefer_written_sides(basis: &mut [Vec<BigInt>], columns: &[Column]) {
+    const MAX_A: i64 = 4;
+    const MAX_B: i64 = 8;
+    for i in 0..basis.len() {
+        let mut best = basis[i].clone();
+        let mut best_key = (
+            side_score(&best, columns),
+            std::cmp::Reverse(max_magnitude(&best)),
+        );
+        for j in (0..basis.len()).filter(|&j| j != i) {
+            for a in 1..=MAX_A {
+                for b in -MAX_B..=MAX_B {
+                    let mut candidate: Vec<BigInt> = basis[i]
+                        .iter()
+                        .zip(&basis[j])
+                        .map(|(x, y)| x * a + y * b)
+                        .collect();
+                    orient(&mut candidate, columns);
+                    let candidate = primitive(candidate);
+                    let key = (
+                        side_score(&candidate, columns),
+                        std::cmp::Reverse(max_magnitude(&candidate)),
+                    );
+                    if key > best_key {
+                        best = candidate;
+                        best_key = key;
+                    }
+                }
+            }
+        }
+        basis[i] = best;
+    }
+}
+
+fn max_magnitude(vector: &[BigInt]) -> BigInt {
+    vector.iter().map(|x| x.abs()).max().unwrap_or_default()
+}
+
+fn solve(
+    written: &[(&Species, i8)],
+    medium: Medium,
+    add_electrons: bool,
+) -> Result<Reaction, BalanceError> {
+    let columns = columns(written, medium, add_electrons);
+    let (matrix, rows) = conservation_matrix(&columns);
+    let echelon = RowEchelon::new(&matrix);
+    let mut basis = echelon.null_space();
+    let impossible = |reason| Err(BalanceError::Impossible(reason));
+    if basis.is_empty() {
+        return impossible(match blame(&matrix, &rows, &columns) {
+            Some(what) => Impossible::CannotClose(what),
+            None => Impossible::NoBalance,
+        });
+    }
+    let never_taking_part: Vec<Species> = columns
+        .iter()
+        .enumerate()
+        .filter(|(i, c)| c.side != 0 && basis.iter().all(|v| v[*i].is_zero()))
+        .map(|(_, c)| c.species.clone())
+        .collect();
+    if !never_taking_part.is_empty() {
+        return impossible(Impossible::CannotTakePart {
+            species: never_taking_part,
+            because_of: blame(&matrix, &rows, &columns),
+        });
+    }
+    for vector in basis.iter_mut() {
+        orient(vector, &columns);
+    }
+    if basis.len() >= 2 {
+        prefer_written_sides(&mut basis, &columns);
+        return Err(BalanceError::NotUnique {
+            basis: basis.iter().map(|v| reaction_of(v, &columns)).collect(),
+        });
+    }
+    let vector = &basis[0];
+    let wrong_side: Vec<Species> = vector
+        .iter()
+        .zip(&columns)
+        .filter(|(x, c)| c.side != 0 && sign(x) != c.side)
+        .map(|(_, c)| c.species.clone())
+        .collect();
+    let reaction = reaction_of(vector, &columns);
+    if !wrong_side.is_empty() {
+        return impossible(Impossible::WrongSide {
+            species: wrong_side,
+            moved: reaction,
+        });
+    }
+    self_check(&reaction, written)?;
+    Ok(reaction)
+}
+
+/// The independent recount and the normal-form rules, checked on the finished reaction.
+fn self_check(reaction: &Reaction, written: &[(&Species, i8)]) -> Result<(), BalanceError> {
+    let internal = || Err(BalanceError::Internal(reaction.to_string()));
+    if !reaction.imbalance().is_balanced() {
+        return internal();
+    }
+    for &(species, side) in written {
+        let nu = reaction.nu(species);
+        if sign(nu.numer()) != side || !nu.is_integer() {
+            return internal();
+        }
+    }
+    if reaction.in_lowest_integers() != *reaction {
+        return internal();
+    }
+    Ok(())
+}

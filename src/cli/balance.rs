@@ -1,0 +1,209 @@
+//! `couplet balance`: one equation from the argument, or one per line from standard input.
+
+use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, argument_or_stdin};
+use couplet::balance::{
+    BalanceError, BalanceOptions, BalancedReaction, Conserved, ElectronRule, Impossible, Medium,
+    balance_text,
+};
+use couplet::notation::Species;
+use num_bigint::BigInt;
+use num_traits::Signed;
+use std::fmt::Write;
+
+#[derive(clap::Args)]
+pub struct BalanceArgs {
+    /// The equation or half-reaction (MnO4- + Fe2+ -> Mn2+ + Fe3+); - reads one per line from
+    /// standard input
+    input: String,
+    /// Species the solvent may add: acid (H2O, H+), base (H2O, OH-), none
+    #[arg(long, value_parser = ["none", "acid", "base"], default_value = "none")]
+    medium: String,
+    /// Treat the input as a half-reaction: add electrons even when no e- is written
+    #[arg(long)]
+    half: bool,
+    /// Print one JSON object per equation
+    #[arg(long)]
+    json: bool,
+}
+
+pub fn run(args: &BalanceArgs) -> u8 {
+    let options = BalanceOptions {
+        medium: args.medium.parse().unwrap_or(Medium::None),
+        electrons: if args.half {
+            ElectronRule::Always
+        } else {
+            ElectronRule::HalfReactions
+        },
+        ..BalanceOptions::default()
+    };
+    let text = match argument_or_stdin(&args.input) {
+        Ok(text) => text,
+        Err(message) => {
+            eprintln!("error: {message}");
+            return EXIT_USAGE;
+        }
+    };
+    if args.input != "-" {
+        let line = text.trim_end_matches(['\n', '\r']);
+        let result = balance_text(line, &options);
+        if args.json {
+            println!("{}", result_json(line, None, options.medium, &result));
+        } else {
+            match &result {
+                Ok(balanced) => print!("{}", human(balanced)),
+                Err(error) => eprint!("{}", human_error(error, line, args.half)),
+            }
+        }
+        return match &result {
+            Ok(_) => EXIT_OK,
+            Err(BalanceError::Notation(_) | BalanceError::Repeated { .. }) => EXIT_USAGE,
+            Err(_) => EXIT_FINDINGS,
+        };
+    }
+    let mut status = EXIT_OK;
+    let mut out = String::new();
+    for (index, line) in text.lines().enumerate() {
+        let line = line.trim();
+        if line.is_empty() || line.starts_with('#') {
+            continue;
+        }
+        let number = index + 1;
+        let result = balance_text(line, &options);
+        if result.is_err() {
+            status = EXIT_FINDINGS;
+        }
+        if args.json {
+            out.push_str(&result_json(line, Some(number), options.medium, &result));
+        } else {
+            match &result {
+                Ok(balanced) => out.push_str(&balanced.ascii()),
+                Err(error) => {
+                    let _ = write!(out, "line {number}: error ({}): {error}", error.kind());
+                    if let BalanceError::NotUnique { basis } = error {
+                        let listed: Vec<String> = basis.iter().map(|r| r.to_string()).collect();
+                        let _ = write!(out, ": {}", listed.join(" ; "));
+                    }
+                }
+            }
+        }
+        out.push('\n');
+        // Large batches are written in pieces so memory stays flat.
+        if out.len() > 1 << 16 {
+            print!("{out}");
+            out.clear();
+        }
+    }
+    print!("{out}");
+    status
+}
+
+fn human(balanced: &BalancedReaction) -> String {
+    let mut out = format!("{}\n{}\n", balanced.ascii(), balanced.unicode());
+    match balanced.electrons() {
+        Some(n) if balanced.is_half_reaction() => {
+            let direction = if balanced.reaction().electron_nu().is_negative() {
+                "reduction"
+            } else {
+                "oxidation"
+            };
+            let _ = writeln!(out, "electrons: {n} ({direction} half-reaction)");
+        }
+        Some(n) => {
+            let _ = writeln!(out, "electrons transferred: {n}");
+        }
+        None => {
+            let _ = writeln!(
+                out,
+                "electrons transferred: not computed (needs oxidation numbers)"
+            );
+        }
+    }
+    out
+}
+
+fn human_error(error: &BalanceError, line: &str, half: bool) -> String {
+    let mut out = error.render(line);
+    out.push('\n');
+    match error {
+        BalanceError::NotUnique { basis } => {
+            for reaction in basis {
+                let _ = writeln!(out, "  {reaction}");
+            }
+        }
+        BalanceError::Impossible(Impossible::CannotClose(Conserved::Charge)) if !half => {
+            out.push_str(
+                "hint: if this is a half-reaction, --half adds electrons (e-) to balance the charge\n",
+            );
+        }
+        _ => {}
+    }
+    out
+}
+
+fn json_string(text: &str) -> String {
+    serde_json::to_string(text).expect("strings always serialise")
+}
+
+fn side_json(out: &mut String, terms: &[(&Species, BigInt)]) {
+    out.push('[');
+    for (i, (species, coefficient)) in terms.iter().enumerate() {
+        if i > 0 {
+            out.push(',');
+        }
+        // Coefficients are written as JSON integers of any size, straight from their digits.
+        let _ = write!(
+            out,
+            "{{\"species\":{},\"coefficient\":{coefficient}}}",
+            json_string(&species.ascii())
+        );
+    }
+    out.push(']');
+}
+
+/// One result object on one line (schema in the README).
+fn result_json(
+    input: &str,
+    line: Option<usize>,
+    medium: Medium,
+    result: &Result<BalancedReaction, BalanceError>,
+) -> String {
+    let mut out = format!("{{\"input\":{}", json_string(input));
+    match result {
+        Ok(balanced) => {
+            let _ = write!(
+                out,
+                ",\"medium\":\"{}\",\"balanced\":{},\"reactants\":",
+                medium.name(),
+                json_string(&balanced.ascii())
+            );
+            side_json(&mut out, &balanced.reactants());
+            out.push_str(",\"products\":");
+            side_json(&mut out, &balanced.products());
+            match balanced.electrons() {
+                Some(n) => {
+                    let _ = write!(out, ",\"electrons\":{n}");
+                }
+                None => out.push_str(",\"electrons\":null"),
+            }
+        }
+        Err(error) => {
+            if let Some(line) = line {
+                let _ = write!(out, ",\"line\":{line}");
+            }
+            let _ = write!(
+                out,
+                ",\"error\":{{\"kind\":\"{}\",\"message\":{}",
+                error.kind(),
+                json_string(&error.to_string())
+            );
+            if let BalanceError::NotUnique { basis } = error {
+                let listed: Vec<String> =
+                    basis.iter().map(|r| json_string(&r.to_string())).collect();
+                let _ = write!(out, ",\"basis\":[{}]", listed.join(","));
+            }
+            out.push('}');
+        }
+    }
+    out.push('}');
+    out
+}
