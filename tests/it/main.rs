@@ -3,4 +3,5 @@
 //! Every expected value that comes from outside the project names its source beside it.
 
 mod balance;
+mod elements;
 mod notation;

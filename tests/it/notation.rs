@@ -80,3 +80,175 @@ fn errors_point_at_the_fault() {
         );
     }
 }
+
+mod properties {
+    //! parse(display(x)) == x for generated species and equations, and no input panics.
+    use couplet::elements::Element;
+    use couplet::notation::{
+        Arrow, Bracket, Component, Equation, Formula, Species, SpeciesKind, State, Style, Term,
+        Unit, equation_to_string, parse_equation, parse_input, parse_species, species_to_string,
+    };
+    use num_rational::Ratio;
+    use proptest::prelude::*;
+
+    fn element() -> impl Strategy<Value = Element> {
+        let all: Vec<Element> = Element::all().collect();
+        proptest::sample::select(all)
+    }
+
+    fn unit() -> impl Strategy<Value = Unit> {
+        let atom = (element(), 1u32..30).prop_map(|(element, count)| Unit::Atom {
+            element,
+            count,
+            span: Default::default(),
+        });
+        atom.prop_recursive(3, 12, 3, |inner| {
+            (
+                prop_oneof![Just(Bracket::Round), Just(Bracket::Square)],
+                proptest::collection::vec(inner, 1..3),
+                1u32..6,
+            )
+                .prop_map(|(bracket, body, count)| Unit::Group {
+                    bracket,
+                    body,
+                    count,
+                    span: Default::default(),
+                })
+        })
+    }
+
+    fn formula() -> impl Strategy<Value = Formula> {
+        (
+            proptest::collection::vec(unit(), 1..4),
+            proptest::collection::vec((1u32..8, proptest::collection::vec(unit(), 1..3)), 0..2),
+            -5i32..6,
+        )
+            .prop_map(|(main, adducts, charge)| {
+                let mut components = vec![Component {
+                    multiplier: 1,
+                    body: main,
+                }];
+                components.extend(
+                    adducts
+                        .into_iter()
+                        .map(|(multiplier, body)| Component { multiplier, body }),
+                );
+                Formula { components, charge }
+            })
+    }
+
+    fn state() -> impl Strategy<Value = Option<State>> {
+        prop_oneof![
+            Just(None),
+            Just(Some(State::Solid)),
+            Just(Some(State::Liquid)),
+            Just(Some(State::Gas)),
+            Just(Some(State::Aqueous)),
+            Just(Some(State::Crystal)),
+        ]
+    }
+
+    /// A species built from a generated formula by reading its own display, so that its
+    /// composition is computed the one way the library computes it.
+    fn species() -> impl Strategy<Value = Species> {
+        prop_oneof![
+            1 => state().prop_map(|state| {
+                let mut e = parse_species("e-").unwrap();
+                e.state = state;
+                e
+            }),
+            9 => (formula(), state()).prop_filter_map("charge beyond the protons", |(f, state)| {
+                let shell = Species {
+                    kind: SpeciesKind::Formula(f),
+                    state,
+                    composition: Default::default(),
+                    span: Default::default(),
+                };
+                parse_species(&species_to_string(&shell, Style::Ascii)).ok()
+            }),
+        ]
+    }
+
+    fn term() -> impl Strategy<Value = Term> {
+        (1u64..20, 1u64..5, species()).prop_map(|(n, d, species)| Term {
+            coefficient: Ratio::new(n, d),
+            species,
+            span: Default::default(),
+        })
+    }
+
+    fn equation() -> impl Strategy<Value = Equation> {
+        (
+            proptest::collection::vec(term(), 1..5),
+            proptest::collection::vec(term(), 1..5),
+            prop_oneof![
+                Just(Arrow::Forward),
+                Just(Arrow::Equals),
+                Just(Arrow::Equilibrium)
+            ],
+        )
+            .prop_map(|(reactants, products, arrow)| Equation {
+                reactants,
+                products,
+                arrow,
+            })
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(2000))]
+
+        #[test]
+        fn generated_formulas_read_back_as_generated(f in formula(), state in state()) {
+            let shell = Species {
+                kind: SpeciesKind::Formula(f),
+                state,
+                composition: Default::default(),
+                span: Default::default(),
+            };
+            for style in [Style::Ascii, Style::Unicode, Style::Mhchem] {
+                let text = species_to_string(&shell, style);
+                match parse_species(&text) {
+                    Ok(back) => prop_assert_eq!(&back, &shell, "{}", text),
+                    // A charge larger than the protons present is refused by design.
+                    Err(e) => prop_assert_eq!(e.kind, couplet::notation::NotationErrorKind::Chemistry, "{}", e.render()),
+                }
+            }
+        }
+
+        #[test]
+        fn species_round_trip(s in species()) {
+            for style in [Style::Ascii, Style::Unicode, Style::Mhchem] {
+                let text = species_to_string(&s, style);
+                let back = parse_species(&text).map_err(|e| TestCaseError::fail(e.render()))?;
+                prop_assert_eq!(&back, &s, "{}", text);
+                prop_assert_eq!(&back.composition, &s.composition, "{}", text);
+            }
+        }
+
+        #[test]
+        fn equation_round_trip(eq in equation()) {
+            for style in [Style::Ascii, Style::Unicode] {
+                let text = equation_to_string(&eq, style);
+                let back = parse_equation(&text).map_err(|e| TestCaseError::fail(e.render()))?;
+                prop_assert_eq!(&back, &eq, "{}", text);
+            }
+        }
+
+        #[test]
+        fn mangled_input_never_panics(text in "[A-Za-z0-9()\\[\\]{}^+\\-*.·=<>→⇌ ₀-₉⁰-⁹⁺⁻/]{0,40}") {
+            if let Err(e) = parse_input(&text) {
+                // The rendering must work for every error, and the span must lie in the input.
+                prop_assert!(e.span.start <= text.len());
+                let _ = e.render();
+            }
+        }
+
+        #[test]
+        fn huge_counts_are_limit_errors_not_overflows(a in 1u64..u64::MAX, b in 1u64..u64::MAX, depth in 1usize..8) {
+            let text = format!("{}H{a}{}{b}", "(".repeat(depth), ")".repeat(depth));
+            let _ = parse_input(&text);
+            let text = format!("{a} H{b} -> {b}/{a} O2");
+            let _ = parse_input(&text);
+        }
+    }
+}
