@@ -46,7 +46,10 @@ fn identity(species: &couplet::notation::Species) -> String {
     format!("{} z{}", counts.join(" "), species.charge())
 }
 
-fn sides_of_reaction(reaction: &Reaction) -> (Vec<(String, BigInt)>, Vec<(String, BigInt)>) {
+/// Species with their coefficients, for one side of a reaction.
+type Side = Vec<(String, BigInt)>;
+
+fn sides_of_reaction(reaction: &Reaction) -> (Side, Side) {
     let r = reaction
         .reactants()
         .map(|(s, c)| (identity(s), c.to_integer()))
