@@ -16,6 +16,7 @@
 #![deny(missing_docs)]
 
 pub mod balance;
+pub mod check;
 pub mod composition;
 pub mod elements;
 pub mod notation;

@@ -2,6 +2,7 @@
 //! file and only calls the library and renders what it returns.
 
 mod balance;
+mod check;
 mod parse;
 
 use clap::{Parser, Subcommand};
@@ -23,7 +24,7 @@ pub const EXIT_USAGE: u8 = 2;
     long_about = "couplet reads half-reactions and formulas as chemists type them (MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O), \
 balances them exactly, and computes the figures a cell designer checks. Exit status: 0 success, \
 1 the input was read but is chemically invalid, 2 usage or syntax error.",
-    after_help = "Examples:\n  couplet parse 'CuSO4·5H2O'\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'\n  couplet parse --json 'Fe3+'\n  couplet balance --medium acid 'MnO4- + Fe2+ -> Mn2+ + Fe3+'"
+    after_help = "Examples:\n  couplet parse 'CuSO4·5H2O'\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'\n  couplet parse --json 'Fe3+'\n  couplet balance --medium acid 'MnO4- + Fe2+ -> Mn2+ + Fe3+'\n  couplet check data/ --format sarif"
 )]
 struct Cli {
     #[command(subcommand)]
@@ -36,6 +37,8 @@ enum Command {
     Parse(parse::ParseArgs),
     /// Balance an equation or half-reaction exactly, as written or in acid or base
     Balance(balance::BalanceArgs),
+    /// Validate couple files (TOML or CSV) for CI: syntax, chemistry, numbers, table consistency
+    Check(check::CheckArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -54,6 +57,7 @@ pub fn run() -> ExitCode {
     let status = match cli.command {
         Command::Parse(args) => parse::run(&args),
         Command::Balance(args) => balance::run(&args),
+        Command::Check(args) => check::run(&args),
     };
     ExitCode::from(status)
 }
