@@ -3,5 +3,6 @@
 //! Every expected value that comes from outside the project names its source beside it.
 
 mod balance;
+mod check;
 mod elements;
 mod notation;
