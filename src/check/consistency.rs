@@ -36,23 +36,63 @@ fn species_key(species: &Species) -> String {
     }
 }
 
-/// The key of a reduction and its electron count, or `None` when it has no electrons.
-pub fn couple_key(reaction: &Reaction) -> Option<(CoupleKey, BigRational)> {
-    let mut lowest = reaction.in_lowest_integers();
-    if lowest.electron_nu().is_zero() {
+/// The key of a couple, or `None` when the reaction has no electrons.
+pub fn couple_key(reaction: &Reaction) -> Option<CoupleKey> {
+    let electrons = reaction.electron_nu();
+    if electrons.is_zero() {
         return None;
     }
-    if lowest.electron_nu().is_positive() {
-        lowest = lowest.reversed();
-    }
-    let n = -lowest.electron_nu();
-    let mut terms: Vec<String> = lowest
-        .entries()
-        .iter()
-        .map(|e| format!("{} {}", e.nu, species_key(&e.species)))
-        .collect();
+    // Electrons on the left: reactants negative, so a reduction's e- has ν < 0.
+    let direction: i128 = if electrons.is_positive() { -1 } else { 1 };
+    let mut terms: Vec<String> = match lowest_integers_i128(reaction) {
+        Some(numbers) => reaction
+            .entries()
+            .iter()
+            .zip(numbers)
+            .map(|(e, nu)| format!("{} {}", nu * direction, species_key(&e.species)))
+            .collect(),
+        None => {
+            let mut lowest = reaction.in_lowest_integers();
+            if direction < 0 {
+                lowest = lowest.reversed();
+            }
+            lowest
+                .entries()
+                .iter()
+                .map(|e| format!("{} {}", e.nu, species_key(&e.species)))
+                .collect()
+        }
+    };
     terms.sort();
-    Some((CoupleKey(terms.join(" ")), n))
+    Some(CoupleKey(terms.join(" ")))
+}
+
+/// The stoichiometric numbers scaled to the smallest whole numbers, in i128 (the common case,
+/// without big-number arithmetic); `None` when a number does not fit.
+fn lowest_integers_i128(reaction: &Reaction) -> Option<Vec<i128>> {
+    let mut fractions = Vec::with_capacity(reaction.entries().len());
+    let mut denominators_lcm: i128 = 1;
+    for e in reaction.entries() {
+        let (numerator, denominator) = (e.nu.numer().to_i128()?, e.nu.denom().to_i128()?);
+        denominators_lcm =
+            denominators_lcm.checked_mul(denominator / gcd(denominators_lcm, denominator))?;
+        fractions.push((numerator, denominator));
+    }
+    let mut whole = Vec::with_capacity(fractions.len());
+    let mut common = 0;
+    for (numerator, denominator) in fractions {
+        let value = numerator.checked_mul(denominators_lcm / denominator)?;
+        common = gcd(common, value);
+        whole.push(value);
+    }
+    Some(whole.into_iter().map(|v| v / common.max(1)).collect())
+}
+
+fn gcd(mut a: i128, mut b: i128) -> i128 {
+    while b != 0 {
+        (a, b) = (b, a % b);
+    }
+    a.abs()
 }
 
 fn is_solvent_or_electron(species: &Species) -> bool {
@@ -75,7 +115,7 @@ pub fn check_table(
     let mut findings = Vec::new();
     let place = |entry: &JudgedEntry, span: Span| {
         let source = &files[entry.file];
-        let (line, column) = source.file.line_column(span.start);
+        let (line, column) = source.line_column(span.start);
         format!("{}:{line}:{column}", source.name)
     };
 
@@ -112,7 +152,7 @@ pub fn check_table(
         };
         // The electrons of the reaction as written: the combinations below scale it as written.
         let electrons = -reaction.electron_nu();
-        let Some((key, _)) = couple_key(reaction) else {
+        let Some(key) = couple_key(reaction) else {
             continue;
         };
         match by_key.get(&key) {
@@ -190,7 +230,7 @@ pub fn check_table(
                 if electrons.is_zero() || !combined.imbalance().is_balanced() {
                     continue;
                 }
-                let Some((key, _)) = couple_key(&combined) else {
+                let Some(key) = couple_key(&combined) else {
                     continue;
                 };
                 let Some(&k) = by_key.get(&key) else { continue };

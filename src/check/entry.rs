@@ -344,11 +344,7 @@ fn check_chemistry(
         .chain(&equation.products)
         .map(|t| &t.species)
         .collect();
-    let find = |wanted: &Species| {
-        species
-            .iter()
-            .find(|s| s.without_state() == wanted.without_state())
-    };
+    let find = |wanted: &Species| species.iter().find(|s| s.kind == wanted.kind);
 
     // Medium against species.
     let proton = find(&PROTON);
@@ -443,8 +439,12 @@ fn check_chemistry(
         ));
     }
 
-    let imbalance = reaction.imbalance();
-    if !imbalance.is_balanced() {
+    // The exact recount only when the integer count does not already show conservation.
+    let imbalance = match conserved_in_integers(equation) {
+        Some(true) => None,
+        _ => Some(reaction.imbalance()).filter(|i| !i.is_balanced()),
+    };
+    if let Some(imbalance) = imbalance {
         is_reduction = false;
         let balanced = suggest();
         let suggestion = balanced.as_ref().map(|b| b.ascii());
@@ -503,4 +503,44 @@ fn check_chemistry(
         }
     }
     (findings, is_reduction)
+}
+
+/// Whether atoms and charge are conserved, counted in i128 on the written coefficients: the
+/// fast path for the common case. `None` when a number does not fit; then the exact recount of
+/// [`Reaction::imbalance`] decides.
+fn conserved_in_integers(equation: &Equation) -> Option<bool> {
+    let terms = || equation.reactants.iter().chain(&equation.products);
+    let mut denominators_lcm: i128 = 1;
+    for term in terms() {
+        let denominator = i128::from(*term.coefficient.denom());
+        let divisor = gcd_i128(denominators_lcm, denominator);
+        denominators_lcm = denominators_lcm.checked_mul(denominator / divisor)?;
+    }
+    let mut totals: Vec<(crate::elements::Element, i128)> = Vec::with_capacity(8);
+    let mut charge: i128 = 0;
+    for (side, sign) in [(&equation.reactants, -1i128), (&equation.products, 1)] {
+        for term in side {
+            let scale = denominators_lcm / i128::from(*term.coefficient.denom());
+            let coefficient = i128::from(*term.coefficient.numer())
+                .checked_mul(scale)?
+                .checked_mul(sign)?;
+            charge =
+                charge.checked_add(coefficient.checked_mul(i128::from(term.species.charge()))?)?;
+            for &(element, count) in term.species.composition.counts() {
+                let change = coefficient.checked_mul(i128::from(count))?;
+                match totals.iter_mut().find(|(e, _)| *e == element) {
+                    Some((_, total)) => *total = total.checked_add(change)?,
+                    None => totals.push((element, change)),
+                }
+            }
+        }
+    }
+    Some(charge == 0 && totals.iter().all(|(_, total)| *total == 0))
+}
+
+fn gcd_i128(mut a: i128, mut b: i128) -> i128 {
+    while b != 0 {
+        (a, b) = (b, a % b);
+    }
+    a.abs().max(1)
 }

@@ -101,18 +101,16 @@ pub fn load_file(path: &Path) -> Result<SourceFile, LoadError> {
     let size = handle.metadata().map_err(unreadable)?.len();
     let format = FileFormat::from_path(path);
     if size > MAX_FILE_BYTES {
-        return Ok(SourceFile {
-            name: name.clone(),
-            file: CoupleFile::from_text("", format),
-            load_finding: Some((
-                Rule::FileTooLarge,
-                format!(
-                    "the file is {:.1} MiB; the checker reads files up to {} MiB: split the table into several files",
-                    size as f64 / 1024.0 / 1024.0,
-                    MAX_FILE_BYTES / 1024 / 1024
-                ),
-            )),
-        });
+        return Ok(SourceFile::unread(
+            name,
+            format,
+            Rule::FileTooLarge,
+            format!(
+                "the file is {:.1} MiB; the checker reads files up to {} MiB: split the table into several files",
+                size as f64 / 1024.0 / 1024.0,
+                MAX_FILE_BYTES / 1024 / 1024
+            ),
+        ));
     }
     let mut bytes = Vec::with_capacity(size as usize);
     // take(): the file may grow between the size check and the read.
@@ -126,14 +124,12 @@ pub fn load_file(path: &Path) -> Result<SourceFile, LoadError> {
 /// A file to check from bytes already in memory (binary files recognised by a NUL byte).
 pub fn source_from_bytes(name: &str, bytes: &[u8], format: FileFormat) -> SourceFile {
     if let Some(at) = bytes.iter().position(|&b| b == 0) {
-        return SourceFile {
-            name: name.to_owned(),
-            file: CoupleFile::from_text("", format),
-            load_finding: Some((
-                Rule::FileSyntax,
-                format!("binary file (NUL byte at offset {at}): a couple file is text"),
-            )),
-        };
+        return SourceFile::unread(
+            name,
+            format,
+            Rule::FileSyntax,
+            format!("binary file (NUL byte at offset {at}): a couple file is text"),
+        );
     }
     SourceFile::new(name, CoupleFile::from_bytes(bytes, format))
 }

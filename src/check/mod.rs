@@ -31,7 +31,7 @@ pub use rules::{Rule, Severity};
 
 use crate::notation::Span;
 use crate::reaction::Reaction;
-use crate::table::CoupleFile;
+use crate::table::{CoupleFile, FileFormat};
 use num_rational::BigRational;
 
 /// The electrons that the oxidation-number change of a balanced half-reaction accounts for
@@ -73,6 +73,9 @@ pub struct SourceFile {
     /// A problem found before the text could be read (too large, binary): reported as a
     /// finding, and the file has no records.
     pub load_finding: Option<(Rule, String)>,
+    /// Byte offsets where lines start, made on first use: locating thousands of findings by
+    /// rescanning the text each time would be quadratic.
+    line_starts: std::sync::OnceLock<Vec<usize>>,
 }
 
 impl SourceFile {
@@ -82,7 +85,38 @@ impl SourceFile {
             name: name.into(),
             file,
             load_finding: None,
+            line_starts: std::sync::OnceLock::new(),
         }
+    }
+
+    /// A file that could not be read as text, with the finding that says why.
+    pub fn unread(
+        name: impl Into<String>,
+        format: FileFormat,
+        rule: Rule,
+        message: String,
+    ) -> SourceFile {
+        SourceFile {
+            load_finding: Some((rule, message)),
+            ..SourceFile::new(name, CoupleFile::from_text("", format))
+        }
+    }
+
+    /// 1-based line and column (in characters) of a byte offset.
+    pub fn line_column(&self, offset: usize) -> (usize, usize) {
+        let text = &self.file.text;
+        let starts = self.line_starts.get_or_init(|| {
+            std::iter::once(0)
+                .chain(text.match_indices('\n').map(|(i, _)| i + 1))
+                .collect()
+        });
+        let mut offset = offset.min(text.len());
+        while !text.is_char_boundary(offset) {
+            offset -= 1;
+        }
+        let line = starts.partition_point(|&start| start <= offset);
+        let line_start = starts[line - 1];
+        (line, text[line_start..offset].chars().count() + 1)
     }
 }
 
@@ -160,9 +194,7 @@ impl Report {
 
     /// 1-based line and column (in characters) where a finding starts.
     pub fn line_column(&self, finding: &Finding) -> (usize, usize) {
-        self.files[finding.file]
-            .file
-            .line_column(finding.span.start)
+        self.files[finding.file].line_column(finding.span.start)
     }
 
     /// The fixes for one file, in record order.

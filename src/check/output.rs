@@ -205,7 +205,7 @@ pub fn sarif(report: &Report) -> Value {
         .map(|finding| {
             let source = &report.files[finding.file];
             let (start_line, start_column) = report.line_column(finding);
-            let (end_line, end_column) = source.file.line_column(finding.span.end);
+            let (end_line, end_column) = source.line_column(finding.span.end);
             let (end_line, end_column) = if (end_line, end_column) <= (start_line, start_column) {
                 (start_line, start_column + 1)
             } else {
@@ -269,8 +269,8 @@ fn fix_replacement(report: &Report, finding: &Finding) -> Option<Value> {
     let fix = finding.fix.as_ref()?;
     let source = &report.files[finding.file];
     let field = source.file.records.get(fix.record)?.reaction.as_ref()?;
-    let (start_line, start_column) = source.file.line_column(field.span.start);
-    let (end_line, end_column) = source.file.line_column(field.span.end);
+    let (start_line, start_column) = source.line_column(field.span.start);
+    let (end_line, end_column) = source.line_column(field.span.end);
     Some(json!({
         "deletedRegion": {
             "startLine": start_line,

@@ -5,7 +5,8 @@ use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use couplet::check::load::{expand_paths, load_file, looks_like_couple_file};
 use couplet::check::output::{self, Colour};
 use couplet::check::{CheckOptions, DEFAULT_TOLERANCE_VOLTS, Severity, check, fix};
-use std::io::IsTerminal;
+use couplet::table::ProblemKind;
+use std::io::{IsTerminal, Write};
 use std::path::PathBuf;
 
 #[derive(clap::Args)]
@@ -78,6 +79,16 @@ pub fn run(args: &CheckArgs) -> u8 {
             if fixes.is_empty() {
                 continue;
             }
+            // What a broken file holds is a guess of the recovering parser: edit none of it.
+            if source
+                .file
+                .problems
+                .iter()
+                .any(|p| p.kind == ProblemKind::Syntax)
+            {
+                eprintln!("{}: not fixed: the file has syntax errors", source.name);
+                continue;
+            }
             match fix::apply(&source.file, &fixes) {
                 Ok(text) => {
                     diff.push_str(&fix::unified_diff(&source.name, &source.file.text, &text));
@@ -90,7 +101,7 @@ pub fn run(args: &CheckArgs) -> u8 {
             }
         }
         if args.dry_run {
-            print!("{diff}");
+            let _ = std::io::stdout().lock().write_all(diff.as_bytes());
             return EXIT_OK;
         }
         if let Err(error) = fix::write_all(&rewritten) {
@@ -117,10 +128,13 @@ pub fn run(args: &CheckArgs) -> u8 {
         }
     }
 
-    match args.format.as_str() {
-        "json" => super::print_json(&output::json(&report)),
-        "sarif" => println!(
-            "{}",
+    let text = match args.format.as_str() {
+        "json" => format!(
+            "{}\n",
+            serde_json::to_string(&output::json(&report)).expect("JSON values always serialise")
+        ),
+        "sarif" => format!(
+            "{}\n",
             serde_json::to_string_pretty(&output::sarif(&report))
                 .expect("JSON values always serialise")
         ),
@@ -132,9 +146,11 @@ pub fn run(args: &CheckArgs) -> u8 {
             } else {
                 Colour::Never
             };
-            print!("{}", output::human(&report, colour));
+            output::human(&report, colour)
         }
-    }
+    };
+    // A closed pipe (`| head`) is not an error of the check: stop writing quietly.
+    let _ = std::io::stdout().lock().write_all(text.as_bytes());
     let failing = report.findings.iter().any(|f| {
         f.severity() == Severity::Error || (args.deny_warnings && f.severity() == Severity::Warning)
     });

@@ -422,6 +422,21 @@ fn fix_rewrites_csv_fields_only() {
     );
 }
 
+#[test]
+fn fix_leaves_a_file_with_syntax_errors_alone() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.toml");
+    let input = "[[couple]]\nreaction = \"Fe3+ + 2 e- -> Fe2+\"\ne0 = 0.77\nsource = \"invented\"\n[[couple]\n";
+    std::fs::write(&path, input).unwrap();
+    let (_, stderr, status) = run(&["--fix", path.to_str().unwrap()]);
+    assert_eq!(status, 1);
+    assert!(
+        stderr.contains("not fixed: the file has syntax errors"),
+        "{stderr}"
+    );
+    assert_eq!(std::fs::read_to_string(&path).unwrap(), input);
+}
+
 // ---- robustness: generated at run time ----
 
 fn assert_clear_error(path: &Path, code: &str) -> Value {
