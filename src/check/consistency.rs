@@ -305,3 +305,50 @@ pub fn check_table(
     }
     findings
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn key(text: &str) -> Option<CoupleKey> {
+        couple_key(&Reaction::from_equation(&text.parse().unwrap()))
+    }
+
+    #[test]
+    fn a_couple_has_one_key_however_it_is_written() {
+        let silver = key("Ag+ + e- -> Ag(s)");
+        assert!(silver.is_some());
+        assert_eq!(key("2 Ag+ + 2 e- -> 2 Ag(s)"), silver);
+        assert_eq!(key("Ag(s) -> Ag+ + e-"), silver);
+        assert_eq!(key("1/2 Ag+ + 1/2 e- -> 1/2 Ag(s)"), silver);
+        // Water's (l) and an ion's (aq) are left out; other states tell couples apart.
+        assert_eq!(
+            key("1/2 O2(g) + 2 H+ + 2 e- -> H2O"),
+            key("O2(g) + 4 H+(aq) + 4 e- -> 2 H2O(l)")
+        );
+        assert_ne!(
+            key("Br2(l) + 2 e- -> 2 Br-"),
+            key("Br2(aq) + 2 e- -> 2 Br-")
+        );
+        assert_eq!(key("Ag+ -> Ag(s)"), None);
+    }
+
+    #[test]
+    fn the_integer_and_exact_paths_give_the_same_key() {
+        for text in [
+            "3/2 O2 + 6 H+ + 6 e- -> 3 H2O",
+            "MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O",
+        ] {
+            let reaction = Reaction::from_equation(&text.parse().unwrap());
+            let fast = couple_key(&reaction).unwrap();
+            let mut terms: Vec<String> = reaction
+                .in_lowest_integers()
+                .entries()
+                .iter()
+                .map(|e| format!("{} {}", e.nu, species_key(&e.species)))
+                .collect();
+            terms.sort();
+            assert_eq!(fast, CoupleKey(terms.join(" ")), "{text}");
+        }
+    }
+}

@@ -18,6 +18,9 @@ use std::sync::LazyLock;
 
 /// Largest |e0| taken as plausible, in volts.
 pub const E0_LIMIT_VOLTS: f64 = 3.5;
+/// Files with at least this many couples are judged on several threads.
+const PARALLEL_FROM_ENTRIES: usize = 4096;
+
 /// Largest |dedt| taken as plausible, in mV/K.
 pub const DEDT_LIMIT_MILLIVOLTS_PER_KELVIN: f64 = 5.0;
 
@@ -99,11 +102,42 @@ pub fn check_file(
             format!("unknown top-level key '{}'", key.value),
         ));
     }
+    // Entries are independent: large files are judged in chunks on the available cores, and
+    // the chunks joined in file order so that the output does not depend on the split.
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
+    let chunk = if file.records.len() >= PARALLEL_FROM_ENTRIES && threads > 1 {
+        file.records.len().div_ceil(threads)
+    } else {
+        file.records.len().max(1)
+    };
+    let judge = |records: &[CoupleRecord]| {
+        let mut findings = Vec::new();
+        let mut judged = Vec::with_capacity(records.len());
+        for record in records {
+            let (entry_findings, entry) = check_record(file_index, record, options);
+            findings.extend(entry_findings);
+            judged.push(entry);
+        }
+        (findings, judged)
+    };
+    let parts: Vec<(Vec<Finding>, Vec<JudgedEntry>)> = std::thread::scope(|scope| {
+        let handles: Vec<_> = file
+            .records
+            .chunks(chunk)
+            .map(|records| scope.spawn(move || judge(records)))
+            .collect();
+        handles
+            .into_iter()
+            .map(|h| {
+                h.join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+            })
+            .collect()
+    });
     let mut judged = Vec::with_capacity(file.records.len());
-    for record in &file.records {
-        let (entry_findings, entry) = check_record(file_index, record, options);
-        findings.extend(entry_findings);
-        judged.push(entry);
+    for (part_findings, part_judged) in parts {
+        findings.extend(part_findings);
+        judged.extend(part_judged);
     }
     (findings, judged)
 }
@@ -543,4 +577,42 @@ fn gcd_i128(mut a: i128, mut b: i128) -> i128 {
         (a, b) = (b, a % b);
     }
     a.abs().max(1)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_integer_count_agrees_with_the_exact_recount() {
+        for text in [
+            "1/2 O2 + 2 H+ + 2 e- -> H2O",
+            "MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O",
+            "MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O",
+            "Fe3+ + 2 e- -> Fe2+",
+            "1/3 Fe3+ + 1/3 e- -> 1/3 Fe2+",
+            "Cu2+ -> Cu(s)",
+        ] {
+            let equation: Equation = text.parse().unwrap();
+            let exact = Reaction::from_equation(&equation).imbalance().is_balanced();
+            assert_eq!(conserved_in_integers(&equation), Some(exact), "{text}");
+        }
+    }
+
+    #[test]
+    fn units_written_into_values_are_converted() {
+        assert_eq!(
+            unit_suggestion("e0", "\"0.34 V\"").as_deref(),
+            Some("e0 = 0.34")
+        );
+        assert_eq!(
+            unit_suggestion("e0", "\"-760 mV\"").as_deref(),
+            Some("e0 = -0.76")
+        );
+        assert_eq!(
+            unit_suggestion("dedt", "\"0.00088 V/K\"").as_deref(),
+            Some("dedt = 0.88")
+        );
+        assert_eq!(unit_suggestion("e0", "\"high\""), None);
+    }
 }

@@ -721,6 +721,27 @@ mod tests {
     }
 
     #[test]
+    fn offsets_inside_escaped_strings_map_to_the_written_characters() {
+        // `\u002D` is one byte in the value and six in the file; `\\` one and two.
+        let text = "[[couple]]\nreaction = \"Ag+ + e- \\u002D> A\\\\g(s) + Xx\"\ne0 = 0.8\nnote = \"\"\"\nab \\\n   cd\"\"\"\n";
+        let file = CoupleFile::from_text(text, FileFormat::Toml);
+        assert!(file.problems.is_empty(), "{:?}", file.problems);
+        let reaction = file.records[0].reaction.as_ref().unwrap();
+        assert_eq!(reaction.value, "Ag+ + e- -> A\\g(s) + Xx");
+        let xx = reaction.value.find("Xx").unwrap();
+        assert_eq!(
+            &text[reaction.file_offset(xx)..reaction.file_offset(xx + 2)],
+            "Xx"
+        );
+        let arrow = reaction.value.find("->").unwrap();
+        assert_eq!(&text[reaction.file_offset(arrow)..][..6], "\\u002D");
+        let note = file.records[0].note.as_ref().unwrap();
+        assert_eq!(note.value, "ab cd");
+        let cd = note.value.find("cd").unwrap();
+        assert_eq!(&text[note.file_offset(cd)..note.file_offset(cd + 2)], "cd");
+    }
+
+    #[test]
     fn toml_wrong_types_and_missing_keys_are_problems_not_failures() {
         let text =
             "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = \"0.80\"\n\n[[couple]]\ne0 = 0\n";
