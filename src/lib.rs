@@ -19,6 +19,7 @@ pub mod activity;
 pub mod balance;
 pub mod capacity;
 pub mod cell;
+pub mod check;
 pub mod composition;
 pub mod constants;
 pub mod discharge;

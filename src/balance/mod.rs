@@ -140,8 +140,8 @@ impl Default for BalanceOptions {
 /// n of a whole reaction from oxidation-number changes; `None` when some species has no
 /// oxidation numbers or n is not whole.
 fn electrons_from_oxidation_numbers(reaction: &Reaction) -> Option<BigInt> {
-    let analysis = crate::oxidation::analyse(reaction).ok()?;
-    analysis.n.is_integer().then(|| analysis.n.to_integer())
+    let n = crate::oxidation::oxidation_number_electrons(reaction)?;
+    n.is_integer().then(|| n.to_integer())
 }
 
 /// A reaction the balancer made and checked: atoms of every element and the charge are

@@ -4,6 +4,7 @@
 mod balance;
 mod capacity;
 mod cell;
+mod check;
 mod common;
 mod derive;
 mod discharge;
@@ -31,7 +32,7 @@ pub const EXIT_USAGE: u8 = 2;
     long_about = "couplet reads half-reactions and formulas as chemists type them (MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O), \
 balances them exactly, and computes the figures a cell designer checks. Exit status: 0 success, \
 1 the input was read but is chemically invalid, 2 usage or syntax error.",
-    after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet balance --medium acid 'MnO4- + Fe2+ -> Mn2+ + Fe3+'\n  couplet oxidation 'K4[Fe(CN)6]'\n  couplet table --element Mn\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'"
+    after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet balance --medium acid 'MnO4- + Fe2+ -> Mn2+ + Fe3+'\n  couplet oxidation 'K4[Fe(CN)6]'\n  couplet table --element Mn\n  couplet check data/ --format sarif\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'"
 )]
 struct Cli {
     #[command(subcommand)]
@@ -44,21 +45,23 @@ enum Command {
     Parse(parse::ParseArgs),
     /// Balance an equation or half-reaction exactly, as written or in acid or base
     Balance(balance::BalanceArgs),
+    /// Oxidation number of every element of a formula or ion, with the rule that gave it
+    Oxidation(oxidation::OxidationArgs),
     /// List, search and show couples of the standard-potential table
     Table(table::TableCommandArgs),
     /// Combine a cathode and an anode couple: net reaction, n, E°cell, ΔG°, K, temperature
     Cell(cell::CellArgs),
     /// A new couple from couples that share species, by adding free energies
     Derive(derive::DeriveArgs),
-    /// Oxidation number of every element of a formula or ion, with the rule that gave it
-    Oxidation(oxidation::OxidationArgs),
+    /// E against pH for a half-reaction (CSV: pH,E_V), other species at unit activity unless given
+    #[command(name = "ph-line")]
+    PhLine(nernst::PhLineArgs),
     /// Theoretical capacity (mAh/g, Ah/kg) and specific energy (Wh/kg, Wh/L) of materials and cells
     Capacity(capacity::CapacityArgs),
     /// Open-circuit voltage along a discharge from initial amounts, with CSV and SVG output
     Discharge(discharge::DischargeArgs),
-    /// E against pH for a half-reaction (CSV: pH,E_V), other species at unit activity unless given
-    #[command(name = "ph-line")]
-    PhLine(nernst::PhLineArgs),
+    /// Validate couple files (TOML or CSV) for CI: syntax, chemistry, numbers, table consistency
+    Check(check::CheckArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -84,6 +87,7 @@ pub fn run() -> ExitCode {
         Command::Capacity(args) => capacity::run(&args),
         Command::Discharge(args) => discharge::run(&args),
         Command::PhLine(args) => nernst::run_ph_line(&args),
+        Command::Check(args) => check::run(&args),
     };
     ExitCode::from(status)
 }

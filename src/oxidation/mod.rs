@@ -30,7 +30,7 @@ mod rules;
 pub use ions::{IonTable, IonTableError, KnownIon, POLYATOMIC_IONS_TOML};
 pub use redox::{
     ElementChange, RedoxAnalysis, RedoxError, RedoxKind, SpeciesPin, analyse, analyse_with,
-    changed_elements, changes_one_element,
+    changed_elements, changes_one_element, oxidation_number_electrons,
 };
 
 use crate::elements::Element;

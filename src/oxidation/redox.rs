@@ -400,3 +400,18 @@ pub fn changed_elements(equation: &Equation) -> Result<Vec<Element>, RedoxError>
 pub fn changes_one_element(equation: &Equation) -> bool {
     matches!(changed_elements(equation), Ok(elements) if elements.len() == 1)
 }
+
+/// The electrons that the oxidation-number changes of a reaction account for, whether or not
+/// they agree with the electrons written; `None` when some species has no oxidation numbers.
+/// The balancer reports it as n of a whole reaction and the data-file checker compares it with
+/// the electrons of each half-reaction.
+pub fn oxidation_number_electrons(reaction: &Reaction) -> Option<BigRational> {
+    match analyse(reaction) {
+        Ok(analysis) => Some(analysis.n),
+        Err(RedoxError::ElectronMismatch {
+            from_oxidation_numbers,
+            ..
+        }) => Some(from_oxidation_numbers),
+        Err(_) => None,
+    }
+}

@@ -31,6 +31,9 @@ pub struct Field<T> {
     /// the value appears literally in the file (no escapes), so that an offset inside the
     /// value maps to `content_start + offset`.
     pub content_start: Option<usize>,
+    /// Where escapes break the one-to-one mapping (TOML basic strings): pairs of (byte offset
+    /// in the value, byte offset in the file), sorted; between two pairs bytes map one to one.
+    pub escapes: Vec<(usize, usize)>,
 }
 
 impl<T> Field<T> {
@@ -38,7 +41,13 @@ impl<T> Field<T> {
     /// the span when the value cannot be mapped one to one (escapes, CSV quoting).
     pub fn file_offset(&self, offset: usize) -> usize {
         match self.content_start {
-            Some(start) => start + offset,
+            Some(start) => {
+                let after = self.escapes.partition_point(|&(value, _)| value <= offset);
+                match after.checked_sub(1).map(|i| self.escapes[i]) {
+                    Some((value, file)) => file + (offset - value),
+                    None => start + offset,
+                }
+            }
             None => self.span.start,
         }
     }
@@ -132,6 +141,8 @@ pub struct ReadProblem {
     pub span: Span,
     /// The couple it concerns (index into [`CoupleFile::records`]), if any.
     pub record: Option<usize>,
+    /// The key it concerns (`e0` for a wrong type or a missing `e0`), if any.
+    pub key: Option<String>,
 }
 
 /// A couple file as read: its text, its records and the problems with its form.
@@ -163,6 +174,7 @@ impl CoupleFile {
                     records: Vec::new(),
                     problems: vec![ReadProblem {
                         kind: ProblemKind::Syntax,
+                        key: None,
                         message: format!("the file is not valid UTF-8 (byte {at})"),
                         span: Span::new(at, at + 1),
                         record: None,
@@ -210,26 +222,93 @@ fn span_of<T>(spanned: &Spanned<T>) -> Span {
     Span::new(range.start, range.end)
 }
 
-/// Where the characters of a quoted TOML string start, if the value is written literally.
-fn literal_content_start(text: &str, span: Span, value: &str) -> Option<usize> {
+/// Where the characters of a quoted TOML string start, and where escapes break the one-to-one
+/// mapping of value bytes to file bytes; `None` when the written form does not decode to
+/// `value`.
+fn content_mapping(text: &str, span: Span, value: &str) -> Option<(usize, Vec<(usize, usize)>)> {
     let raw = text.get(span.start..span.end)?;
     for quote in ["\"\"\"", "'''", "\"", "'"] {
-        if let Some(inner) = raw.strip_prefix(quote).and_then(|r| r.strip_suffix(quote)) {
-            if inner == value {
-                return Some(span.start + quote.len());
-            }
-            // A multi-line string drops a newline right after the opening quotes.
-            if quote.len() == 3 {
-                for newline in ["\r\n", "\n"] {
-                    if inner.strip_prefix(newline) == Some(value) {
-                        return Some(span.start + quote.len() + newline.len());
-                    }
+        let Some(inner) = raw.strip_prefix(quote).and_then(|r| r.strip_suffix(quote)) else {
+            continue;
+        };
+        let mut starts = vec![(inner, span.start + quote.len())];
+        // A multi-line string drops a newline right after the opening quotes.
+        if quote.len() == 3 {
+            for newline in ["\r\n", "\n"] {
+                if let Some(rest) = inner.strip_prefix(newline) {
+                    starts.push((rest, span.start + quote.len() + newline.len()));
                 }
             }
-            return None;
         }
+        for (body, start) in starts {
+            if body == value {
+                return Some((start, Vec::new()));
+            }
+            if !quote.starts_with('"') {
+                continue;
+            }
+            if let Some((decoded, escapes)) = decode_basic(body, start, quote.len() == 3) {
+                if decoded == value {
+                    return Some((start, escapes));
+                }
+            }
+        }
+        return None;
     }
     None
+}
+
+/// Decodes the body of a TOML basic string written at file offset `start`, recording for every
+/// escape where it starts and ends in the value and in the file.
+fn decode_basic(
+    body: &str,
+    start: usize,
+    multi_line: bool,
+) -> Option<(String, Vec<(usize, usize)>)> {
+    let bytes = body.as_bytes();
+    let mut decoded = String::with_capacity(body.len());
+    let mut escapes = Vec::new();
+    let mut i = 0;
+    while i < bytes.len() {
+        if bytes[i] != b'\\' {
+            let c = body[i..].chars().next()?;
+            decoded.push(c);
+            i += c.len_utf8();
+            continue;
+        }
+        escapes.push((decoded.len(), start + i));
+        let kind = *bytes.get(i + 1)?;
+        let hex = |len: usize| -> Option<char> {
+            let digits = body.get(i + 2..i + 2 + len)?;
+            char::from_u32(u32::from_str_radix(digits, 16).ok()?)
+        };
+        let (c, length) = match kind {
+            b'b' => (Some('\u{8}'), 2),
+            b't' => (Some('\t'), 2),
+            b'n' => (Some('\n'), 2),
+            b'f' => (Some('\u{c}'), 2),
+            b'r' => (Some('\r'), 2),
+            b'e' => (Some('\u{1b}'), 2),
+            b'"' => (Some('"'), 2),
+            b'\\' => (Some('\\'), 2),
+            b'x' => (Some(hex(2)?), 4),
+            b'u' => (Some(hex(4)?), 6),
+            b'U' => (Some(hex(8)?), 10),
+            b' ' | b'\t' | b'\r' | b'\n' if multi_line => {
+                // A line-ending backslash drops the whitespace and newlines that follow.
+                let rest = &body[i + 1..];
+                let kept = rest.trim_start_matches([' ', '\t', '\r', '\n']);
+                (None, 1 + rest.len() - kept.len())
+            }
+            _ => return None,
+        };
+        if let Some(c) = c {
+            decoded.push(c);
+        }
+        i += length;
+        escapes.push((decoded.len(), start + i));
+    }
+    Some((decoded, escapes))
 }
 
 /// A TOML float or integer as f64 (TOML allows `_` between digits, `inf` and `nan`).
@@ -265,6 +344,7 @@ fn read_toml(text: &str) -> CoupleFile {
         let range = error.span().unwrap_or(0..0);
         file.problems.push(ReadProblem {
             kind: ProblemKind::Syntax,
+            key: None,
             message: first_line_lower(error.message()),
             span: Span::new(range.start, range.end),
             record: None,
@@ -278,6 +358,7 @@ fn read_toml(text: &str) -> CoupleFile {
         let Some(array) = value.get_ref().as_array() else {
             file.problems.push(ReadProblem {
                 kind: ProblemKind::WrongType,
+                key: None,
                 message: format!(
                     "'couple' must be an array of tables ([[couple]]), found {}",
                     value.get_ref().type_str()
@@ -296,6 +377,7 @@ fn read_toml(text: &str) -> CoupleFile {
                 }
                 None => file.problems.push(ReadProblem {
                     kind: ProblemKind::WrongType,
+                    key: None,
                     message: format!(
                         "each couple must be a table, found {}",
                         item.get_ref().type_str()
@@ -311,10 +393,18 @@ fn read_toml(text: &str) -> CoupleFile {
 
 fn string_field(text: &str, key: &Spanned<Cow<'_, str>>) -> Field<String> {
     let span = span_of(key);
+    let (content_start, escapes) = match content_mapping(text, span, key.get_ref()) {
+        Some((start, escapes)) => (Some(start), escapes),
+        // A bare key is written without quotes.
+        None => (
+            Some(span.start).filter(|_| text.get(span.start..span.end) == Some(key.get_ref())),
+            Vec::new(),
+        ),
+    };
     Field {
         value: key.get_ref().to_string(),
-        content_start: literal_content_start(text, span, key.get_ref())
-            .or(Some(span.start).filter(|_| text.get(span.start..span.end) == Some(key.get_ref()))),
+        content_start,
+        escapes,
         span,
     }
 }
@@ -333,6 +423,7 @@ fn toml_record(
     };
     let wrong_type = |key: &str, expected: &str, value: &Spanned<DeValue<'_>>| ReadProblem {
         kind: ProblemKind::WrongType,
+        key: Some(key.to_owned()),
         message: format!(
             "'{key}' must be {expected}, found {}",
             value.get_ref().type_str()
@@ -351,6 +442,7 @@ fn toml_record(
                         value: number,
                         span: value_span,
                         content_start: None,
+                        escapes: Vec::new(),
                     });
                     if name == "e0" {
                         record.e0_volts = field;
@@ -362,10 +454,12 @@ fn toml_record(
             },
             "id" | "reaction" | "medium" | "source" | "note" => match value.get_ref().as_str() {
                 Some(string) => {
+                    let mapping = content_mapping(text, value_span, string);
                     let field = Some(Field {
                         value: string.to_owned(),
                         span: value_span,
-                        content_start: literal_content_start(text, value_span, string),
+                        content_start: mapping.as_ref().map(|m| m.0),
+                        escapes: mapping.map(|m| m.1).unwrap_or_default(),
                     });
                     match name {
                         "id" => record.id = field,
@@ -393,6 +487,7 @@ fn missing_key(key: &str, index: usize, span: Span) -> ReadProblem {
     // Point at the start of the entry only: a whole table is many lines.
     ReadProblem {
         kind: ProblemKind::MissingKey,
+        key: Some(key.to_owned()),
         message: format!("couple {} has no '{key}'", index + 1),
         span: Span::new(span.start, span.start + 1),
         record: Some(index),
@@ -472,6 +567,7 @@ fn read_csv(text: &str) -> CoupleFile {
                 let at = error.position().map_or(0, |p| p.byte() as usize);
                 file.problems.push(ReadProblem {
                     kind: ProblemKind::Syntax,
+                    key: None,
                     message: first_line_lower(&error.to_string()),
                     span: Span::new(at, at + 1),
                     record: None,
@@ -498,6 +594,7 @@ fn read_csv(text: &str) -> CoupleFile {
                         value: name.clone(),
                         span,
                         content_start,
+                        escapes: Vec::new(),
                     });
                 }
             }
@@ -505,6 +602,7 @@ fn read_csv(text: &str) -> CoupleFile {
                 if !names.iter().any(|n| n == key) {
                     file.problems.push(ReadProblem {
                         kind: ProblemKind::MissingKey,
+                        key: Some(key.to_owned()),
                         message: format!("the header row has no '{key}' column"),
                         span: Span::new(start, end),
                         record: None,
@@ -523,6 +621,7 @@ fn read_csv(text: &str) -> CoupleFile {
         if row.len() != columns.len() {
             file.problems.push(ReadProblem {
                 kind: ProblemKind::Syntax,
+                key: None,
                 message: format!(
                     "row has {} fields, the header has {}",
                     row.len(),
@@ -543,6 +642,7 @@ fn read_csv(text: &str) -> CoupleFile {
                     value: cell.to_owned(),
                     span,
                     content_start,
+                    escapes: Vec::new(),
                 })
             };
             match name.as_str() {
@@ -557,6 +657,7 @@ fn read_csv(text: &str) -> CoupleFile {
                             value: number,
                             span,
                             content_start: None,
+                            escapes: Vec::new(),
                         });
                         if name == "e0" {
                             record.e0_volts = field;
@@ -566,6 +667,7 @@ fn read_csv(text: &str) -> CoupleFile {
                     }
                     Err(_) => file.problems.push(ReadProblem {
                         kind: ProblemKind::WrongType,
+                        key: Some(name.clone()),
                         message: format!("'{name}' must be a number, found '{}'", cell.trim()),
                         span,
                         record: Some(index),
@@ -616,6 +718,27 @@ mod tests {
         assert_eq!(slice(&file, e0.span), "-0.7618");
         assert_eq!(record.unknown_keys[0].value, "colour");
         assert_eq!(slice(&file, record.unknown_keys[0].span), "colour");
+    }
+
+    #[test]
+    fn offsets_inside_escaped_strings_map_to_the_written_characters() {
+        // `\u002D` is one byte in the value and six in the file; `\\` one and two.
+        let text = "[[couple]]\nreaction = \"Ag+ + e- \\u002D> A\\\\g(s) + Xx\"\ne0 = 0.8\nnote = \"\"\"\nab \\\n   cd\"\"\"\n";
+        let file = CoupleFile::from_text(text, FileFormat::Toml);
+        assert!(file.problems.is_empty(), "{:?}", file.problems);
+        let reaction = file.records[0].reaction.as_ref().unwrap();
+        assert_eq!(reaction.value, "Ag+ + e- -> A\\g(s) + Xx");
+        let xx = reaction.value.find("Xx").unwrap();
+        assert_eq!(
+            &text[reaction.file_offset(xx)..reaction.file_offset(xx + 2)],
+            "Xx"
+        );
+        let arrow = reaction.value.find("->").unwrap();
+        assert_eq!(&text[reaction.file_offset(arrow)..][..6], "\\u002D");
+        let note = file.records[0].note.as_ref().unwrap();
+        assert_eq!(note.value, "ab cd");
+        let cd = note.value.find("cd").unwrap();
+        assert_eq!(&text[note.file_offset(cd)..note.file_offset(cd + 2)], "cd");
     }
 
     #[test]

@@ -6,6 +6,7 @@ mod activity;
 mod balance;
 mod capacity;
 mod cell;
+mod check;
 mod discharge;
 mod elements;
 mod export;

@@ -1,0 +1,89 @@
+//! `couplet check` on a generated table of 100,000 couples (built-in entries, varied), beside
+//! the time to only parse the same text with the toml crate.
+
+use couplet::check::{CheckOptions, SourceFile, check};
+use couplet::notation::parse_equation;
+use couplet::reaction::Reaction;
+use couplet::table::{CoupleFile, FileFormat};
+use criterion::{Criterion, criterion_group, criterion_main};
+use num_rational::BigRational;
+use std::fmt::Write;
+use std::hint::black_box;
+use std::time::Duration;
+
+const COUPLES: usize = 100_000;
+
+/// 100,000 entries cycling through the built-in table: unique ids, every third reaction
+/// written with doubled coefficients (the same couple), e0 moved by up to ±3 mV (inside the
+/// default tolerance), every tenth reaction in a literal string.
+pub fn generated_table() -> String {
+    let builtin = std::fs::read_to_string("data/potentials.toml").expect("data/potentials.toml");
+    let table = CoupleFile::from_text(&builtin, FileFormat::Toml);
+    let mut text = String::with_capacity(COUPLES * 200);
+    text.push_str("# generated for the benchmark from data/potentials.toml\n");
+    for k in 0..COUPLES {
+        let record = &table.records[k % table.records.len()];
+        let reaction = &record.reaction.as_ref().unwrap().value;
+        let reaction = if k % 3 == 1 {
+            let doubled = Reaction::from_equation(&parse_equation(reaction).unwrap())
+                .scaled(&BigRational::from_integer(2.into()));
+            doubled.to_string()
+        } else {
+            reaction.clone()
+        };
+        let quoted = if k % 10 == 0 {
+            format!("'{reaction}'")
+        } else {
+            format!("\"{reaction}\"")
+        };
+        let id = &record.id.as_ref().unwrap().value;
+        let e0 = record.e0_volts.as_ref().unwrap().value + ((k % 7) as f64 - 3.0) * 0.001;
+        let _ = write!(
+            text,
+            "\n[[couple]]\nid = \"{id}-{k}\"\nreaction = {quoted}\ne0 = {e0:.4}\n"
+        );
+        if let Some(dedt) = &record.dedt_millivolts_per_kelvin {
+            let _ = writeln!(text, "dedt = {}", dedt.value);
+        }
+        if let Some(medium) = &record.medium {
+            let _ = writeln!(text, "medium = \"{}\"", medium.value);
+        }
+        let _ = writeln!(
+            text,
+            "source = \"generated from entry {}\"",
+            record.index + 1
+        );
+    }
+    text
+}
+
+fn bench(c: &mut Criterion) {
+    let text = generated_table();
+    eprintln!(
+        "generated {COUPLES} couples, {:.1} MB",
+        text.len() as f64 / 1e6
+    );
+    let mut group = c.benchmark_group("check_100k");
+    group.sample_size(10);
+    group.measurement_time(Duration::from_secs(20));
+    group.bench_function("toml_parse_only", |b| {
+        b.iter(|| black_box(toml::from_str::<toml::Table>(black_box(&text)).unwrap()))
+    });
+    group.bench_function("read_records", |b| {
+        b.iter(|| black_box(CoupleFile::from_text(black_box(&text), FileFormat::Toml)))
+    });
+    group.bench_function("read_and_check", |b| {
+        b.iter(|| {
+            let file = SourceFile::new("gen.toml", CoupleFile::from_text(&text, FileFormat::Toml));
+            let report = check(vec![file], &CheckOptions::default());
+            black_box(report.findings.len())
+        })
+    });
+    group.finish();
+    let file = SourceFile::new("gen.toml", CoupleFile::from_text(&text, FileFormat::Toml));
+    let report = check(vec![file], &CheckOptions::default());
+    eprintln!("findings on the generated table: {:?}", report.summary());
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);

@@ -1,0 +1,618 @@
+//! Checks of one couple on its own: form, notation, chemistry (conservation, direction, medium,
+//! electrons against oxidation numbers) and numbers (e0, dedt, units).
+//!
+//! Plausible ranges, documented for users in the rules' descriptions:
+//! - e0 within ±3.5 V vs SHE. Tabulated aqueous couples span about −3.1 V to +3.1 V
+//!   (Li+/Li near −3.04 V, F2/HF near +3.05 V; from memory, common practice): the margin leaves
+//!   room for unusual couples while catching millivolts typed as volts.
+//! - dedt within ±5 mV/K. Isothermal coefficients of tabulated couples stay within about
+//!   ±2 mV/K (from memory): a larger value is most often µV/K typed as mV/K.
+
+use super::{CheckOptions, Finding, Fix, Rule};
+use crate::balance::{BalanceOptions, ElectronRule, Medium, balance};
+use crate::notation::{Equation, Span, Species, parse_equation, parse_species};
+use crate::reaction::Reaction;
+use crate::table::{CoupleFile, CoupleRecord, Field, ProblemKind};
+use num_traits::{Signed, Zero};
+use std::sync::LazyLock;
+
+/// Largest |e0| taken as plausible, in volts.
+pub const E0_LIMIT_VOLTS: f64 = 3.5;
+/// Files with at least this many couples are judged on several threads.
+const PARALLEL_FROM_ENTRIES: usize = 4096;
+
+/// Largest |dedt| taken as plausible, in mV/K.
+pub const DEDT_LIMIT_MILLIVOLTS_PER_KELVIN: f64 = 5.0;
+
+static PROTON: LazyLock<Species> =
+    LazyLock::new(|| parse_species("H+").expect("built-in species parse"));
+static HYDROXIDE: LazyLock<Species> =
+    LazyLock::new(|| parse_species("OH-").expect("built-in species parse"));
+
+/// What the table-wide checks need from one entry.
+#[derive(Clone, Debug)]
+pub struct JudgedEntry {
+    /// The file (index into the report's files).
+    pub file: usize,
+    /// The couple (index into the file's records).
+    pub record: usize,
+    /// The id and where it was written.
+    pub id: Option<(String, Span)>,
+    /// The reaction, when it is a balanced reduction.
+    pub reduction: Option<Reaction>,
+    /// e0 in volts when present and finite, with its span.
+    pub e0_volts: Option<(f64, Span)>,
+    /// Where the entry starts.
+    pub span: Span,
+}
+
+/// The medium an entry declares.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum DeclaredMedium {
+    Acid,
+    Base,
+    Neutral,
+}
+
+/// All findings of one file's entries, and what the table-wide checks need.
+pub fn check_file(
+    file_index: usize,
+    file: &CoupleFile,
+    options: &CheckOptions,
+) -> (Vec<Finding>, Vec<JudgedEntry>) {
+    let mut findings = Vec::new();
+    let finding = |rule, span, message: String| Finding {
+        rule,
+        file: file_index,
+        span,
+        message,
+        suggestion: None,
+        fix: None,
+    };
+    for problem in &file.problems {
+        let rule = match (problem.kind, problem.key.as_deref()) {
+            (ProblemKind::MissingKey, Some("e0")) => Rule::MissingE0,
+            (ProblemKind::MissingKey, _) => Rule::MissingReaction,
+            (ProblemKind::WrongType, Some(key @ ("e0" | "dedt"))) => {
+                let written = file.text.get(problem.span.start..problem.span.end);
+                if let Some(suggestion) = written.and_then(|w| unit_suggestion(key, w)) {
+                    let mut f = finding(
+                        Rule::MixedUnits,
+                        problem.span,
+                        format!(
+                            "'{key}' is written with a unit; write a bare number in {}",
+                            unit_of(key)
+                        ),
+                    );
+                    f.suggestion = Some(suggestion);
+                    findings.push(f);
+                    continue;
+                }
+                Rule::WrongType
+            }
+            (ProblemKind::WrongType, _) => Rule::WrongType,
+            _ => Rule::FileSyntax,
+        };
+        findings.push(finding(rule, problem.span, problem.message.clone()));
+    }
+    for key in &file.unknown_keys {
+        findings.push(finding(
+            Rule::UnknownKey,
+            key.span,
+            format!("unknown top-level key '{}'", key.value),
+        ));
+    }
+    // Entries are independent: large files are judged in chunks on the available cores, and
+    // the chunks joined in file order so that the output does not depend on the split.
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
+    let chunk = if file.records.len() >= PARALLEL_FROM_ENTRIES && threads > 1 {
+        file.records.len().div_ceil(threads)
+    } else {
+        file.records.len().max(1)
+    };
+    let judge = |records: &[CoupleRecord]| {
+        let mut findings = Vec::new();
+        let mut judged = Vec::with_capacity(records.len());
+        for record in records {
+            let (entry_findings, entry) = check_record(file_index, record, options);
+            findings.extend(entry_findings);
+            judged.push(entry);
+        }
+        (findings, judged)
+    };
+    let parts: Vec<(Vec<Finding>, Vec<JudgedEntry>)> = std::thread::scope(|scope| {
+        let handles: Vec<_> = file
+            .records
+            .chunks(chunk)
+            .map(|records| scope.spawn(move || judge(records)))
+            .collect();
+        handles
+            .into_iter()
+            .map(|h| {
+                h.join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+            })
+            .collect()
+    });
+    let mut judged = Vec::with_capacity(file.records.len());
+    for (part_findings, part_judged) in parts {
+        findings.extend(part_findings);
+        judged.extend(part_judged);
+    }
+    (findings, judged)
+}
+
+fn unit_of(key: &str) -> &'static str {
+    if key == "e0" { "V" } else { "mV/K" }
+}
+
+/// For a string value like `"0.34 V"` or `"340 mV"`, the bare number in the key's unit.
+fn unit_suggestion(key: &str, written: &str) -> Option<String> {
+    let inner = written.trim().trim_matches(['"', '\'']).trim();
+    let split = inner
+        .find(|c: char| !(c.is_ascii_digit() || matches!(c, '.' | '-' | '+' | 'e' | 'E' | '_')))
+        .unwrap_or(inner.len());
+    let (number, unit) = inner.split_at(split);
+    let value: f64 = number.trim().replace('_', "").parse().ok()?;
+    let unit = unit.trim().replace(['µ', 'μ'], "u");
+    let factor = match (key, unit.as_str()) {
+        ("e0", "" | "V" | "v" | "volt" | "volts") => 1.0,
+        ("e0", "mV" | "mv") => 1e-3,
+        ("dedt", "" | "mV/K" | "mv/K" | "mV K-1" | "mV/°C") => 1.0,
+        ("dedt", "V/K" | "V K-1") => 1e3,
+        ("dedt", "uV/K" | "uV K-1") => 1e-3,
+        _ => return None,
+    };
+    Some(format!("{key} = {}", trim_float(value * factor)))
+}
+
+/// A float without noise from the unit conversion (at most 9 decimals).
+fn trim_float(value: f64) -> String {
+    let text = format!("{value:.9}");
+    let text = text.trim_end_matches('0').trim_end_matches('.');
+    if text.is_empty() || text == "-" {
+        "0".to_owned()
+    } else {
+        text.to_owned()
+    }
+}
+
+fn check_record(
+    file_index: usize,
+    record: &CoupleRecord,
+    options: &CheckOptions,
+) -> (Vec<Finding>, JudgedEntry) {
+    let mut findings = Vec::new();
+    let mut push = |rule, span, message: String, suggestion: Option<String>, fix| {
+        findings.push(Finding {
+            rule,
+            file: file_index,
+            span,
+            message,
+            suggestion,
+            fix,
+        })
+    };
+    let header_span = Span::new(record.span.start, record.span.start + 1);
+
+    for key in &record.unknown_keys {
+        push(
+            Rule::UnknownKey,
+            key.span,
+            format!(
+                "unknown key '{}' (known: id, reaction, e0, dedt, medium, source, note)",
+                key.value
+            ),
+            None,
+            None,
+        );
+    }
+
+    let medium = match &record.medium {
+        None => None,
+        Some(field) => match field.value.trim() {
+            "acid" => Some(DeclaredMedium::Acid),
+            "base" => Some(DeclaredMedium::Base),
+            "neutral" => Some(DeclaredMedium::Neutral),
+            other => {
+                push(
+                    Rule::UnknownMedium,
+                    field.span,
+                    format!("unknown medium '{other}': expected acid, base or neutral"),
+                    None,
+                    None,
+                );
+                None
+            }
+        },
+    };
+
+    let mut reduction = None;
+    if let Some(field) = &record.reaction {
+        match parse_equation(&field.value) {
+            Err(error) => {
+                let span = match field.content_start {
+                    Some(_) => Span::new(
+                        field.file_offset(error.span.start),
+                        field.file_offset(error.span.end.max(error.span.start)),
+                    ),
+                    None => field.span,
+                };
+                push(Rule::Notation, span, error.message.clone(), None, None);
+            }
+            Ok(equation) => {
+                let (chemistry, is_reduction) =
+                    check_chemistry(record.index, field, &equation, medium, options);
+                for (rule, span, message, suggestion, fix) in chemistry {
+                    push(rule, span, message, suggestion, fix);
+                }
+                if is_reduction {
+                    reduction = Some(Reaction::from_equation(&equation));
+                }
+            }
+        }
+    }
+
+    let mut e0_volts = None;
+    if let Some(e0) = &record.e0_volts {
+        let value = e0.value;
+        if !value.is_finite() {
+            push(
+                Rule::NotFinite,
+                e0.span,
+                format!("e0 must be a finite number of volts, found {value}"),
+                None,
+                None,
+            );
+        } else if value.abs() > E0_LIMIT_VOLTS {
+            if value.abs() >= 10.0 && value.abs() / 1000.0 <= E0_LIMIT_VOLTS {
+                push(
+                    Rule::MixedUnits,
+                    e0.span,
+                    format!("e0 = {value} looks like millivolts; e0 is in volts"),
+                    Some(format!("e0 = {}", trim_float(value / 1000.0))),
+                    None,
+                );
+            } else {
+                push(
+                    Rule::E0OutOfRange,
+                    e0.span,
+                    format!(
+                        "e0 = {value} V is outside the plausible range -{E0_LIMIT_VOLTS} V to +{E0_LIMIT_VOLTS} V"
+                    ),
+                    None,
+                    None,
+                );
+            }
+        } else {
+            e0_volts = Some((value, e0.span));
+        }
+    }
+    if let Some(dedt) = &record.dedt_millivolts_per_kelvin {
+        let value = dedt.value;
+        if !value.is_finite() {
+            push(
+                Rule::NotFinite,
+                dedt.span,
+                format!("dedt must be a finite number of mV/K, found {value}"),
+                None,
+                None,
+            );
+        } else if value.abs() > DEDT_LIMIT_MILLIVOLTS_PER_KELVIN {
+            let as_microvolts = value / 1000.0;
+            let suggestion = (as_microvolts.abs() <= DEDT_LIMIT_MILLIVOLTS_PER_KELVIN).then(|| {
+                format!(
+                    "dedt = {} (if the value was in µV/K)",
+                    trim_float(as_microvolts)
+                )
+            });
+            push(
+                Rule::DedtOutOfRange,
+                dedt.span,
+                format!(
+                    "dedt = {value} mV/K is outside the plausible range -{DEDT_LIMIT_MILLIVOLTS_PER_KELVIN} to +{DEDT_LIMIT_MILLIVOLTS_PER_KELVIN} mV/K"
+                ),
+                suggestion,
+                None,
+            );
+        }
+    }
+
+    if record
+        .source
+        .as_ref()
+        .is_none_or(|s| s.value.trim().is_empty())
+    {
+        push(
+            Rule::MissingSource,
+            header_span,
+            format!(
+                "couple {}{} names no source",
+                record.index + 1,
+                record
+                    .id
+                    .as_ref()
+                    .map(|id| format!(" ('{}')", id.value))
+                    .unwrap_or_default()
+            ),
+            None,
+            None,
+        );
+    }
+
+    let entry = JudgedEntry {
+        file: file_index,
+        record: record.index,
+        id: record.id.as_ref().map(|f| (f.value.clone(), f.span)),
+        reduction,
+        e0_volts,
+        span: record.span,
+    };
+    (findings, entry)
+}
+
+type ChemistryFinding = (Rule, Span, String, Option<String>, Option<Fix>);
+
+/// The file span of a species inside the reaction string (the whole string when the text
+/// cannot be mapped one to one).
+fn species_span(field: &Field<String>, span: Span) -> Span {
+    match field.content_start {
+        Some(_) => Span::new(field.file_offset(span.start), field.file_offset(span.end)),
+        None => field.span,
+    }
+}
+
+fn check_chemistry(
+    record_index: usize,
+    field: &Field<String>,
+    equation: &Equation,
+    medium: Option<DeclaredMedium>,
+    options: &CheckOptions,
+) -> (Vec<ChemistryFinding>, bool) {
+    let mut findings: Vec<ChemistryFinding> = Vec::new();
+    let whole = field.span;
+    let reaction = Reaction::from_equation(equation);
+    let species: Vec<&Species> = equation
+        .reactants
+        .iter()
+        .chain(&equation.products)
+        .map(|t| &t.species)
+        .collect();
+    let find = |wanted: &Species| species.iter().find(|s| s.kind == wanted.kind);
+
+    // Medium against species.
+    let proton = find(&PROTON);
+    let hydroxide = find(&HYDROXIDE);
+    let mismatch = match medium {
+        Some(DeclaredMedium::Acid) => hydroxide.map(|s| {
+            (
+                s,
+                "OH- in an acid entry: write the acid form with H+ and H2O",
+            )
+        }),
+        Some(DeclaredMedium::Base) => proton.map(|s| {
+            (
+                s,
+                "H+ in a base entry: write the base form with OH- and H2O",
+            )
+        }),
+        Some(DeclaredMedium::Neutral) => proton.or(hydroxide).map(|s| {
+            (
+                s,
+                "H+ or OH- in a neutral entry: declare medium acid or base",
+            )
+        }),
+        None => match (proton, hydroxide) {
+            (Some(_), Some(s)) => {
+                Some((s, "H+ and OH- in one entry: write it for acid or for base"))
+            }
+            _ => None,
+        },
+    };
+    if let Some((s, message)) = mismatch {
+        findings.push((
+            Rule::MediumMismatch,
+            species_span(field, s.span),
+            message.to_owned(),
+            None,
+            None,
+        ));
+    }
+
+    let balance_medium = match (medium, proton, hydroxide) {
+        (Some(DeclaredMedium::Acid), _, None) => Medium::Acid,
+        (Some(DeclaredMedium::Base), None, _) => Medium::Base,
+        (None, Some(_), None) => Medium::Acid,
+        (None, None, Some(_)) => Medium::Base,
+        _ => Medium::None,
+    };
+    let suggest = || {
+        let options = BalanceOptions {
+            medium: balance_medium,
+            electrons: ElectronRule::Always,
+            ..BalanceOptions::default()
+        };
+        balance(equation, &options)
+            .ok()
+            .filter(|b| b.reaction().electron_nu().is_negative())
+    };
+
+    let electrons = reaction.electron_nu();
+    let mut is_reduction = true;
+    if electrons.is_zero() {
+        // The missing electrons are also why the charge does not close: one finding, and the
+        // balancer's half-reaction (electrons added) as the fix.
+        let balanced = suggest();
+        findings.push((
+            Rule::NoElectrons,
+            whole,
+            "no e- is written: a couple is a half-reaction, written as a reduction".to_owned(),
+            balanced.as_ref().map(|b| b.ascii()),
+            balanced.map(|b| Fix {
+                record: record_index,
+                reaction: b.ascii(),
+            }),
+        ));
+        return (findings, false);
+    } else if electrons.is_positive() {
+        is_reduction = false;
+        let electron_span = species
+            .iter()
+            .find(|s| s.is_electron())
+            .map_or(whole, |s| species_span(field, s.span));
+        findings.push((
+            Rule::NotAReduction,
+            electron_span,
+            "electrons on the right: tabulated potentials belong to reductions (electrons on the left)"
+                .to_owned(),
+            Some(format!(
+                "{} (reversed; check that e0 is the reduction potential)",
+                reaction.reversed()
+            )),
+            None,
+        ));
+    }
+
+    // The exact recount only when the integer count does not already show conservation.
+    let imbalance = match conserved_in_integers(equation) {
+        Some(true) => None,
+        _ => Some(reaction.imbalance()).filter(|i| !i.is_balanced()),
+    };
+    if let Some(imbalance) = imbalance {
+        is_reduction = false;
+        let balanced = suggest();
+        let suggestion = balanced.as_ref().map(|b| b.ascii());
+        let fix = balanced.map(|b| Fix {
+            record: record_index,
+            reaction: b.ascii(),
+        });
+        let (rule, message) = if imbalance.elements.is_empty() {
+            (
+                Rule::ChargeNotConserved,
+                format!(
+                    "charge not conserved: the right side carries {} more than the left",
+                    imbalance.charge
+                ),
+            )
+        } else {
+            let elements: Vec<String> = imbalance
+                .elements
+                .iter()
+                .map(|(e, n)| format!("{e} {}{n}", if n.is_positive() { "+" } else { "" }))
+                .collect();
+            let mut message = format!(
+                "atoms not conserved (right minus left): {}",
+                elements.join(", ")
+            );
+            if !imbalance.charge.is_zero() {
+                message.push_str(&format!(
+                    ", charge {}{}",
+                    if imbalance.charge.is_positive() {
+                        "+"
+                    } else {
+                        ""
+                    },
+                    imbalance.charge
+                ));
+            }
+            (Rule::AtomsNotConserved, message)
+        };
+        findings.push((rule, whole, message, suggestion, fix));
+    }
+
+    let change = match options.oxidation_number_change {
+        Some(oxidation_change) if is_reduction => oxidation_change(&reaction),
+        _ => None,
+    };
+    if let Some(change) = change {
+        let n = -electrons.clone();
+        if change != n {
+            findings.push((
+                Rule::ElectronsVsOxidation,
+                whole,
+                format!("{n} electrons written, but the oxidation numbers change by {change}"),
+                None,
+                None,
+            ));
+        }
+    }
+    (findings, is_reduction)
+}
+
+/// Whether atoms and charge are conserved, counted in i128 on the written coefficients: the
+/// fast path for the common case. `None` when a number does not fit; then the exact recount of
+/// [`Reaction::imbalance`] decides.
+fn conserved_in_integers(equation: &Equation) -> Option<bool> {
+    let terms = || equation.reactants.iter().chain(&equation.products);
+    let mut denominators_lcm: i128 = 1;
+    for term in terms() {
+        let denominator = i128::from(*term.coefficient.denom());
+        let divisor = gcd_i128(denominators_lcm, denominator);
+        denominators_lcm = denominators_lcm.checked_mul(denominator / divisor)?;
+    }
+    let mut totals: Vec<(crate::elements::Element, i128)> = Vec::with_capacity(8);
+    let mut charge: i128 = 0;
+    for (side, sign) in [(&equation.reactants, -1i128), (&equation.products, 1)] {
+        for term in side {
+            let scale = denominators_lcm / i128::from(*term.coefficient.denom());
+            let coefficient = i128::from(*term.coefficient.numer())
+                .checked_mul(scale)?
+                .checked_mul(sign)?;
+            charge =
+                charge.checked_add(coefficient.checked_mul(i128::from(term.species.charge()))?)?;
+            for &(element, count) in term.species.composition.counts() {
+                let change = coefficient.checked_mul(i128::from(count))?;
+                match totals.iter_mut().find(|(e, _)| *e == element) {
+                    Some((_, total)) => *total = total.checked_add(change)?,
+                    None => totals.push((element, change)),
+                }
+            }
+        }
+    }
+    Some(charge == 0 && totals.iter().all(|(_, total)| *total == 0))
+}
+
+fn gcd_i128(mut a: i128, mut b: i128) -> i128 {
+    while b != 0 {
+        (a, b) = (b, a % b);
+    }
+    a.abs().max(1)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_integer_count_agrees_with_the_exact_recount() {
+        for text in [
+            "1/2 O2 + 2 H+ + 2 e- -> H2O",
+            "MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O",
+            "MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O",
+            "Fe3+ + 2 e- -> Fe2+",
+            "1/3 Fe3+ + 1/3 e- -> 1/3 Fe2+",
+            "Cu2+ -> Cu(s)",
+        ] {
+            let equation: Equation = text.parse().unwrap();
+            let exact = Reaction::from_equation(&equation).imbalance().is_balanced();
+            assert_eq!(conserved_in_integers(&equation), Some(exact), "{text}");
+        }
+    }
+
+    #[test]
+    fn units_written_into_values_are_converted() {
+        assert_eq!(
+            unit_suggestion("e0", "\"0.34 V\"").as_deref(),
+            Some("e0 = 0.34")
+        );
+        assert_eq!(
+            unit_suggestion("e0", "\"-760 mV\"").as_deref(),
+            Some("e0 = -0.76")
+        );
+        assert_eq!(
+            unit_suggestion("dedt", "\"0.00088 V/K\"").as_deref(),
+            Some("dedt = 0.88")
+        );
+        assert_eq!(unit_suggestion("e0", "\"high\""), None);
+    }
+}

@@ -1,0 +1,237 @@
+//! The data-file checker: findings about couple files (form, chemistry, numbers, and the
+//! consistency of every file given together), each with a stable rule code of the project's
+//! own, a severity, a one-line reason, a location and, where the engine knows one, a suggestion.
+//!
+//! Data flows one way: files are read by the one couple-file reader
+//! ([`crate::table::record`]), each entry is judged on its own ([`entry`]), then all entries of
+//! all files together ([`consistency`]). Renderers ([`output`]) and the rewriter ([`fix`]) only
+//! use the [`Report`]; the checker never writes a file.
+//!
+//! ```
+//! use couplet::check::{CheckOptions, SourceFile, check};
+//! use couplet::table::{CoupleFile, FileFormat};
+//!
+//! // Invented entry: the oxygen count is off.
+//! let text = "[[couple]]\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O(l)\"\ne0 = 1.51\nsource = \"our test\"\n";
+//! let file = SourceFile::new("t.toml", CoupleFile::from_text(text, FileFormat::Toml));
+//! let report = check(vec![file], &CheckOptions::default());
+//! assert_eq!(report.findings[0].rule.code(), "CPL201");
+//! assert_eq!(report.findings[0].suggestion.as_deref(), Some("MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)"));
+//! ```
+
+pub mod consistency;
+pub mod entry;
+pub mod fix;
+pub mod load;
+pub mod output;
+mod rules;
+
+pub use load::{LoadError, MAX_FILE_BYTES, load_file};
+pub use rules::{Rule, Severity};
+
+use crate::notation::Span;
+use crate::reaction::Reaction;
+use crate::table::{CoupleFile, FileFormat};
+use num_rational::BigRational;
+
+/// The electrons that the oxidation-number change of a balanced half-reaction accounts for
+/// (the sum over elements of Δ(oxidation number) × atoms, as a positive number), or `None`
+/// when it cannot be told. Supplied by the oxidation-number module.
+pub type OxidationNumberChange = fn(&Reaction) -> Option<BigRational>;
+
+/// Default tolerance between potentials that should agree, in volts.
+pub const DEFAULT_TOLERANCE_VOLTS: f64 = 0.01;
+
+/// How to check.
+#[derive(Clone, Copy, Debug)]
+pub struct CheckOptions {
+    /// How far two potentials that should agree may differ (same couple twice, free-energy
+    /// additivity), in volts.
+    pub tolerance_volts: f64,
+    /// The oxidation-number change of a half-reaction (by default from
+    /// [`crate::oxidation`]): rule [`Rule::ElectronsVsOxidation`] compares the written
+    /// electrons with it. `None` turns that rule off.
+    pub oxidation_number_change: Option<OxidationNumberChange>,
+}
+
+impl Default for CheckOptions {
+    fn default() -> CheckOptions {
+        CheckOptions {
+            tolerance_volts: DEFAULT_TOLERANCE_VOLTS,
+            oxidation_number_change: Some(crate::oxidation::oxidation_number_electrons),
+        }
+    }
+}
+
+/// A file to check: the name to show for it and what the reader made of it.
+#[derive(Clone, Debug)]
+pub struct SourceFile {
+    /// The path as the user gave it (or as found under a directory they gave).
+    pub name: String,
+    /// The records and problems of form.
+    pub file: CoupleFile,
+    /// A problem found before the text could be read (too large, binary): reported as a
+    /// finding, and the file has no records.
+    pub load_finding: Option<(Rule, String)>,
+    /// Byte offsets where lines start, made on first use: locating thousands of findings by
+    /// rescanning the text each time would be quadratic.
+    line_starts: std::sync::OnceLock<Vec<usize>>,
+}
+
+impl SourceFile {
+    /// A file read from text or bytes.
+    pub fn new(name: impl Into<String>, file: CoupleFile) -> SourceFile {
+        SourceFile {
+            name: name.into(),
+            file,
+            load_finding: None,
+            line_starts: std::sync::OnceLock::new(),
+        }
+    }
+
+    /// A file that could not be read as text, with the finding that says why.
+    pub fn unread(
+        name: impl Into<String>,
+        format: FileFormat,
+        rule: Rule,
+        message: String,
+    ) -> SourceFile {
+        SourceFile {
+            load_finding: Some((rule, message)),
+            ..SourceFile::new(name, CoupleFile::from_text("", format))
+        }
+    }
+
+    /// 1-based line and column (in characters) of a byte offset.
+    pub fn line_column(&self, offset: usize) -> (usize, usize) {
+        let text = &self.file.text;
+        let starts = self.line_starts.get_or_init(|| {
+            std::iter::once(0)
+                .chain(text.match_indices('\n').map(|(i, _)| i + 1))
+                .collect()
+        });
+        let mut offset = offset.min(text.len());
+        while !text.is_char_boundary(offset) {
+            offset -= 1;
+        }
+        let line = starts.partition_point(|&start| start <= offset);
+        let line_start = starts[line - 1];
+        (line, text[line_start..offset].chars().count() + 1)
+    }
+}
+
+/// A rewrite the engine is sure of: the new text of one entry's `reaction`.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Fix {
+    /// The couple (index into the file's records).
+    pub record: usize,
+    /// The balanced reaction text to write.
+    pub reaction: String,
+}
+
+/// One finding.
+#[derive(Clone, Debug)]
+pub struct Finding {
+    /// Which rule.
+    pub rule: Rule,
+    /// The file (index into [`Report::files`]).
+    pub file: usize,
+    /// Where in the file.
+    pub span: Span,
+    /// One line, lower-case, no trailing period.
+    pub message: String,
+    /// What to write instead, when the checker knows.
+    pub suggestion: Option<String>,
+    /// A rewrite `--fix` may apply.
+    pub fix: Option<Fix>,
+}
+
+impl Finding {
+    /// The rule's severity.
+    pub fn severity(&self) -> Severity {
+        self.rule.severity()
+    }
+}
+
+/// Counts for the summary line.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize)]
+pub struct Summary {
+    /// Files checked.
+    pub files: usize,
+    /// Couples read.
+    pub entries: usize,
+    /// Findings of severity error.
+    pub errors: usize,
+    /// Findings of severity warning.
+    pub warnings: usize,
+}
+
+/// Everything found in a set of files.
+#[derive(Clone, Debug)]
+pub struct Report {
+    /// The files, in the order given.
+    pub files: Vec<SourceFile>,
+    /// The findings, by file and then by position.
+    pub findings: Vec<Finding>,
+}
+
+impl Report {
+    /// Counts of files, entries, errors and warnings.
+    pub fn summary(&self) -> Summary {
+        let count = |severity| {
+            self.findings
+                .iter()
+                .filter(|f| f.severity() == severity)
+                .count()
+        };
+        Summary {
+            files: self.files.len(),
+            entries: self.files.iter().map(|f| f.file.records.len()).sum(),
+            errors: count(Severity::Error),
+            warnings: count(Severity::Warning),
+        }
+    }
+
+    /// 1-based line and column (in characters) where a finding starts.
+    pub fn line_column(&self, finding: &Finding) -> (usize, usize) {
+        self.files[finding.file].line_column(finding.span.start)
+    }
+
+    /// The fixes for one file, in record order.
+    pub fn fixes_for(&self, file: usize) -> Vec<&Fix> {
+        let mut fixes: Vec<&Fix> = self
+            .findings
+            .iter()
+            .filter(|f| f.file == file)
+            .filter_map(|f| f.fix.as_ref())
+            .collect();
+        fixes.sort_by_key(|f| f.record);
+        fixes.dedup_by_key(|f| f.record);
+        fixes
+    }
+}
+
+/// Checks every file on its own, then all of them together.
+pub fn check(files: Vec<SourceFile>, options: &CheckOptions) -> Report {
+    let mut findings = Vec::new();
+    let mut judged = Vec::new();
+    for (index, source) in files.iter().enumerate() {
+        if let Some((rule, message)) = &source.load_finding {
+            findings.push(Finding {
+                rule: *rule,
+                file: index,
+                span: Span::new(0, 0),
+                message: message.clone(),
+                suggestion: None,
+                fix: None,
+            });
+            continue;
+        }
+        let (file_findings, entries) = entry::check_file(index, &source.file, options);
+        findings.extend(file_findings);
+        judged.extend(entries);
+    }
+    findings.extend(consistency::check_table(&files, &judged, options));
+    findings.sort_by_key(|f| (f.file, f.span.start, f.rule.code()));
+    Report { files, findings }
+}

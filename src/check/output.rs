@@ -1,0 +1,283 @@
+//! Writing a check [`Report`]: compiler-style text with the source line and a caret, the
+//! documented JSON form, and SARIF 2.1.0 (OASIS) for code-scanning services.
+
+use super::{Finding, Report, Rule, Severity};
+use serde_json::{Value, json};
+
+/// Characters of a source line shown on each side of the fault when the line is long.
+const LINE_WINDOW_CHARS: usize = 60;
+
+/// Whether to colour the text output.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Colour {
+    /// Plain text.
+    Never,
+    /// ANSI colours.
+    Always,
+}
+
+fn paint(colour: Colour, code: &str, text: &str) -> String {
+    match colour {
+        Colour::Never => text.to_owned(),
+        Colour::Always => format!("\x1b[{code}m{text}\x1b[0m"),
+    }
+}
+
+/// The findings as compiler-style diagnostics, then the summary line:
+///
+/// ```text
+/// error CPL201 atoms-not-conserved: atoms not conserved (right minus left): O -1
+///  --> t.toml:2:12
+///   |
+/// 2 | reaction = "MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O(l)"
+///   |            ^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^
+///   = suggestion: MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)
+/// ```
+pub fn human(report: &Report, colour: Colour) -> String {
+    let mut out = String::new();
+    for finding in &report.findings {
+        out.push_str(&human_finding(report, finding, colour));
+        out.push('\n');
+    }
+    out.push_str(&summary_line(report));
+    out.push('\n');
+    out
+}
+
+/// The closing line: `checked 2 files, 14 couples: 1 error, 0 warnings`.
+pub fn summary_line(report: &Report) -> String {
+    let s = report.summary();
+    let plural =
+        |n: usize, one: &str, many: &str| format!("{n} {}", if n == 1 { one } else { many });
+    format!(
+        "checked {}, {}: {}, {}",
+        plural(s.files, "file", "files"),
+        plural(s.entries, "couple", "couples"),
+        plural(s.errors, "error", "errors"),
+        plural(s.warnings, "warning", "warnings")
+    )
+}
+
+fn human_finding(report: &Report, finding: &Finding, colour: Colour) -> String {
+    let source = &report.files[finding.file];
+    let text = &source.file.text;
+    let severity = finding.severity();
+    let (line_number, column) = report.line_column(finding);
+    let mut out = String::new();
+    let label = match severity {
+        Severity::Error => paint(colour, "1;31", "error"),
+        Severity::Warning => paint(colour, "1;33", "warning"),
+    };
+    out.push_str(&format!(
+        "{label} {} {}: {}\n",
+        paint(colour, "1", finding.rule.code()),
+        finding.rule.name(),
+        paint(colour, "1", &finding.message)
+    ));
+    let gutter = line_number.to_string().len();
+    let pad = " ".repeat(gutter);
+    out.push_str(&format!(
+        "{pad}{} {}:{line_number}:{column}\n",
+        paint(colour, "34", "-->"),
+        source.name
+    ));
+    if !text.is_empty() {
+        let start = floor_boundary(text, finding.span.start.min(text.len()));
+        let line_start = text[..start].rfind('\n').map_or(0, |i| i + 1);
+        let line_end = text[start..].find('\n').map_or(text.len(), |i| start + i);
+        let end = floor_boundary(text, finding.span.end.clamp(start, line_end));
+        let line = text[line_start..line_end].trim_end_matches('\r');
+        let before: Vec<char> = text[line_start..start].chars().collect();
+        let marked = text[start..end].chars().count().max(1);
+        // Long lines (a million characters) are shown as a window around the fault.
+        let skip = before.len().saturating_sub(LINE_WINDOW_CHARS);
+        let shown: String = line
+            .chars()
+            .skip(skip)
+            .take(2 * LINE_WINDOW_CHARS + marked.min(LINE_WINDOW_CHARS))
+            .collect();
+        let shown_len = line.chars().count();
+        let prefix = if skip > 0 { "…" } else { "" };
+        let suffix = if skip + shown.chars().count() < shown_len {
+            "…"
+        } else {
+            ""
+        };
+        let bar = paint(colour, "34", "|");
+        out.push_str(&format!("{pad} {bar}\n"));
+        out.push_str(&format!(
+            "{} {bar} {prefix}{shown}{suffix}\n",
+            paint(colour, "34", &line_number.to_string())
+        ));
+        let caret_pad = before.len() - skip + prefix.chars().count();
+        let caret_color = if severity == Severity::Error {
+            "1;31"
+        } else {
+            "1;33"
+        };
+        out.push_str(&format!(
+            "{pad} {bar} {}{}\n",
+            " ".repeat(caret_pad),
+            paint(
+                colour,
+                caret_color,
+                &"^".repeat(marked.min(2 * LINE_WINDOW_CHARS))
+            )
+        ));
+    }
+    if let Some(suggestion) = &finding.suggestion {
+        out.push_str(&format!(
+            "{pad} = {} {suggestion}\n",
+            paint(colour, "1;32", "suggestion:")
+        ));
+    }
+    out
+}
+
+fn floor_boundary(text: &str, mut offset: usize) -> usize {
+    while !text.is_char_boundary(offset) {
+        offset -= 1;
+    }
+    offset
+}
+
+/// The documented JSON form:
+/// `{"diagnostics": [{"file", "line", "column", "severity", "code", "message", "suggestion"}],
+/// "summary": {"files", "entries", "errors", "warnings"}}`; `suggestion` is null when there is
+/// none.
+pub fn json(report: &Report) -> Value {
+    let diagnostics: Vec<Value> = report
+        .findings
+        .iter()
+        .map(|finding| {
+            let (line, column) = report.line_column(finding);
+            json!({
+                "file": report.files[finding.file].name,
+                "line": line,
+                "column": column,
+                "severity": finding.severity().name(),
+                "code": finding.rule.code(),
+                "message": finding.message,
+                "suggestion": finding.suggestion,
+            })
+        })
+        .collect();
+    json!({ "diagnostics": diagnostics, "summary": report.summary() })
+}
+
+/// The published SARIF 2.1.0 schema address (OASIS, errata 01).
+pub const SARIF_SCHEMA_URI: &str =
+    "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json";
+
+/// A file path as a relative URI reference (forward slashes; characters outside the unreserved
+/// set and `/` percent-encoded).
+fn uri_reference(path: &str) -> String {
+    let path = path.replace('\\', "/");
+    let mut out = String::new();
+    for byte in path.bytes() {
+        match byte {
+            b'A'..=b'Z' | b'a'..=b'z' | b'0'..=b'9' | b'-' | b'.' | b'_' | b'~' | b'/' => {
+                out.push(byte as char)
+            }
+            _ => out.push_str(&format!("%{byte:02X}")),
+        }
+    }
+    out
+}
+
+/// The report as a SARIF 2.1.0 log: one run, every rule described, one result per finding with
+/// its region (columns in Unicode code points), and a `fixes` entry where `--fix` would rewrite.
+pub fn sarif(report: &Report) -> Value {
+    let rules: Vec<Value> = Rule::ALL
+        .iter()
+        .map(|rule| {
+            json!({
+                "id": rule.code(),
+                "name": rule.name(),
+                "shortDescription": { "text": rule.description() },
+                "defaultConfiguration": { "level": rule.severity().name() },
+            })
+        })
+        .collect();
+    let results: Vec<Value> = report
+        .findings
+        .iter()
+        .map(|finding| {
+            let source = &report.files[finding.file];
+            let (start_line, start_column) = report.line_column(finding);
+            let (end_line, end_column) = source.line_column(finding.span.end);
+            let (end_line, end_column) = if (end_line, end_column) <= (start_line, start_column) {
+                (start_line, start_column + 1)
+            } else {
+                (end_line, end_column)
+            };
+            let uri = uri_reference(&source.name);
+            let region = json!({
+                "startLine": start_line,
+                "startColumn": start_column,
+                "endLine": end_line,
+                "endColumn": end_column,
+            });
+            let mut message = finding.message.clone();
+            if let Some(suggestion) = &finding.suggestion {
+                message.push_str(&format!(" (suggestion: {suggestion})"));
+            }
+            let mut result = json!({
+                "ruleId": finding.rule.code(),
+                "ruleIndex": Rule::ALL.iter().position(|r| *r == finding.rule).unwrap_or(0),
+                "level": finding.severity().name(),
+                "message": { "text": message },
+                "locations": [{
+                    "physicalLocation": {
+                        "artifactLocation": { "uri": uri },
+                        "region": region,
+                    }
+                }],
+            });
+            if let Some(replacement) = fix_replacement(report, finding) {
+                result["fixes"] = json!([{
+                    "description": { "text": "write the balanced reaction" },
+                    "artifactChanges": [{
+                        "artifactLocation": { "uri": uri },
+                        "replacements": [replacement],
+                    }],
+                }]);
+            }
+            result
+        })
+        .collect();
+    json!({
+        "$schema": SARIF_SCHEMA_URI,
+        "version": "2.1.0",
+        "runs": [{
+            "tool": {
+                "driver": {
+                    "name": "couplet",
+                    "version": env!("CARGO_PKG_VERSION"),
+                    "rules": rules,
+                }
+            },
+            "columnKind": "unicodeCodePoints",
+            "results": results,
+        }],
+    })
+}
+
+/// The SARIF replacement for a finding's fix: the reaction value's region and the new value
+/// as the file format writes it.
+fn fix_replacement(report: &Report, finding: &Finding) -> Option<Value> {
+    let fix = finding.fix.as_ref()?;
+    let source = &report.files[finding.file];
+    let field = source.file.records.get(fix.record)?.reaction.as_ref()?;
+    let (start_line, start_column) = source.line_column(field.span.start);
+    let (end_line, end_column) = source.line_column(field.span.end);
+    Some(json!({
+        "deletedRegion": {
+            "startLine": start_line,
+            "startColumn": start_column,
+            "endLine": end_line,
+            "endColumn": end_column,
+        },
+        "insertedContent": { "text": super::fix::written_value(source.file.format, &fix.reaction) },
+    }))
+}

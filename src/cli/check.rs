@@ -1,0 +1,158 @@
+//! `couplet check`: validates couple files (and directories of them) for CI, optionally
+//! rewriting reactions the balancer balances unambiguously.
+
+use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
+use couplet::check::load::{expand_paths, load_file, looks_like_couple_file};
+use couplet::check::output::{self, Colour};
+use couplet::check::{CheckOptions, DEFAULT_TOLERANCE_VOLTS, Severity, check, fix};
+use couplet::table::ProblemKind;
+use std::io::{IsTerminal, Write};
+use std::path::PathBuf;
+
+#[derive(clap::Args)]
+pub struct CheckArgs {
+    /// Couple files (TOML or CSV) and directories to search for *.toml and *.csv
+    #[arg(required = true)]
+    paths: Vec<PathBuf>,
+    /// Output: human (diagnostics with source lines), json, sarif (SARIF 2.1.0)
+    #[arg(long, value_parser = ["human", "json", "sarif"], default_value = "human")]
+    format: String,
+    /// How far potentials that should agree may differ, in volts
+    #[arg(long, default_value_t = DEFAULT_TOLERANCE_VOLTS, value_parser = parse_tolerance)]
+    tolerance: f64,
+    /// Count warnings as errors for the exit status
+    #[arg(long)]
+    deny_warnings: bool,
+    /// Rewrite reactions the balancer balances unambiguously (nothing else in the file changes)
+    #[arg(long)]
+    fix: bool,
+    /// With --fix: print the changes as a unified diff and write nothing
+    #[arg(long, requires = "fix")]
+    dry_run: bool,
+}
+
+fn parse_tolerance(text: &str) -> Result<f64, String> {
+    match text.parse::<f64>() {
+        Ok(v) if v.is_finite() && v >= 0.0 => Ok(v),
+        _ => Err(format!(
+            "'{text}' is not a tolerance: give a non-negative number of volts"
+        )),
+    }
+}
+
+pub fn run(args: &CheckArgs) -> u8 {
+    let found = match expand_paths(&args.paths) {
+        Ok(found) => found,
+        Err(error) => {
+            eprintln!("error: {error}");
+            return EXIT_USAGE;
+        }
+    };
+    let mut sources = Vec::new();
+    let mut paths = Vec::new();
+    for (path, under_directory) in found {
+        match load_file(&path) {
+            Ok(source) => {
+                if under_directory && !looks_like_couple_file(&source) {
+                    continue;
+                }
+                sources.push(source);
+                paths.push(path);
+            }
+            Err(error) => {
+                eprintln!("error: {error}");
+                return EXIT_USAGE;
+            }
+        }
+    }
+    let options = CheckOptions {
+        tolerance_volts: args.tolerance,
+        ..CheckOptions::default()
+    };
+    let mut report = check(sources, &options);
+
+    if args.fix {
+        let mut rewritten = Vec::new();
+        let mut diff = String::new();
+        for (index, source) in report.files.iter().enumerate() {
+            let fixes = report.fixes_for(index);
+            if fixes.is_empty() {
+                continue;
+            }
+            // What a broken file holds is a guess of the recovering parser: edit none of it.
+            if source
+                .file
+                .problems
+                .iter()
+                .any(|p| p.kind == ProblemKind::Syntax)
+            {
+                eprintln!("{}: not fixed: the file has syntax errors", source.name);
+                continue;
+            }
+            match fix::apply(&source.file, &fixes) {
+                Ok(text) => {
+                    diff.push_str(&fix::unified_diff(&source.name, &source.file.text, &text));
+                    rewritten.push((paths[index].clone(), text));
+                }
+                Err(error) => {
+                    eprintln!("error: {}: {error}", source.name);
+                    return EXIT_USAGE;
+                }
+            }
+        }
+        if args.dry_run {
+            let _ = std::io::stdout().lock().write_all(diff.as_bytes());
+            return EXIT_OK;
+        }
+        if let Err(error) = fix::write_all(&rewritten) {
+            eprintln!("error: {error}; no file was changed");
+            return EXIT_USAGE;
+        }
+        if !rewritten.is_empty() {
+            eprintln!(
+                "fixed {} file{}; checking again",
+                rewritten.len(),
+                if rewritten.len() == 1 { "" } else { "s" }
+            );
+            let mut sources = Vec::new();
+            for path in &paths {
+                match load_file(path) {
+                    Ok(source) => sources.push(source),
+                    Err(error) => {
+                        eprintln!("error: {error}");
+                        return EXIT_USAGE;
+                    }
+                }
+            }
+            report = check(sources, &options);
+        }
+    }
+
+    let text = match args.format.as_str() {
+        "json" => format!(
+            "{}\n",
+            serde_json::to_string(&output::json(&report)).expect("JSON values always serialise")
+        ),
+        "sarif" => format!(
+            "{}\n",
+            serde_json::to_string_pretty(&output::sarif(&report))
+                .expect("JSON values always serialise")
+        ),
+        _ => {
+            let stdout = std::io::stdout();
+            let no_color = std::env::var_os("NO_COLOR").is_some_and(|v| !v.is_empty());
+            let colour = if stdout.is_terminal() && !no_color {
+                Colour::Always
+            } else {
+                Colour::Never
+            };
+            output::human(&report, colour)
+        }
+    };
+    // A closed pipe (`| head`) is not an error of the check: stop writing quietly.
+    let _ = std::io::stdout().lock().write_all(text.as_bytes());
+    let failing = report.findings.iter().any(|f| {
+        f.severity() == Severity::Error || (args.deny_warnings && f.severity() == Severity::Warning)
+    });
+    if failing { EXIT_FINDINGS } else { EXIT_OK }
+}
