@@ -186,10 +186,18 @@ fn side_table(out: &mut String, title: &str, terms: &[Term]) {
 fn input_table(input: &Input) -> String {
     let mut out = String::new();
     match input {
-        Input::Species(terms) => side_table(&mut out, "species", terms),
+        Input::Species(terms) => {
+            side_table(&mut out, "species", terms);
+            let latex: Vec<String> = terms
+                .iter()
+                .map(|t| format!("\\ce{{{}}}", t.species.mhchem()))
+                .collect();
+            out.push_str(&format!("LaTeX     {}\n", latex.join(" ")));
+        }
         Input::Equation(eq) => {
             out.push_str(&format!("read as   {}\n", eq.unicode()));
-            out.push_str(&format!("canonical {}\n\n", eq.ascii()));
+            out.push_str(&format!("canonical {}\n", eq.ascii()));
+            out.push_str(&format!("LaTeX     {}\n\n", eq.latex()));
             side_table(&mut out, "left side", &eq.reactants);
             side_table(&mut out, "right side", &eq.products);
             let (left, left_charge) = totals(&eq.reactants);

@@ -252,3 +252,87 @@ mod properties {
         }
     }
 }
+
+mod command {
+    //! `couplet parse`: the JSON schema of the README, LaTeX output and exit codes.
+    use assert_cmd::Command;
+    use serde_json::Value;
+
+    fn parse_json(input: &str) -> (Value, i32) {
+        let output = Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+            .args(["parse", "--json", input])
+            .output()
+            .unwrap();
+        let value = serde_json::from_slice(&output.stdout).unwrap();
+        (value, output.status.code().unwrap())
+    }
+
+    #[test]
+    fn species_and_equations_follow_the_documented_schema() {
+        let (v, status) = parse_json("SO₄²⁻");
+        assert_eq!(status, 0);
+        let s = &v["species"][0];
+        assert_eq!(s["input"], "SO₄²⁻");
+        assert_eq!(s["canonical"], "SO4^2-");
+        assert_eq!(s["coefficient"], "1");
+        assert_eq!(s["elements"]["S"], 1);
+        assert_eq!(s["elements"]["O"], 4);
+        assert_eq!(s["charge"], -2);
+        assert!(s["state"].is_null());
+        // CIAAW 2021 abridged weights: 32.06 + 4 × 15.999 = 96.056 g/mol.
+        assert!((s["molar_mass_g_per_mol"].as_f64().unwrap() - 96.056).abs() < 1e-9);
+
+        let (v, status) = parse_json("1/2 O2(g) + 2 H+ + 2 e- = H2O(l)");
+        assert_eq!(status, 0);
+        assert_eq!(v["arrow"], "=");
+        assert_eq!(v["reactants"][0]["coefficient"], "1/2");
+        assert_eq!(v["reactants"][0]["state"], "g");
+        let electron = &v["reactants"][2];
+        assert_eq!(electron["canonical"], "e-");
+        assert_eq!(electron["charge"], -1);
+        assert!(electron["molar_mass_g_per_mol"].is_null());
+        assert_eq!(electron["elements"], serde_json::json!({}));
+    }
+
+    #[test]
+    fn errors_are_json_on_stdout_with_line_and_column_and_exit_codes() {
+        let (v, status) = parse_json("H2 + Xx -> H2O");
+        assert_eq!(status, 2);
+        assert_eq!(v["error"]["kind"], "unknown_element");
+        assert_eq!(
+            (v["error"]["line"].as_u64(), v["error"]["column"].as_u64()),
+            (Some(1), Some(6))
+        );
+        // Read, but no species can be it: more positive charge than protons.
+        let (v, status) = parse_json("He3+");
+        assert_eq!(status, 1);
+        assert_eq!(v["error"]["kind"], "chemistry");
+    }
+
+    #[test]
+    fn human_output_shows_unicode_canonical_latex_and_balance_as_written() {
+        let output = Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+            .args(["parse", "MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O"])
+            .output()
+            .unwrap();
+        let text = String::from_utf8(output.stdout).unwrap();
+        assert!(
+            text.contains("read as   MnO₄⁻ + 8 H⁺ + 5 e⁻ → Mn²⁺ + 4 H₂O"),
+            "{text}"
+        );
+        assert!(
+            text.contains(r"LaTeX     \ce{MnO4^- + 8 H^+ + 5 e- -> Mn^2+ + 4 H2O}"),
+            "{text}"
+        );
+        assert!(
+            text.contains("as written: atoms and charge balance"),
+            "{text}"
+        );
+        let output = Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+            .args(["parse", "MnO4- + H+ + e- -> Mn2+ + H2O"])
+            .output()
+            .unwrap();
+        let text = String::from_utf8(output.stdout).unwrap();
+        assert!(text.contains("as written: not balanced"), "{text}");
+    }
+}
