@@ -384,6 +384,17 @@ pub fn derive(couples: &[Couple]) -> Result<Derived, DeriveError> {
 }
 
 /// A species that the caution line names.
+/// True when some chromium of the species is at +6 by the oxidation-number rules (dichromate,
+/// chromate, CrO3, salts such as K2Cr2O7).
+fn holds_chromium_vi(species: &Species) -> bool {
+    let six = num_rational::BigRational::from_integer(6.into());
+    crate::oxidation::oxidation_numbers(species).is_ok_and(|oxidation| {
+        oxidation.elements.iter().any(|e| {
+            e.element.symbol() == "Cr" && e.sites.iter().any(|s| s.oxidation_number == six)
+        })
+    })
+}
+
 fn hazard_of(species: &Species, is_product: bool) -> Option<&'static str> {
     let counts = species.composition.counts();
     let count = |symbol: &str| {
@@ -408,14 +419,8 @@ fn hazard_of(species: &Species, is_product: bool) -> Option<&'static str> {
             }
         }
     }
-    let cr = count("Cr");
-    if cr > 0 && only(&["Cr", "O", "H"]) {
-        // Oxidation number of Cr from charge balance with O −2 and H +1.
-        let o = count("O") as i64;
-        let h = count("H") as i64;
-        if (species.charge() + 2 * o - h) == 6 * cr as i64 {
-            return Some("chromium(VI) (carcinogenic)");
-        }
+    if count("Cr") > 0 && holds_chromium_vi(species) {
+        return Some("chromium(VI) (carcinogenic)");
     }
     for (symbol, hazard) in [
         ("Hg", "mercury (toxic)"),

@@ -120,7 +120,11 @@ fn human(balanced: &BalancedReaction) -> String {
             );
         }
     }
+    let caution = couplet::cell::caution(balanced.reaction());
     let Some((analysis, halves)) = redox_of(balanced) else {
+        if let Some(caution) = caution {
+            let _ = writeln!(out, "{caution}");
+        }
         return out;
     };
     for (word, changes) in [
@@ -141,6 +145,9 @@ fn human(balanced: &BalancedReaction) -> String {
     if let Some(halves) = halves {
         let _ = writeln!(out, "oxidation half  {}", halves.oxidation.ascii());
         let _ = writeln!(out, "reduction half  {}", halves.reduction.ascii());
+    }
+    if let Some(caution) = caution {
+        let _ = writeln!(out, "{caution}");
     }
     out
 }

@@ -496,3 +496,29 @@ fn command_exit_codes() {
         .assert()
         .code(2);
 }
+
+#[test]
+fn hazardous_reactions_carry_a_caution() {
+    // Dichromate is Cr(VI) (carcinogenic: common practice of the trade); electrolysis of water
+    // evolves hydrogen and oxygen.
+    for (input, hazard) in [
+        ("K2Cr2O7 + HCl -> KCl + CrCl3 + Cl2 + H2O", "chromium(VI)"),
+        ("H2O -> H2 + O2", "hydrogen"),
+    ] {
+        couplet()
+            .args(["balance", input])
+            .assert()
+            .success()
+            .stdout(predicates::str::contains(format!(
+                "caution: involves {hazard}"
+            )))
+            .stdout(predicates::str::contains("follow local codes"));
+    }
+    couplet()
+        .args(["balance", "--medium", "acid", "MnO4- + Fe2+ -> Mn2+ + Fe3+"])
+        .assert()
+        .success()
+        .stdout(predicates::prelude::PredicateBooleanExt::not(
+            predicates::str::contains("caution"),
+        ));
+}
