@@ -147,12 +147,21 @@ fn electrons_from_oxidation_numbers(reaction: &Reaction) -> Option<BigInt> {
 /// A reaction the balancer made and checked: atoms of every element and the charge are
 /// conserved, coefficients are the smallest positive integers, the user's species keep their
 /// order and side. Only [`balance`] constructs it.
-#[derive(Clone, Debug, PartialEq, Eq)]
+#[derive(Clone, Debug)]
 pub struct BalancedReaction {
     reaction: Reaction,
     medium: Medium,
-    electrons_transferred: Option<BigInt>,
+    /// Computes n of a whole reaction when asked (balancing itself never needs it).
+    electrons_transferred: Option<ElectronsTransferred>,
 }
+
+impl PartialEq for BalancedReaction {
+    fn eq(&self, other: &BalancedReaction) -> bool {
+        // How n is computed is not part of what the reaction is.
+        self.reaction == other.reaction && self.medium == other.medium
+    }
+}
+impl Eq for BalancedReaction {}
 
 impl BalancedReaction {
     /// The reaction (signed stoichiometric numbers, all integers).
@@ -176,7 +185,7 @@ impl BalancedReaction {
         if self.is_half_reaction() {
             Some(self.reaction.electron_nu().to_integer().abs())
         } else {
-            self.electrons_transferred.clone()
+            self.electrons_transferred.and_then(|n| n(&self.reaction))
         }
     }
 
@@ -421,11 +430,7 @@ pub fn balance(
             }
         }
     }?;
-    let electrons_transferred = if reaction.electron_nu().is_zero() {
-        options.electrons_transferred.and_then(|n| n(&reaction))
-    } else {
-        None
-    };
+    let electrons_transferred = options.electrons_transferred;
     Ok(BalancedReaction {
         reaction,
         medium: options.medium,

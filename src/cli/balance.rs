@@ -99,9 +99,21 @@ pub fn run(args: &BalanceArgs) -> u8 {
     status
 }
 
+/// Electrons of a half-reaction, or n of a whole reaction from its redox analysis (computed
+/// once per result and shared with the redox fields).
+fn electrons(balanced: &BalancedReaction, redox: Option<&RedoxAnalysis>) -> Option<BigInt> {
+    if balanced.is_half_reaction() {
+        return balanced.electrons();
+    }
+    redox
+        .filter(|analysis| analysis.n.is_integer())
+        .map(|analysis| analysis.n.to_integer())
+}
+
 fn human(balanced: &BalancedReaction) -> String {
     let mut out = format!("{}\n{}\n", balanced.ascii(), balanced.unicode());
-    match balanced.electrons() {
+    let redox = redox_of(balanced);
+    match electrons(balanced, redox.as_ref().map(|(analysis, _)| analysis)) {
         Some(n) if balanced.is_half_reaction() => {
             let direction = if balanced.reaction().electron_nu().is_negative() {
                 "reduction"
@@ -121,7 +133,7 @@ fn human(balanced: &BalancedReaction) -> String {
         }
     }
     let caution = couplet::cell::caution(balanced.reaction());
-    let Some((analysis, halves)) = redox_of(balanced) else {
+    let Some((analysis, halves)) = redox else {
         if let Some(caution) = caution {
             let _ = writeln!(out, "{caution}");
         }
@@ -232,13 +244,14 @@ fn result_json(
             side_json(&mut out, &balanced.reactants());
             out.push_str(",\"products\":");
             side_json(&mut out, &balanced.products());
-            match balanced.electrons() {
+            let redox = redox_of(balanced);
+            match electrons(balanced, redox.as_ref().map(|(analysis, _)| analysis)) {
                 Some(n) => {
                     let _ = write!(out, ",\"electrons\":{n}");
                 }
                 None => out.push_str(",\"electrons\":null"),
             }
-            if let Some((analysis, halves)) = redox_of(balanced) {
+            if let Some((analysis, halves)) = redox {
                 let n = if analysis.n.is_integer() {
                     analysis.n.to_integer().to_string()
                 } else {

@@ -394,7 +394,32 @@ pub fn oxidation_numbers_with(
     species: &Species,
     options: &Options,
 ) -> Result<SpeciesOxidation, OxidationError> {
-    IonTable::builtin()?.oxidation_numbers(species, options)
+    if !options.pins.is_empty() {
+        return IonTable::builtin()?.oxidation_numbers(species, options);
+    }
+    // The answer depends on the formula alone, and batches and tables name the same few
+    // species (H2O, H+, OH-, common ions) over and over: remember recent answers per thread.
+    MEMO.with(|memo| {
+        if let Some(known) = memo.borrow().get(&species.kind) {
+            return known.clone();
+        }
+        let answer = IonTable::builtin()?.oxidation_numbers(species, options);
+        let mut memo = memo.borrow_mut();
+        if memo.len() >= MEMO_CAPACITY {
+            memo.clear();
+        }
+        memo.insert(species.kind.clone(), answer.clone());
+        answer
+    })
+}
+
+/// How many species' answers [`oxidation_numbers_with`] keeps per thread.
+const MEMO_CAPACITY: usize = 4096;
+
+type Memo = std::collections::HashMap<SpeciesKind, Result<SpeciesOxidation, OxidationError>>;
+
+thread_local! {
+    static MEMO: std::cell::RefCell<Memo> = std::cell::RefCell::new(Memo::new());
 }
 
 impl IonTable {
