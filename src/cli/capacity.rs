@@ -1,13 +1,13 @@
 //! `couplet capacity`: theoretical capacity of electrode materials and of a cell, with its
 //! specific energy on a stated mass basis and volumetric figures where densities are known.
 
-use super::common::{TableArgs, load_table, medium_arg, report_lookup, resolve};
+use super::common::{CellRequest, TableArgs, build_cell, load_table, medium_arg, report_lookup};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::capacity::{
     Basis, CapacityError, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
     half_reaction_materials,
 };
-use couplet::cell::{CellOptions, caution, combine};
+use couplet::cell::caution;
 use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
 use couplet::notation::{Arrow, Style, parse_equation, parse_species};
 use couplet::reaction::Reaction;
@@ -255,24 +255,19 @@ pub fn run(args: &CapacityArgs) -> u8 {
         eprintln!("error: give a couple, or --cathode and --anode");
         return EXIT_USAGE;
     };
-    let cathode = match resolve(&table, cathode, args.cathode_e0, args.medium) {
-        Ok(c) => c,
-        Err(status) => return status,
-    };
-    let anode = match resolve(&table, anode, args.anode_e0, args.medium) {
-        Ok(c) => c,
-        Err(status) => return status,
-    };
-    let options = CellOptions {
-        temperature_kelvin: args.temperature,
-        medium: args.medium,
-    };
-    let cell = match combine(&cathode, &anode, options) {
+    let cell = match build_cell(
+        &table,
+        &CellRequest {
+            cathode,
+            anode,
+            cathode_e0: args.cathode_e0,
+            anode_e0: args.anode_e0,
+            medium: args.medium,
+            temperature_kelvin: args.temperature,
+        },
+    ) {
         Ok(cell) => cell,
-        Err(error) => {
-            eprintln!("error: {error}");
-            return EXIT_FINDINGS;
-        }
+        Err(status) => return status,
     };
     if !cell.runs_as_written {
         eprintln!(

@@ -1,9 +1,9 @@
 //! `couplet cell`: a cathode and an anode couple combined into the net reaction and its figures.
 
-use super::common::{TableArgs, load_table, medium_arg, resolve, scale};
+use super::common::{CellRequest, TableArgs, build_cell, load_table, medium_arg, scale};
 use super::nernst::{NernstArgs, emit, json_fields, run_nernst, text};
-use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
-use couplet::cell::{CellOptions, caution, combine};
+use super::{EXIT_OK, EXIT_USAGE, print_json};
+use couplet::cell::caution;
 use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
 use couplet::nernst::Standard;
 use couplet::notation::{Arrow, Style};
@@ -61,24 +61,19 @@ pub fn run(args: &CellArgs) -> u8 {
         Ok(scale) => scale,
         Err(status) => return status,
     };
-    let cathode = match resolve(&table, &args.cathode, args.cathode_e0, args.medium) {
-        Ok(c) => c,
-        Err(status) => return status,
-    };
-    let anode = match resolve(&table, &args.anode, args.anode_e0, args.medium) {
-        Ok(c) => c,
-        Err(status) => return status,
-    };
-    let options = CellOptions {
-        temperature_kelvin: args.temperature,
-        medium: args.medium,
-    };
-    let cell = match combine(&cathode, &anode, options) {
+    let cell = match build_cell(
+        &table,
+        &CellRequest {
+            cathode: &args.cathode,
+            anode: &args.anode,
+            cathode_e0: args.cathode_e0,
+            anode_e0: args.anode_e0,
+            medium: args.medium,
+            temperature_kelvin: args.temperature,
+        },
+    ) {
         Ok(cell) => cell,
-        Err(error) => {
-            eprintln!("error: {error}");
-            return EXIT_FINDINGS;
-        }
+        Err(status) => return status,
     };
     let at_t = cell.at_temperature.as_ref();
     let dedt = match (

@@ -118,3 +118,28 @@ pub fn medium_arg(text: &str) -> Result<Medium, String> {
     Medium::from_name(text)
         .ok_or_else(|| format!("medium must be acid, base or neutral, not '{text}'"))
 }
+
+/// The two electrodes of a cell as the user named them.
+pub struct CellRequest<'a> {
+    pub cathode: &'a str,
+    pub anode: &'a str,
+    pub cathode_e0: Option<f64>,
+    pub anode_e0: Option<f64>,
+    pub medium: Option<Medium>,
+    pub temperature_kelvin: f64,
+}
+
+/// Looks both electrodes up and combines them into a cell; on failure the error has been
+/// reported and the exit status is returned.
+pub fn build_cell(table: &Table, request: &CellRequest<'_>) -> Result<couplet::cell::Cell, u8> {
+    let cathode = resolve(table, request.cathode, request.cathode_e0, request.medium)?;
+    let anode = resolve(table, request.anode, request.anode_e0, request.medium)?;
+    let options = couplet::cell::CellOptions {
+        temperature_kelvin: request.temperature_kelvin,
+        medium: request.medium,
+    };
+    couplet::cell::combine(&cathode, &anode, options).map_err(|error| {
+        eprintln!("error: {error}");
+        EXIT_FINDINGS
+    })
+}

@@ -1,10 +1,10 @@
 //! `couplet discharge`: open-circuit voltage of a cell along its discharge, from initial
 //! amounts, with CSV and SVG output written atomically.
 
-use super::common::{TableArgs, load_table, medium_arg, resolve};
+use super::common::{CellRequest, TableArgs, build_cell, load_table, medium_arg};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::activity::{ActivityModel, GammaModel};
-use couplet::cell::{CellOptions, caution, combine};
+use couplet::cell::caution;
 use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
 use couplet::discharge::{Amount, Discharge, DischargeSpec, discharge};
 use couplet::notation::{Arrow, Species, Style, parse_species};
@@ -209,27 +209,19 @@ pub fn run(args: &DischargeArgs) -> u8 {
         Ok(table) => table,
         Err(status) => return status,
     };
-    let cathode = match resolve(&table, &args.cathode, args.cathode_e0, args.medium) {
-        Ok(c) => c,
-        Err(status) => return status,
-    };
-    let anode = match resolve(&table, &args.anode, args.anode_e0, args.medium) {
-        Ok(c) => c,
-        Err(status) => return status,
-    };
-    let cell = match combine(
-        &cathode,
-        &anode,
-        CellOptions {
-            temperature_kelvin: args.temperature,
+    let cell = match build_cell(
+        &table,
+        &CellRequest {
+            cathode: &args.cathode,
+            anode: &args.anode,
+            cathode_e0: args.cathode_e0,
+            anode_e0: args.anode_e0,
             medium: args.medium,
+            temperature_kelvin: args.temperature,
         },
     ) {
         Ok(cell) => cell,
-        Err(error) => {
-            eprintln!("error: {error}");
-            return EXIT_FINDINGS;
-        }
+        Err(status) => return status,
     };
     let spec = DischargeSpec {
         amounts,
