@@ -42,25 +42,53 @@ struct Cli {
 #[derive(Subcommand)]
 enum Command {
     /// Show how a formula, species list or equation is read: composition, charge, state, molar mass
+    #[command(
+        after_help = "Examples:\n  couplet parse 'CuSO4·5H2O'\n  couplet parse --json 'Fe(CN)6^3-'\n  couplet parse 'PbO2 + SO4^2- + 4 H+ + 2 e- -> PbSO4(s) + 2 H2O(l)'"
+    )]
     Parse(parse::ParseArgs),
     /// Balance an equation or half-reaction exactly, as written or in acid or base
+    #[command(
+        after_help = "Examples:\n  couplet balance --medium acid 'MnO4- + Fe2+ -> Mn2+ + Fe3+'\n  couplet balance --medium base 'NiOOH -> Ni(OH)2'\n  couplet balance --json --medium acid - < equations.txt"
+    )]
     Balance(balance::BalanceArgs),
     /// Oxidation number of every element of a formula or ion, with the rule that gave it
+    #[command(
+        after_help = "Examples:\n  couplet oxidation Fe3O4\n  couplet oxidation --json 'K4[Fe(CN)6]'\n  couplet oxidation --assume Fe=+2 FeS2"
+    )]
     Oxidation(oxidation::OxidationArgs),
     /// List, search and show couples of the standard-potential table
+    #[command(
+        after_help = "Examples:\n  couplet table zinc\n  couplet table --element V\n  couplet table MnO4-/Mn2+ --json\n  couplet table --table ours.toml"
+    )]
     Table(table::TableCommandArgs),
     /// Combine a cathode and an anode couple: net reaction, n, E°cell, ΔG°, K, temperature
+    #[command(
+        after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --activity Cu2+=0.1 --activity Zn2+=0.001\n  couplet cell --cathode O2/OH- --anode ZnO/Zn --medium base --temperature 310 --json\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --emit python"
+    )]
     Cell(cell::CellArgs),
     /// A new couple from couples that share species, by adding free energies
+    #[command(
+        after_help = "Examples:\n  couplet derive Fe3+/Fe2+ Fe2+/Fe\n  couplet derive --json Cu2+/Cu+ Cu+/Cu"
+    )]
     Derive(derive::DeriveArgs),
     /// E against pH for a half-reaction (CSV: pH,E_V), other species at unit activity unless given
     #[command(name = "ph-line")]
+    #[command(after_help = "Examples:\n  couplet ph-line MnO4-/Mn2+ --from 0 --to 14 --step 0.5")]
     PhLine(nernst::PhLineArgs),
     /// Theoretical capacity (mAh/g, Ah/kg) and specific energy (Wh/kg, Wh/L) of materials and cells
+    #[command(
+        after_help = "Examples:\n  couplet capacity Zn2+/Zn\n  couplet capacity --cathode PbO2/PbSO4 --anode PbSO4/Pb --basis with-electrolyte"
+    )]
     Capacity(capacity::CapacityArgs),
     /// Open-circuit voltage along a discharge from initial amounts, with CSV and SVG output
+    #[command(
+        after_help = "Examples:\n  couplet discharge --cathode PbO2/PbSO4 --anode PbSO4/Pb --amount PbO2=1 --amount Pb=1 --amount H2SO4=4 --solvent-kg 0.8 --gamma table --csv lead.csv --svg lead.svg"
+    )]
     Discharge(discharge::DischargeArgs),
     /// Validate couple files (TOML or CSV) for CI: syntax, chemistry, numbers, table consistency
+    #[command(
+        after_help = "Examples:\n  couplet check data/\n  couplet check --format sarif tables/ > couplet.sarif\n  couplet check --fix --dry-run ours.toml"
+    )]
     Check(check::CheckArgs),
 }
 
