@@ -346,13 +346,13 @@ impl Exact for SmallRatio {
         SmallRatio::checked(Ratio::from_integer(i128::from(count)))
     }
     fn plus(&self, other: &Self) -> Option<Self> {
-        SmallRatio::checked(&self.0 + &other.0)
+        SmallRatio::checked(self.0 + other.0)
     }
     fn minus(&self, other: &Self) -> Option<Self> {
-        SmallRatio::checked(&self.0 - &other.0)
+        SmallRatio::checked(self.0 - other.0)
     }
     fn times(&self, other: &Self) -> Option<Self> {
-        SmallRatio::checked(&self.0 * &other.0)
+        SmallRatio::checked(self.0 * other.0)
     }
     fn magnitude(&self) -> Self {
         // In range, so the negation cannot overflow.
