@@ -39,6 +39,7 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
 use std::fmt;
+use std::rc::Rc;
 use std::str::FromStr;
 
 /// Whether an oxidation number follows from the rules and the charge, or is a choice.
@@ -397,13 +398,30 @@ pub fn oxidation_numbers_with(
     if !options.pins.is_empty() {
         return IonTable::builtin()?.oxidation_numbers(species, options);
     }
+    oxidation_numbers_shared(species, options).map(|shared| (*shared).clone())
+}
+
+/// [`oxidation_numbers_with`] without copying the answer out of the per-thread memo: the
+/// redox analysis reads oxidation numbers of every species of every reaction, and a deep copy
+/// of each (rules with names, sites) cost more than the analysis itself.
+pub(crate) fn oxidation_numbers_shared(
+    species: &Species,
+    options: &Options,
+) -> Result<Rc<SpeciesOxidation>, OxidationError> {
+    if !options.pins.is_empty() {
+        return IonTable::builtin()?
+            .oxidation_numbers(species, options)
+            .map(Rc::new);
+    }
     // The answer depends on the formula alone, and batches and tables name the same few
     // species (H2O, H+, OH-, common ions) over and over: remember recent answers per thread.
     MEMO.with(|memo| {
         if let Some(known) = memo.borrow().get(&species.kind) {
             return known.clone();
         }
-        let answer = IonTable::builtin()?.oxidation_numbers(species, options);
+        let answer = IonTable::builtin()?
+            .oxidation_numbers(species, options)
+            .map(Rc::new);
         let mut memo = memo.borrow_mut();
         if memo.len() >= MEMO_CAPACITY {
             memo.clear();
@@ -416,7 +434,7 @@ pub fn oxidation_numbers_with(
 /// How many species' answers [`oxidation_numbers_with`] keeps per thread.
 const MEMO_CAPACITY: usize = 4096;
 
-type Memo = std::collections::HashMap<SpeciesKind, Result<SpeciesOxidation, OxidationError>>;
+type Memo = std::collections::HashMap<SpeciesKind, Result<Rc<SpeciesOxidation>, OxidationError>>;
 
 thread_local! {
     static MEMO: std::cell::RefCell<Memo> = std::cell::RefCell::new(Memo::new());

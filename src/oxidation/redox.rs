@@ -11,13 +11,14 @@
 //! (`crate::balance::split`), from this analysis.
 
 use super::Pin;
-use super::{Options, OxidationError, SpeciesOxidation, oxidation_numbers_with, signed_text};
+use super::{Options, OxidationError, SpeciesOxidation, oxidation_numbers_shared, signed_text};
 use crate::elements::Element;
 use crate::notation::{Equation, Species};
 use crate::reaction::{Reaction, same_species};
 use num_bigint::BigInt;
-use num_rational::BigRational;
+use num_rational::{BigRational, Ratio};
 use num_traits::{Signed, Zero};
+use std::rc::Rc;
 
 /// Atoms of one element going from one oxidation number to another.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -120,13 +121,6 @@ pub enum RedoxError {
     Empty,
 }
 
-/// An element with its atoms on each side: (oxidation number, atoms) before and after.
-type ElementSides = (
-    Element,
-    Vec<(BigRational, BigRational)>,
-    Vec<(BigRational, BigRational)>,
-);
-
 impl RedoxError {
     /// Stable name for JSON output: `oxidation`, `not_balanced`, `electron_mismatch`, `empty`.
     pub fn kind_name(&self) -> &'static str {
@@ -156,7 +150,7 @@ pub fn analyse(reaction: &Reaction) -> Result<RedoxAnalysis, RedoxError> {
 fn species_oxidation(
     species: &Species,
     pins: &[SpeciesPin],
-) -> Result<SpeciesOxidation, RedoxError> {
+) -> Result<Rc<SpeciesOxidation>, RedoxError> {
     let options = Options {
         pins: pins
             .iter()
@@ -164,7 +158,7 @@ fn species_oxidation(
             .map(|p| p.pin.clone())
             .collect(),
     };
-    oxidation_numbers_with(species, &options).map_err(|source| RedoxError::Oxidation {
+    oxidation_numbers_shared(species, &options).map_err(|source| RedoxError::Oxidation {
         species: species.ascii(),
         source,
     })
@@ -172,6 +166,33 @@ fn species_oxidation(
 
 /// Analyses a balanced reaction or half-reaction, with pins for some of its species.
 pub fn analyse_with(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<RedoxAnalysis, RedoxError> {
+    let shared = analyse_shared(reaction, pins)?;
+    Ok(RedoxAnalysis {
+        oxidized: shared.oxidized,
+        reduced: shared.reduced,
+        n: shared.n,
+        electrons_written: shared.electrons_written,
+        kind: shared.kind,
+        species: shared
+            .species
+            .into_iter()
+            .map(|s| s.map(|s| (*s).clone()))
+            .collect(),
+    })
+}
+
+/// [`RedoxAnalysis`] with the oxidation numbers of each species still shared with the
+/// per-thread memo: callers that want only n need no copy of them.
+struct SharedAnalysis {
+    oxidized: Vec<ElementChange>,
+    reduced: Vec<ElementChange>,
+    n: BigRational,
+    electrons_written: BigRational,
+    kind: RedoxKind,
+    species: Vec<Option<Rc<SpeciesOxidation>>>,
+}
+
+fn analyse_shared(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<SharedAnalysis, RedoxError> {
     if reaction.is_empty() {
         return Err(RedoxError::Empty);
     }
@@ -189,66 +210,24 @@ pub fn analyse_with(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<RedoxAna
     }
 
     let mut species = Vec::with_capacity(reaction.entries().len());
-    // Per element: (oxidation number, atoms) on each side.
-    let mut sides: Vec<ElementSides> = Vec::new();
     for entry in reaction.entries() {
         if entry.species.is_electron() {
             species.push(None);
-            continue;
+        } else {
+            species.push(Some(species_oxidation(&entry.species, pins)?));
         }
-        let oxidation = species_oxidation(&entry.species, pins)?;
-        for element in &oxidation.elements {
-            let index = match sides.iter().position(|(e, _, _)| *e == element.element) {
-                Some(i) => i,
-                None => {
-                    sides.push((element.element, Vec::new(), Vec::new()));
-                    sides.len() - 1
-                }
-            };
-            for site in &element.sites {
-                let atoms = entry.nu.abs() * BigRational::from_integer(BigInt::from(site.count));
-                let side = if entry.nu.is_negative() {
-                    &mut sides[index].1
-                } else {
-                    &mut sides[index].2
-                };
-                side.push((site.oxidation_number.clone(), atoms));
-            }
-        }
-        species.push(Some(oxidation));
     }
 
-    let mut oxidized = Vec::new();
-    let mut reduced = Vec::new();
-    for (element, before, after) in &mut sides {
-        for (from, to, atoms) in pair_atoms(before, after) {
-            if from == to {
-                continue;
-            }
-            let electrons = &atoms * (&to - &from).abs();
-            let change = ElementChange {
-                element: *element,
-                from: from.clone(),
-                to: to.clone(),
-                atoms,
-                electrons,
-            };
-            let list = if to > from {
-                &mut oxidized
-            } else {
-                &mut reduced
-            };
-            match list.iter_mut().find(|c: &&mut ElementChange| {
-                c.element == change.element && c.from == change.from && c.to == change.to
-            }) {
-                Some(existing) => {
-                    existing.atoms += change.atoms;
-                    existing.electrons += change.electrons;
-                }
-                None => list.push(change),
-            }
-        }
-    }
+    // The same exact sums either way: in machine integers when every value and every
+    // intermediate result fits (the usual case), else in big rationals.
+    let (oxidized, reduced) = match changes::<SmallRatio>(reaction, &species) {
+        Some((oxidized, reduced)) => (into_big(oxidized), into_big(reduced)),
+        None => match changes::<BigRational>(reaction, &species) {
+            Some((oxidized, reduced)) => (into_big(oxidized), into_big(reduced)),
+            // Big rationals never overflow, so this arm is never taken.
+            None => return Err(RedoxError::Empty),
+        },
+    };
     let lost: BigRational = oxidized.iter().map(|c| c.electrons.clone()).sum();
     let gained: BigRational = reduced.iter().map(|c| c.electrons.clone()).sum();
 
@@ -278,7 +257,7 @@ pub fn analyse_with(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<RedoxAna
         }
         (n, written, kind)
     };
-    Ok(RedoxAnalysis {
+    Ok(SharedAnalysis {
         oxidized,
         reduced,
         n,
@@ -286,6 +265,205 @@ pub fn analyse_with(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<RedoxAna
         kind,
         species,
     })
+}
+
+/// Exact rational arithmetic that may give up: `None` means "too large for this type", never
+/// a different answer. [`BigRational`] never gives up; [`SmallRatio`] does when a value leaves
+/// the range where its arithmetic cannot overflow.
+trait Exact: Clone + Ord + Sized {
+    fn nil() -> Self;
+    fn from_big(value: &BigRational) -> Option<Self>;
+    fn from_count(count: u64) -> Option<Self>;
+    fn plus(&self, other: &Self) -> Option<Self>;
+    fn minus(&self, other: &Self) -> Option<Self>;
+    fn times(&self, other: &Self) -> Option<Self>;
+    fn magnitude(&self) -> Self;
+    fn is_nil(&self) -> bool;
+    fn is_above_zero(&self) -> bool;
+    fn into_big(self) -> BigRational;
+}
+
+impl Exact for BigRational {
+    fn nil() -> Self {
+        Zero::zero()
+    }
+    fn from_big(value: &BigRational) -> Option<Self> {
+        Some(value.clone())
+    }
+    fn from_count(count: u64) -> Option<Self> {
+        Some(BigRational::from_integer(BigInt::from(count)))
+    }
+    fn plus(&self, other: &Self) -> Option<Self> {
+        Some(self + other)
+    }
+    fn minus(&self, other: &Self) -> Option<Self> {
+        Some(self - other)
+    }
+    fn times(&self, other: &Self) -> Option<Self> {
+        Some(self * other)
+    }
+    fn magnitude(&self) -> Self {
+        Signed::abs(self)
+    }
+    fn is_nil(&self) -> bool {
+        Zero::is_zero(self)
+    }
+    fn is_above_zero(&self) -> bool {
+        Signed::is_positive(self)
+    }
+    fn into_big(self) -> BigRational {
+        self
+    }
+}
+
+/// A reduced rational in `i128` whose numerator and denominator stay within ±(2^63 − 1):
+/// then every sum, difference and product of two of them (at most about 2^127 before
+/// reduction) fits `i128`, so the arithmetic itself cannot overflow; a result outside the
+/// range is refused.
+#[derive(Clone, Debug, PartialEq, Eq, PartialOrd, Ord)]
+struct SmallRatio(Ratio<i128>);
+
+const SMALL_LIMIT: i128 = i64::MAX as i128;
+
+impl SmallRatio {
+    fn checked(value: Ratio<i128>) -> Option<SmallRatio> {
+        (value.numer().unsigned_abs() <= SMALL_LIMIT as u128 && *value.denom() <= SMALL_LIMIT)
+            .then_some(SmallRatio(value))
+    }
+}
+
+impl Exact for SmallRatio {
+    fn nil() -> Self {
+        SmallRatio(Ratio::from_integer(0))
+    }
+    fn from_big(value: &BigRational) -> Option<Self> {
+        // A BigRational is kept reduced with a positive denominator, as Ratio is.
+        let numer = i128::try_from(value.numer()).ok()?;
+        let denom = i128::try_from(value.denom()).ok()?;
+        SmallRatio::checked(Ratio::new_raw(numer, denom))
+    }
+    fn from_count(count: u64) -> Option<Self> {
+        SmallRatio::checked(Ratio::from_integer(i128::from(count)))
+    }
+    fn plus(&self, other: &Self) -> Option<Self> {
+        SmallRatio::checked(self.0 + other.0)
+    }
+    fn minus(&self, other: &Self) -> Option<Self> {
+        SmallRatio::checked(self.0 - other.0)
+    }
+    fn times(&self, other: &Self) -> Option<Self> {
+        SmallRatio::checked(self.0 * other.0)
+    }
+    fn magnitude(&self) -> Self {
+        // In range, so the negation cannot overflow.
+        SmallRatio(Signed::abs(&self.0))
+    }
+    fn is_nil(&self) -> bool {
+        Zero::is_zero(&self.0)
+    }
+    fn is_above_zero(&self) -> bool {
+        Signed::is_positive(&self.0)
+    }
+    fn into_big(self) -> BigRational {
+        let (numer, denom) = self.0.into_raw();
+        BigRational::new_raw(BigInt::from(numer), BigInt::from(denom))
+    }
+}
+
+/// [`ElementChange`] in the arithmetic of the tally.
+struct Change<T> {
+    element: Element,
+    from: T,
+    to: T,
+    atoms: T,
+    electrons: T,
+}
+
+fn into_big<T: Exact>(changes: Vec<Change<T>>) -> Vec<ElementChange> {
+    changes
+        .into_iter()
+        .map(|c| ElementChange {
+            element: c.element,
+            from: c.from.into_big(),
+            to: c.to.into_big(),
+            atoms: c.atoms.into_big(),
+            electrons: c.electrons.into_big(),
+        })
+        .collect()
+}
+
+/// An element with its atoms on each side: (oxidation number, atoms) before and after.
+type Sides<T> = (Element, Vec<(T, T)>, Vec<(T, T)>);
+
+/// The oxidised and reduced elements of a balanced reaction, from the oxidation numbers of
+/// its species (`None` for the electron, in the order of the entries). `None` when `T` gives up.
+#[allow(clippy::type_complexity)]
+fn changes<T: Exact>(
+    reaction: &Reaction,
+    species: &[Option<Rc<SpeciesOxidation>>],
+) -> Option<(Vec<Change<T>>, Vec<Change<T>>)> {
+    // Per element: (oxidation number, atoms) on each side.
+    let mut sides: Vec<Sides<T>> = Vec::new();
+    for (entry, oxidation) in reaction.entries().iter().zip(species) {
+        let Some(oxidation) = oxidation else {
+            continue;
+        };
+        let nu = T::from_big(&entry.nu)?;
+        let reactant = entry.nu.is_negative();
+        let nu_abs = nu.magnitude();
+        for element in &oxidation.elements {
+            let index = match sides.iter().position(|(e, _, _)| *e == element.element) {
+                Some(i) => i,
+                None => {
+                    sides.push((element.element, Vec::new(), Vec::new()));
+                    sides.len() - 1
+                }
+            };
+            for site in &element.sites {
+                let count = T::from_count(site.count)?;
+                let atoms = nu_abs.times(&count)?;
+                let side = if reactant {
+                    &mut sides[index].1
+                } else {
+                    &mut sides[index].2
+                };
+                side.push((T::from_big(&site.oxidation_number)?, atoms));
+            }
+        }
+    }
+
+    let mut oxidized: Vec<Change<T>> = Vec::new();
+    let mut reduced: Vec<Change<T>> = Vec::new();
+    for (element, before, after) in &mut sides {
+        for (from, to, atoms) in pair_atoms(before, after)? {
+            if from == to {
+                continue;
+            }
+            let electrons = atoms.times(&to.minus(&from)?.magnitude())?;
+            let list = if to > from {
+                &mut oxidized
+            } else {
+                &mut reduced
+            };
+            match list
+                .iter_mut()
+                .find(|c| c.element == *element && c.from == from && c.to == to)
+            {
+                Some(existing) => {
+                    existing.atoms = existing.atoms.plus(&atoms)?;
+                    existing.electrons = existing.electrons.plus(&electrons)?;
+                }
+                None => list.push(Change {
+                    element: *element,
+                    from,
+                    to,
+                    atoms,
+                    electrons,
+                }),
+            }
+        }
+    }
+    Some((oxidized, reduced))
 }
 
 fn whole_kind(oxidized: &[ElementChange], reduced: &[ElementChange]) -> RedoxKind {
@@ -310,41 +488,40 @@ fn whole_kind(oxidized: &[ElementChange], reduced: &[ElementChange]) -> RedoxKin
 
 /// Pairs atoms of one element across the sides in order of oxidation number:
 /// `(from, to, atoms)` chunks. Both sides hold the same number of atoms (checked before).
-fn pair_atoms(
-    before: &mut [(BigRational, BigRational)],
-    after: &mut [(BigRational, BigRational)],
-) -> Vec<(BigRational, BigRational, BigRational)> {
+/// `None` when `T` gives up.
+#[allow(clippy::type_complexity)]
+fn pair_atoms<T: Exact>(before: &mut [(T, T)], after: &mut [(T, T)]) -> Option<Vec<(T, T, T)>> {
     before.sort_by(|a, b| a.0.cmp(&b.0));
     after.sort_by(|a, b| a.0.cmp(&b.0));
     let mut chunks = Vec::new();
     let (mut i, mut j) = (0, 0);
-    let mut left_i = before.first().map(|b| b.1.clone()).unwrap_or_default();
-    let mut left_j = after.first().map(|a| a.1.clone()).unwrap_or_default();
+    let mut left_i = before.first().map(|b| b.1.clone()).unwrap_or_else(T::nil);
+    let mut left_j = after.first().map(|a| a.1.clone()).unwrap_or_else(T::nil);
     while i < before.len() && j < after.len() {
         let take = if left_i < left_j {
             left_i.clone()
         } else {
             left_j.clone()
         };
-        if take.is_positive() {
+        if take.is_above_zero() {
             chunks.push((before[i].0.clone(), after[j].0.clone(), take.clone()));
         }
-        left_i -= &take;
-        left_j -= &take;
-        if left_i.is_zero() {
+        left_i = left_i.minus(&take)?;
+        left_j = left_j.minus(&take)?;
+        if left_i.is_nil() {
             i += 1;
             if let Some(b) = before.get(i) {
                 left_i = b.1.clone();
             }
         }
-        if left_j.is_zero() {
+        if left_j.is_nil() {
             j += 1;
             if let Some(a) = after.get(j) {
                 left_j = a.1.clone();
             }
         }
     }
-    chunks
+    Some(chunks)
 }
 
 /// The elements whose oxidation numbers differ between the two sides of an equation, compared
@@ -406,7 +583,8 @@ pub fn changes_one_element(equation: &Equation) -> bool {
 /// The balancer reports it as n of a whole reaction and the data-file checker compares it with
 /// the electrons of each half-reaction.
 pub fn oxidation_number_electrons(reaction: &Reaction) -> Option<BigRational> {
-    match analyse(reaction) {
+    // The oxidation numbers of the species are not wanted: the shared analysis copies none.
+    match analyse_shared(reaction, &[]) {
         Ok(analysis) => Some(analysis.n),
         Err(RedoxError::ElectronMismatch {
             from_oxidation_numbers,

@@ -326,6 +326,28 @@ fn published_half_reactions_agree_with_their_electrons() {
     assert_eq!(checked, 128);
 }
 
+/// Coefficients beyond 64-bit integers leave the machine-integer tally for the exact
+/// big-rational one: the answer must be the same analysis, scaled.
+#[test]
+fn huge_coefficients_give_the_scaled_analysis() {
+    // MnO4−/Mn2+: Mn +7 → +2, five electrons per Mn (Harris App. H, in tests/data).
+    let small = reaction("MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)");
+    let factor = BigRational::from_integer(BigInt::from(10).pow(30));
+    let huge = small.scaled(&factor);
+    let (a, b) = (analyse(&small).unwrap(), analyse(&huge).unwrap());
+    assert_eq!(b.n, &a.n * &factor);
+    assert_eq!(b.n, &factor * rational("5"));
+    assert_eq!(b.electrons_written, b.n);
+    assert_eq!(b.kind, a.kind);
+    assert_eq!(b.reduced.len(), 1);
+    assert_eq!(
+        (&b.reduced[0].from, &b.reduced[0].to),
+        (&a.reduced[0].from, &a.reduced[0].to)
+    );
+    assert_eq!(b.reduced[0].atoms, factor);
+    assert_eq!(b.species, a.species);
+}
+
 #[test]
 fn half_reaction_details() {
     // MnO4−/Mn2+: Mn +7 → +2, five electrons (Harris App. H, in tests/data).
