@@ -198,7 +198,8 @@ def main():
     print(f"{total} cases (seed {seed}), {with_solvent} with H2O/H+/OH- added; {failures} differences")
     print(f"sympy nullspace:  {sympy_seconds:.3f} s ({sympy_seconds / total * 1e6:.0f} us/equation)")
     print(f"couplet (9 batch runs, process start included): {couplet_seconds:.3f} s ({couplet_seconds / total * 1e6:.1f} us/equation)")
-    print(f"ratio sympy/couplet: {sympy_seconds / couplet_seconds:.0f}x")
+    print(f"ratio sympy/couplet: {sympy_seconds / couplet_seconds:.0f}x (end to end; see DEVELOPERS.md)")
+    print(f"sympy comparison: {total - failures} passed, {failures} failed")
     sys.exit(1 if failures else 0)
 
 
