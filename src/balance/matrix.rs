@@ -104,72 +104,46 @@ trait Ring: Clone {
     fn negated(&self) -> Option<Self>;
 }
 
-impl Ring for i64 {
-    fn from_i128(value: i128) -> Option<Self> {
-        i64::try_from(value).ok()
-    }
-    fn zero_value() -> Self {
-        0
-    }
-    fn into_i128(self) -> Option<i128> {
-        Some(i128::from(self))
-    }
-    fn is_zero(&self) -> bool {
-        *self == 0
-    }
-    fn is_negative(&self) -> bool {
-        *self < 0
-    }
-    fn mul_sub(a: &Self, b: &Self, c: &Self, d: &Self) -> Option<Self> {
-        a.checked_mul(*b)?
-            .checked_sub(c.checked_mul(*d)?)
-            .filter(|&x| x != i64::MIN)
-    }
-    fn gcd(&self, other: &Self) -> Self {
-        Integer::gcd(self, other)
-    }
-    fn div_exact(&self, divisor: &Self) -> Self {
-        self / divisor
-    }
-    fn negated(&self) -> Option<Self> {
-        self.checked_neg()
-    }
+/// The machine-integer rings: checked arithmetic, and `MIN` is never stored, because its
+/// magnitude does not fit, so gcd and negation of it would overflow later.
+macro_rules! machine_ring {
+    ($int:ty) => {
+        impl Ring for $int {
+            fn from_i128(value: i128) -> Option<Self> {
+                <$int>::try_from(value).ok()
+            }
+            fn zero_value() -> Self {
+                0
+            }
+            fn into_i128(self) -> Option<i128> {
+                Some(i128::from(self))
+            }
+            fn is_zero(&self) -> bool {
+                *self == 0
+            }
+            fn is_negative(&self) -> bool {
+                *self < 0
+            }
+            fn mul_sub(a: &Self, b: &Self, c: &Self, d: &Self) -> Option<Self> {
+                a.checked_mul(*b)?
+                    .checked_sub(c.checked_mul(*d)?)
+                    .filter(|&x| x != <$int>::MIN)
+            }
+            fn gcd(&self, other: &Self) -> Self {
+                Integer::gcd(self, other)
+            }
+            fn div_exact(&self, divisor: &Self) -> Self {
+                self / divisor
+            }
+            fn negated(&self) -> Option<Self> {
+                self.checked_neg()
+            }
+        }
+    };
 }
 
-impl Ring for i128 {
-    fn from_i128(value: i128) -> Option<Self> {
-        Some(value)
-    }
-    fn zero_value() -> Self {
-        0
-    }
-    fn into_i128(self) -> Option<i128> {
-        Some(self)
-    }
-    fn is_zero(&self) -> bool {
-        *self == 0
-    }
-    fn is_negative(&self) -> bool {
-        *self < 0
-    }
-    fn mul_sub(a: &Self, b: &Self, c: &Self, d: &Self) -> Option<Self> {
-        // i128::MIN is refused too: its magnitude does not fit, so gcd and negation of it
-        // would overflow later.
-        a.checked_mul(*b)?
-            .checked_sub(c.checked_mul(*d)?)
-            .filter(|&x| x != i128::MIN)
-    }
-    fn gcd(&self, other: &Self) -> Self {
-        // i128::MIN never gets stored (see `mul_sub`), so the gcd always fits.
-        Integer::gcd(self, other)
-    }
-    fn div_exact(&self, divisor: &Self) -> Self {
-        self / divisor
-    }
-    fn negated(&self) -> Option<Self> {
-        self.checked_neg()
-    }
-}
+machine_ring!(i64);
+machine_ring!(i128);
 
 impl Ring for BigInt {
     fn from_i128(value: i128) -> Option<Self> {
