@@ -1,7 +1,7 @@
 //! `couplet capacity`: theoretical capacity of electrode materials and of a cell, with its
 //! specific energy on a stated mass basis and volumetric figures where densities are known.
 
-use super::common::{CellRequest, TableArgs, build_cell, load_table, medium_arg, report_lookup};
+use super::common::{CellRequest, ElectrodeArgs, TableArgs, build_cell, load_table, report_lookup};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::capacity::{
     Basis, CapacityError, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
@@ -11,7 +11,7 @@ use couplet::cell::caution;
 use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
 use couplet::notation::{Arrow, Style, parse_equation, parse_species};
 use couplet::reaction::Reaction;
-use couplet::table::{Medium, is_reaction_text};
+use couplet::table::is_reaction_text;
 use serde_json::{Value, json};
 
 #[derive(clap::Args)]
@@ -26,15 +26,8 @@ pub struct CapacityArgs {
     /// Anode couple of a cell, written as a reduction (it runs in reverse)
     #[arg(long, requires = "cathode")]
     anode: Option<String>,
-    /// E° (V vs SHE) of a typed cathode half-reaction that is not in the table
-    #[arg(long = "cathode-e0", allow_hyphen_values = true)]
-    cathode_e0: Option<f64>,
-    /// E° (V vs SHE) of a typed anode half-reaction that is not in the table
-    #[arg(long = "anode-e0", allow_hyphen_values = true)]
-    anode_e0: Option<f64>,
-    /// Write both halves for this solution: acid or base (converts with Kw)
-    #[arg(long, value_parser = medium_arg)]
-    medium: Option<Medium>,
+    #[command(flatten)]
+    electrodes: ElectrodeArgs,
     /// Temperature in K for the cell voltage used in the energy (first order from dE°/dT)
     #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
     temperature: f64,
@@ -231,7 +224,7 @@ pub fn run(args: &CapacityArgs) -> u8 {
                 }
             }
         } else {
-            match table.find(query, args.medium) {
+            match table.find(query, args.electrodes.medium) {
                 Ok(c) => c.reaction.clone(),
                 Err(e) => return report_lookup(&e),
             }
@@ -260,9 +253,9 @@ pub fn run(args: &CapacityArgs) -> u8 {
         &CellRequest {
             cathode,
             anode,
-            cathode_e0: args.cathode_e0,
-            anode_e0: args.anode_e0,
-            medium: args.medium,
+            cathode_e0: args.electrodes.cathode_e0,
+            anode_e0: args.electrodes.anode_e0,
+            medium: args.electrodes.medium,
             temperature_kelvin: args.temperature,
         },
     ) {

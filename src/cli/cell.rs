@@ -1,6 +1,6 @@
 //! `couplet cell`: a cathode and an anode couple combined into the net reaction and its figures.
 
-use super::common::{CellRequest, TableArgs, build_cell, load_table, medium_arg, scale};
+use super::common::{CellRequest, ElectrodeArgs, TableArgs, build_cell, load_table, scale};
 use super::nernst::{NernstArgs, emit, json_fields, run_nernst, text};
 use super::{EXIT_OK, EXIT_USAGE, print_json};
 use couplet::cell::caution;
@@ -8,7 +8,7 @@ use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
 use couplet::nernst::Standard;
 use couplet::notation::{Arrow, Style};
 use couplet::scale::Scale;
-use couplet::table::{Couple, Medium};
+use couplet::table::Couple;
 use num_traits::ToPrimitive;
 use serde_json::{Value, json};
 
@@ -20,15 +20,8 @@ pub struct CellArgs {
     /// Anode couple, written as a reduction like the cathode (it runs in reverse)
     #[arg(long)]
     anode: String,
-    /// E° (V vs SHE) of a typed cathode half-reaction that is not in the table
-    #[arg(long = "cathode-e0", allow_hyphen_values = true)]
-    cathode_e0: Option<f64>,
-    /// E° (V vs SHE) of a typed anode half-reaction that is not in the table
-    #[arg(long = "anode-e0", allow_hyphen_values = true)]
-    anode_e0: Option<f64>,
-    /// Write both halves for this solution: acid or base (converts with Kw)
-    #[arg(long, value_parser = medium_arg)]
-    medium: Option<Medium>,
+    #[command(flatten)]
+    electrodes: ElectrodeArgs,
     /// Temperature in K for E°(T), ΔG°(T), K(T) (first order from dE°/dT)
     #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
     temperature: f64,
@@ -66,9 +59,9 @@ pub fn run(args: &CellArgs) -> u8 {
         &CellRequest {
             cathode: &args.cathode,
             anode: &args.anode,
-            cathode_e0: args.cathode_e0,
-            anode_e0: args.anode_e0,
-            medium: args.medium,
+            cathode_e0: args.electrodes.cathode_e0,
+            anode_e0: args.electrodes.anode_e0,
+            medium: args.electrodes.medium,
             temperature_kelvin: args.temperature,
         },
     ) {

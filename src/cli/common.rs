@@ -119,6 +119,21 @@ pub fn medium_arg(text: &str) -> Result<Medium, String> {
         .ok_or_else(|| format!("medium must be acid, base or neutral, not '{text}'"))
 }
 
+/// Options shared by every command that builds a cell: potentials of typed half-reactions and
+/// the medium both halves are written for.
+#[derive(clap::Args)]
+pub struct ElectrodeArgs {
+    /// E° (V vs SHE) of a typed cathode half-reaction that is not in the table
+    #[arg(long = "cathode-e0", allow_hyphen_values = true)]
+    pub cathode_e0: Option<f64>,
+    /// E° (V vs SHE) of a typed anode half-reaction that is not in the table
+    #[arg(long = "anode-e0", allow_hyphen_values = true)]
+    pub anode_e0: Option<f64>,
+    /// Write both halves for this solution: acid or base (converts with Kw)
+    #[arg(long, value_parser = medium_arg)]
+    pub medium: Option<Medium>,
+}
+
 /// The two electrodes of a cell as the user named them.
 pub struct CellRequest<'a> {
     pub cathode: &'a str,

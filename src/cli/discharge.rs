@@ -1,7 +1,7 @@
 //! `couplet discharge`: open-circuit voltage of a cell along its discharge, from initial
 //! amounts, with CSV and SVG output written atomically.
 
-use super::common::{CellRequest, TableArgs, build_cell, load_table, medium_arg};
+use super::common::{CellRequest, ElectrodeArgs, TableArgs, build_cell, load_table};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::activity::{ActivityModel, GammaModel};
 use couplet::cell::caution;
@@ -10,7 +10,6 @@ use couplet::discharge::{Amount, Discharge, DischargeSpec, discharge};
 use couplet::notation::{Arrow, Species, Style, parse_species};
 use couplet::output::svg::{DischargeAxis, discharge_plot, render};
 use couplet::output::{csv::discharge_csv, write_atomically};
-use couplet::table::Medium;
 use serde_json::json;
 use std::path::PathBuf;
 
@@ -22,15 +21,8 @@ pub struct DischargeArgs {
     /// Anode couple, written as a reduction (it runs in reverse)
     #[arg(long)]
     anode: String,
-    /// E° (V vs SHE) of a typed cathode half-reaction that is not in the table
-    #[arg(long = "cathode-e0", allow_hyphen_values = true)]
-    cathode_e0: Option<f64>,
-    /// E° (V vs SHE) of a typed anode half-reaction that is not in the table
-    #[arg(long = "anode-e0", allow_hyphen_values = true)]
-    anode_e0: Option<f64>,
-    /// Write both halves for this solution: acid or base (converts with Kw)
-    #[arg(long, value_parser = medium_arg)]
-    medium: Option<Medium>,
+    #[command(flatten)]
+    electrodes: ElectrodeArgs,
     /// Initial amount SPECIES=VALUE in mol, or VALUEg in grams (Zn=10g); repeatable. A neutral
     /// electrolyte (H2SO4=4, KOH=7) supplies its ions; reactants with no amount are in excess
     #[arg(long = "amount", value_name = "SPECIES=VALUE", required = true)]
@@ -214,9 +206,9 @@ pub fn run(args: &DischargeArgs) -> u8 {
         &CellRequest {
             cathode: &args.cathode,
             anode: &args.anode,
-            cathode_e0: args.cathode_e0,
-            anode_e0: args.anode_e0,
-            medium: args.medium,
+            cathode_e0: args.electrodes.cathode_e0,
+            anode_e0: args.electrodes.anode_e0,
+            medium: args.electrodes.medium,
             temperature_kelvin: args.temperature,
         },
     ) {
