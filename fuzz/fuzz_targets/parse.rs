@@ -9,7 +9,8 @@ fuzz_target!(|data: &[u8]| {
             Ok(input) => {
                 // What was read must display and read back to the same value.
                 if let couplet::notation::Input::Equation(eq) = input {
-                    let again = couplet::notation::parse_equation(&eq.ascii()).expect("canonical text parses");
+                    let again = couplet::notation::parse_equation(&eq.ascii())
+                        .expect("canonical text parses");
                     assert_eq!(again, eq);
                 }
             }
