@@ -1,7 +1,7 @@
 //! `couplet capacity`: theoretical capacity of electrode materials and of a cell, with its
 //! specific energy on a stated mass basis and volumetric figures where densities are known.
 
-use super::common::{CellRequest, ElectrodeArgs, TableArgs, build_cell, load_table, report_lookup};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, report_lookup};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::capacity::{
     Basis, CapacityError, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
@@ -250,14 +250,9 @@ pub fn run(args: &CapacityArgs) -> u8 {
     };
     let cell = match build_cell(
         &table,
-        &CellRequest {
-            cathode,
-            anode,
-            cathode_e0: args.electrodes.cathode_e0,
-            anode_e0: args.electrodes.anode_e0,
-            medium: args.electrodes.medium,
-            temperature_kelvin: args.temperature,
-        },
+        &args
+            .electrodes
+            .cell_request(cathode, anode, args.temperature),
     ) {
         Ok(cell) => cell,
         Err(status) => return status,

@@ -1,6 +1,6 @@
 //! `couplet cell`: a cathode and an anode couple combined into the net reaction and its figures.
 
-use super::common::{CellRequest, ElectrodeArgs, TableArgs, build_cell, load_table, scale};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale};
 use super::nernst::{NernstArgs, emit, json_fields, run_nernst, text};
 use super::{EXIT_OK, EXIT_USAGE, print_json};
 use couplet::cell::caution;
@@ -56,14 +56,9 @@ pub fn run(args: &CellArgs) -> u8 {
     };
     let cell = match build_cell(
         &table,
-        &CellRequest {
-            cathode: &args.cathode,
-            anode: &args.anode,
-            cathode_e0: args.electrodes.cathode_e0,
-            anode_e0: args.electrodes.anode_e0,
-            medium: args.electrodes.medium,
-            temperature_kelvin: args.temperature,
-        },
+        &args
+            .electrodes
+            .cell_request(&args.cathode, &args.anode, args.temperature),
     ) {
         Ok(cell) => cell,
         Err(status) => return status,

@@ -134,6 +134,25 @@ pub struct ElectrodeArgs {
     pub medium: Option<Medium>,
 }
 
+impl ElectrodeArgs {
+    /// The request for a cell from these options and the two couples named.
+    pub fn cell_request<'a>(
+        &self,
+        cathode: &'a str,
+        anode: &'a str,
+        temperature_kelvin: f64,
+    ) -> CellRequest<'a> {
+        CellRequest {
+            cathode,
+            anode,
+            cathode_e0: self.cathode_e0,
+            anode_e0: self.anode_e0,
+            medium: self.medium,
+            temperature_kelvin,
+        }
+    }
+}
+
 /// The two electrodes of a cell as the user named them.
 pub struct CellRequest<'a> {
     pub cathode: &'a str,

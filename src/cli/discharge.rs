@@ -1,7 +1,7 @@
 //! `couplet discharge`: open-circuit voltage of a cell along its discharge, from initial
 //! amounts, with CSV and SVG output written atomically.
 
-use super::common::{CellRequest, ElectrodeArgs, TableArgs, build_cell, load_table};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::activity::{ActivityModel, GammaModel};
 use couplet::cell::caution;
@@ -203,14 +203,9 @@ pub fn run(args: &DischargeArgs) -> u8 {
     };
     let cell = match build_cell(
         &table,
-        &CellRequest {
-            cathode: &args.cathode,
-            anode: &args.anode,
-            cathode_e0: args.electrodes.cathode_e0,
-            anode_e0: args.electrodes.anode_e0,
-            medium: args.electrodes.medium,
-            temperature_kelvin: args.temperature,
-        },
+        &args
+            .electrodes
+            .cell_request(&args.cathode, &args.anode, args.temperature),
     ) {
         Ok(cell) => cell,
         Err(status) => return status,
