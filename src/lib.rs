@@ -34,3 +34,4 @@ pub mod quotient;
 pub mod reaction;
 pub mod scale;
 pub mod table;
+pub mod thermo;
