@@ -43,7 +43,10 @@ TABLES = {
     f"(file {IONS} of the PyPI package chemicals 1.5.2, MIT licence)",
     "crc-substances": f"{CRC}, section 5, 'Standard Thermodynamic Properties of Chemical "
     f"Substances' (file {SUBSTANCES} of the PyPI package chemicals 1.5.2, MIT licence); "
-    "formula from the identifier databases of the same package, keyed by CAS number",
+    "formula from the identifier databases of the same package, keyed by CAS number, or "
+    "the element's symbol where the name is an element's",
+    "by-definition": "zero by definition: an element in its reference state (common practice; "
+    "IUPAC Green Book, 3rd ed., 2007, §2.11)",
 }
 
 HYDRATE_WORDS = {
@@ -120,6 +123,43 @@ def element_counts(formula):
     return counts
 
 
+def element_symbols():
+    """Element name (lower case, IUPAC and US spellings) -> symbol, from data/elements.csv."""
+    names = {}
+    lines = [l for l in (ROOT / "data/elements.csv").read_text(encoding="utf-8").splitlines()
+             if l and not l.startswith("#")]
+    for row in csv.DictReader(lines):
+        names[row["name"].lower()] = row["symbol"]
+    names.update({"aluminum": "Al", "cesium": "Cs"})  # the CRC table's US spellings
+    return names
+
+
+# Elements whose name in the table means the molecule of their standard state (common
+# practice: the diatomic gases); a qualifier such as "(atomic)" means the atom.
+DIATOMIC = {"H", "N", "O", "F", "Cl", "Br", "I"}
+
+# Reference states that the CRC substance table does not print as a row of zeros. ΔfH° and
+# ΔfG° of an element in its reference state are zero by definition (common practice); the
+# entropy is left blank rather than recalled.
+REFERENCE_ROWS = [
+    ("Sn", "s", "Tin (white)", "7440-31-5",
+     "reference state of the element (white tin): ΔfH° = ΔfG° = 0 by definition; "
+     "not a row of the table, which lists only gray tin"),
+]
+
+
+def element_formula(name, symbols):
+    """The formula an element's name means, or None when the name is no element's."""
+    match = re.fullmatch(r"([A-Za-z]+)(?: \(([^)]*)\))?", name.strip())
+    if not match or match.group(1).lower() not in symbols:
+        return None
+    symbol = symbols[match.group(1).lower()]
+    qualifier = (match.group(2) or "").lower()
+    if symbol in DIATOMIC and qualifier != "atomic":
+        return symbol + "2"
+    return symbol
+
+
 def hydrate_problem(name, formula):
     """Why an identifier formula cannot be the hydrate the CRC name says, or None."""
     for word, waters in HYDRATE_WORDS.items():
@@ -148,9 +188,15 @@ def main(argv):
         })
 
     ids = identifiers(wheel)
+    symbols = element_symbols()
     for row in read_tsv(wheel, SUBSTANCES):
         cas, name = row["CAS"], row["Chemical"]
         known = ids.get(cas)
+        as_element = element_formula(name, symbols)
+        if as_element and (known is None or known[0] != as_element):
+            # An element's name fixes its formula; the identifier databases lack some
+            # elements (sulfur) and give others another formula.
+            known = (as_element, known[1] if known and known[0] == as_element else "")
         for state, suffix in (("s", "s"), ("l", "l"), ("g", "g")):
             enthalpy, gibbs = number(row["Hf" + suffix]), number(row["Gf" + suffix])
             entropy, heat = number(row["S0" + suffix]), number(row["Cp" + suffix])
@@ -179,6 +225,13 @@ def main(argv):
                 "table": "crc-substances", "dfh": enthalpy, "dfg": gibbs, "s": entropy,
                 "cp": heat, "mw": known[1], "note": note,
             })
+
+    for formula, state, name, cas, note in REFERENCE_ROWS:
+        rows.append({
+            "formula": formula, "state": state, "name": name, "cas": cas,
+            "table": "by-definition", "dfh": 0.0, "dfg": 0.0, "s": None, "cp": None, "mw": "",
+            "note": note,
+        })
 
     write_formation(rows)
     write_skipped(skipped)

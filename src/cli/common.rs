@@ -3,7 +3,9 @@
 use super::{EXIT_FINDINGS, EXIT_USAGE};
 use couplet::scale::Scale;
 use couplet::table::{Couple, CoupleFile, LookupError, Medium, Origin, Table};
+use couplet::thermo::{FormationData, couple_from_data};
 use std::path::PathBuf;
+use std::sync::OnceLock;
 
 /// Options every potential command takes.
 #[derive(clap::Args)]
@@ -19,10 +21,46 @@ pub struct TableArgs {
     /// pH of the solution, for --scale rhe
     #[arg(long)]
     pub ph: Option<f64>,
+    /// Also read formation data (the CSV layout of data/formation.csv); repeatable; a row for
+    /// a species and phase already present replaces it. Used for couples no table lists
+    #[arg(long = "formation", value_name = "FILE")]
+    pub formation: Vec<PathBuf>,
+}
+
+/// The formation data this run uses: built-in rows plus the user's `--formation` files, read
+/// by [`load_table`]. A process-wide value because the binary runs one command.
+static FORMATION: OnceLock<FormationData> = OnceLock::new();
+
+/// The formation data of this run (built-in only until [`load_table`] has read the user's).
+pub fn formation_data() -> &'static FormationData {
+    FORMATION.get().unwrap_or_else(|| FormationData::builtin())
+}
+
+/// Built-in formation data plus the user's files; notes about replaced rows to standard error.
+pub fn load_formation(paths: &[PathBuf]) -> Result<&'static FormationData, u8> {
+    if paths.is_empty() {
+        return Ok(formation_data());
+    }
+    let mut data = FormationData::builtin().clone();
+    for path in paths {
+        let origin = couplet::thermo::DataOrigin::File(path.clone());
+        let added = std::fs::read_to_string(path)
+            .map_err(|e| format!("{}: cannot read: {e}", path.display()))
+            .and_then(|text| data.add_csv(&text, origin).map_err(|e| e.to_string()));
+        if let Err(error) = added {
+            eprintln!("error: formation data {error}");
+            return Err(EXIT_USAGE);
+        }
+    }
+    for note in data.replaced() {
+        eprintln!("note: {note}");
+    }
+    Ok(FORMATION.get_or_init(|| data))
 }
 
 /// Built-in table plus the user's files; notes about replaced ids go to standard error.
 pub fn load_table(args: &TableArgs) -> Result<Table, u8> {
+    load_formation(&args.formation)?;
     let mut table = Table::builtin();
     for path in &args.tables {
         let file = match CoupleFile::read(path) {
@@ -107,10 +145,28 @@ pub fn resolve(
             }
         });
     }
-    table
-        .find(query, medium)
-        .cloned()
-        .map_err(|e| report_lookup(&e))
+    match table.find(query, medium) {
+        Ok(couple) => Ok(couple.clone()),
+        // A couple no table lists may still follow from formation data.
+        Err(not_found @ LookupError::NotFound { .. }) => {
+            match couple_from_data(query, medium, formation_data()) {
+                Ok(found) => {
+                    eprintln!(
+                        "note: no table lists '{query}'; its E° ({:+.4} V vs SHE) is computed from formation data: {}",
+                        found.couple.e0_volts,
+                        found.thermo.rows_used().join("; ")
+                    );
+                    Ok(found.couple)
+                }
+                Err(why) => {
+                    let status = report_lookup(&not_found);
+                    eprintln!("  nor from formation data: {why}");
+                    Err(status)
+                }
+            }
+        }
+        Err(error) => Err(report_lookup(&error)),
+    }
 }
 
 /// Reads `acid`/`base`/`neutral`.

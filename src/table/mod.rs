@@ -85,6 +85,8 @@ pub enum Origin {
     File(PathBuf),
     /// Typed on the command line or built in code.
     Given,
+    /// Computed from formation data (no table lists it).
+    FormationData,
 }
 
 impl fmt::Display for Origin {
@@ -93,6 +95,7 @@ impl fmt::Display for Origin {
             Origin::BuiltIn => f.write_str("built-in table"),
             Origin::File(path) => write!(f, "{}", path.display()),
             Origin::Given => f.write_str("given"),
+            Origin::FormationData => f.write_str("formation data"),
         }
     }
 }

@@ -10,7 +10,10 @@
 //! potential tables), S°(e⁻) = ½ S°(H2, g) and Cp°(e⁻) = ½ Cp°(H2, g), taken from the same
 //! data. Then E° = −ΔrG°/(nF) and dE°/dT = ΔrS°/(nF), both versus SHE.
 
+mod couple;
 mod data;
+
+pub use couple::{DataCouple, FromDataError, couple_from_data, e0_from_data};
 
 pub use data::{
     BUILTIN_FORMATION_CSV, DataError, DataOrigin, DataPhase, FormationData, FormationRow,

@@ -14,3 +14,4 @@ mod nernst;
 mod notation;
 mod oxidation;
 mod table;
+mod thermo;
