@@ -8,10 +8,12 @@ mod check;
 mod common;
 mod derive;
 mod discharge;
+mod formation;
 mod nernst;
 mod oxidation;
 mod parse;
 mod table;
+mod thermo;
 
 use clap::{Parser, Subcommand};
 use std::io::Read;
@@ -90,6 +92,16 @@ enum Command {
         after_help = "Examples:\n  couplet check data/\n  couplet check --format sarif tables/ > couplet.sarif\n  couplet check --fix --dry-run ours.toml"
     )]
     Check(check::CheckArgs),
+    /// Formation data (ΔfH°, ΔfG°, S°, Cp°) of species in every phase the data hold, with sources
+    #[command(
+        after_help = "Examples:\n  couplet formation PbSO4 'SO4^2-' H2O\n  couplet formation 'H2S(g)' 'H2S(aq)'\n  couplet formation --json Zn2+"
+    )]
+    Formation(formation::FormationArgs),
+    /// ΔrG°, ΔrH°, ΔrS°, E°, dE°/dT and E°(T) of any reaction or half-reaction from formation data
+    #[command(
+        after_help = "Examples:\n  couplet thermo 'PbO2 + Pb + 4 H+ + 2 SO4^2- -> 2 PbSO4 + 2 H2O'\n  couplet thermo SnO2/Sn\n  couplet thermo --medium base 'Ag2O + Zn -> Ag + ZnO' --temperature 318.15\n  couplet thermo --json 'S + 2 H+ + 2 e- -> H2S(g)'"
+    )]
+    Thermo(thermo::ThermoArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -116,6 +128,8 @@ pub fn run() -> ExitCode {
         Command::Discharge(args) => discharge::run(&args),
         Command::PhLine(args) => nernst::run_ph_line(&args),
         Command::Check(args) => check::run(&args),
+        Command::Formation(args) => formation::run(&args),
+        Command::Thermo(args) => thermo::run(&args),
     };
     ExitCode::from(status)
 }

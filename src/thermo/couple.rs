@@ -121,3 +121,63 @@ pub fn e0_from_data<'a>(couple: &Couple, data: &'a FormationData) -> Option<Reac
         .is_some_and(f64::is_finite)
         .then_some(thermo)
 }
+
+/// A reaction read from text and its figures from formation data.
+#[derive(Clone, Debug)]
+pub struct TextReaction<'a> {
+    /// The reaction as used: as written when it balances, else balanced by couplet.
+    pub reaction: Reaction,
+    /// The figures.
+    pub thermo: ReactionThermo<'a>,
+    /// The medium couplet balanced it in, when it did.
+    pub balanced_in: Option<Medium>,
+    /// True for a half-reaction (E° is then versus SHE).
+    pub half: bool,
+}
+
+/// The figures of any reaction typed as text: a half-reaction or `Ox/Red` (see
+/// [`couple_from_data`]), or a whole reaction, taken as written when it balances and
+/// otherwise balanced in the medium (acid when none is given; `neutral` adds nothing). n of a
+/// whole reaction comes from oxidation numbers.
+pub fn reaction_from_text<'a>(
+    query: &str,
+    medium: Option<Medium>,
+    data: &'a FormationData,
+) -> Result<TextReaction<'a>, FromDataError> {
+    let query = query.trim();
+    let equation = equation_of(query)?;
+    if equation.has_electrons() || !is_reaction_text(query) {
+        let found = couple_from_data(query, medium, data)?;
+        return Ok(TextReaction {
+            reaction: found.couple.reaction,
+            thermo: found.thermo,
+            balanced_in: found.balanced_in,
+            half: true,
+        });
+    }
+    let written = Reaction::from_equation(&equation);
+    let (reaction, balanced_in) = if written.imbalance().is_balanced() {
+        (written, None)
+    } else {
+        let options = BalanceOptions {
+            medium: solvent(medium),
+            electrons: ElectronRule::Never,
+            ..BalanceOptions::default()
+        };
+        let balanced = balance(&equation, &options).map_err(FromDataError::Balance)?;
+        (
+            balanced.reaction().clone(),
+            Some(medium.unwrap_or(Medium::Acid)),
+        )
+    };
+    let electrons = crate::oxidation::oxidation_number_electrons(&reaction)
+        .and_then(|n| num_traits::ToPrimitive::to_f64(&n))
+        .filter(|n| *n > 0.0);
+    let thermo = reaction_thermo(&reaction, data, electrons).map_err(FromDataError::Thermo)?;
+    Ok(TextReaction {
+        reaction,
+        thermo,
+        balanced_in,
+        half: false,
+    })
+}

@@ -13,7 +13,9 @@
 mod couple;
 mod data;
 
-pub use couple::{DataCouple, FromDataError, couple_from_data, e0_from_data};
+pub use couple::{
+    DataCouple, FromDataError, TextReaction, couple_from_data, e0_from_data, reaction_from_text,
+};
 
 pub use data::{
     BUILTIN_FORMATION_CSV, DataError, DataOrigin, DataPhase, FormationData, FormationRow,
@@ -155,13 +157,35 @@ impl<'a> ReactionThermo<'a> {
         Some((-dg / (n * FARADAY_COULOMBS_PER_MOL), how))
     }
 
-    /// One line per species: `PbSO4(s): Lead(II) sulfate (s, CAS …), … [crc-substances]`.
+    /// One line per species: the species as written, the phase taken (with "by default" when
+    /// no state label chose it), and the row: `PbSO4 (s by default): Lead(II) sulfate, CAS …,
+    /// built-in formation data line 977 [crc-substances]`.
     pub fn rows_used(&self) -> Vec<String> {
         self.terms
             .iter()
             .map(|t| match t.row {
-                Some(row) => format!("{}: {}", row.label(), row.citation()),
-                None => "e-: SHE convention (ΔfG° = 0, S° = ½S°(H2, g))".to_owned(),
+                Some(row) => {
+                    let how = if t.phase_assumed.is_some() {
+                        " by default"
+                    } else {
+                        ""
+                    };
+                    let cas = row
+                        .cas
+                        .as_deref()
+                        .map(|c| format!(", CAS {c}"))
+                        .unwrap_or_default();
+                    format!(
+                        "{} ({}{how}): {}{cas}, {} line {} [{}]",
+                        t.species.ascii(),
+                        row.phase,
+                        row.name,
+                        row.origin,
+                        row.line,
+                        row.table
+                    )
+                }
+                None => "e- : SHE convention (ΔfG° = 0, S° = ½S°(H2, g))".to_owned(),
             })
             .collect()
     }
