@@ -22,6 +22,7 @@
 pub mod consistency;
 pub mod entry;
 pub mod fix;
+pub mod formation;
 pub mod load;
 pub mod output;
 mod rules;
@@ -52,6 +53,9 @@ pub struct CheckOptions {
     /// [`crate::oxidation`]): rule [`Rule::ElectronsVsOxidation`] compares the written
     /// electrons with it. `None` turns that rule off.
     pub oxidation_number_change: Option<OxidationNumberChange>,
+    /// Rule [`Rule::E0VsFormationData`]: the formation data and the threshold; `None` turns
+    /// the rule off.
+    pub formation: Option<formation::FormationCheck>,
 }
 
 impl Default for CheckOptions {
@@ -59,6 +63,7 @@ impl Default for CheckOptions {
         CheckOptions {
             tolerance_volts: DEFAULT_TOLERANCE_VOLTS,
             oxidation_number_change: Some(crate::oxidation::oxidation_number_electrons),
+            formation: Some(formation::FormationCheck::default()),
         }
     }
 }
@@ -230,6 +235,9 @@ pub fn check(files: Vec<SourceFile>, options: &CheckOptions) -> Report {
         let (file_findings, entries) = entry::check_file(index, &source.file, options);
         findings.extend(file_findings);
         judged.extend(entries);
+    }
+    if let Some(formation) = &options.formation {
+        findings.extend(formation::check_entries(&judged, formation));
     }
     findings.extend(consistency::check_table(&files, &judged, options));
     findings.sort_by_key(|f| (f.file, f.span.start, f.rule.code()));

@@ -68,11 +68,13 @@ pub enum Rule {
     AdditivityViolated,
     /// A couple without `source`.
     MissingSource,
+    /// `e0` differs from the E° that formation data give beyond the threshold.
+    E0VsFormationData,
 }
 
 impl Rule {
     /// Every rule, in code order.
-    pub const ALL: [Rule; 22] = [
+    pub const ALL: [Rule; 23] = [
         Rule::FileSyntax,
         Rule::WrongType,
         Rule::MissingReaction,
@@ -95,6 +97,7 @@ impl Rule {
         Rule::ConflictingPotentials,
         Rule::AdditivityViolated,
         Rule::MissingSource,
+        Rule::E0VsFormationData,
     ];
 
     /// The stable code, e.g. `CPL201`.
@@ -246,6 +249,12 @@ impl Rule {
                 "missing-source",
                 Warning,
                 "every couple names the publication its value was read in",
+            ),
+            Rule::E0VsFormationData => (
+                "CPL306",
+                "e0-vs-formation-data",
+                Warning,
+                "e0 agrees with the E° computed from formation data (−ΔrG°/nF) within the threshold, where every species has data",
             ),
         }
     }

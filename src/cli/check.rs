@@ -20,6 +20,10 @@ pub struct CheckArgs {
     /// How far potentials that should agree may differ, in volts
     #[arg(long, default_value_t = DEFAULT_TOLERANCE_VOLTS, value_parser = parse_tolerance)]
     tolerance: f64,
+    /// Rule CPL306: largest difference in volts between e0 and the E° from formation data
+    /// (default 0.020); 0 turns the rule off
+    #[arg(long, value_name = "VOLTS", value_parser = parse_tolerance)]
+    formation_threshold: Option<f64>,
     /// Count warnings as errors for the exit status
     #[arg(long)]
     deny_warnings: bool,
@@ -67,6 +71,14 @@ pub fn run(args: &CheckArgs) -> u8 {
     }
     let options = CheckOptions {
         tolerance_volts: args.tolerance,
+        formation: match args.formation_threshold {
+            Some(threshold) if threshold <= 0.0 => None,
+            Some(threshold) => Some(couplet::check::formation::FormationCheck {
+                threshold_volts: threshold,
+                ..Default::default()
+            }),
+            None => Some(Default::default()),
+        },
         ..CheckOptions::default()
     };
     let mut report = check(sources, &options);

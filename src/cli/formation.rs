@@ -101,8 +101,8 @@ fn human(
     }
     let _ = writeln!(
         out,
-        "  {:<5} {:>12} {:>12} {:>11} {:>11}  {}",
-        "phase", "ΔfH° kJ/mol", "ΔfG° kJ/mol", "S° J/mol/K", "Cp° J/mol/K", "name, source"
+        "  {:<5} {:>12} {:>12} {:>11} {:>11}  name, source",
+        "phase", "ΔfH° kJ/mol", "ΔfG° kJ/mol", "S° J/mol/K", "Cp° J/mol/K"
     );
     let used = resolved.as_ref().ok().map(|r| r.row);
     for row in rows {

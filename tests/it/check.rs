@@ -121,41 +121,69 @@ fn clean_fixtures_check_clean() {
     }
     let (stdout, _, status) = run(&[FIXTURES, "--format", "human"]);
     assert_eq!(status, 1, "the fixture directory as a whole has errors");
-    assert!(stdout.contains("checked 22 files"), "{stdout}");
+    assert!(stdout.contains("checked 23 files"), "{stdout}");
 }
 
 /// Findings the built-in table is known to have, each a real disagreement between its
-/// sources that the table's maintainers must settle; listed so that the test fails both on a
-/// new finding and when one of these is resolved (then remove it here). None at present: the
-/// one found (hclo/cl- at 1.482 V from OpenStax against Harris's hclo/cl2 and cl2/cl-) was
-/// settled by deriving hclo/cl- from the Harris couples, with the OpenStax value in its note.
-const KNOWN_TABLE_FINDINGS: [(&str, &str); 0] = [];
+/// sources that the table's maintainers must settle, by rule code and couple id; listed so
+/// that the test fails both on a new finding and when one of these is resolved (then remove
+/// it here). The CPL306 ones are the couples whose value differs by more than 20 mV from the
+/// E° the CRC formation data give; docs-thermo.md lists them with both values and the reason.
+/// (The earlier hclo/cl- finding was settled by deriving it from the Harris couples.)
+const KNOWN_TABLE_FINDINGS: [(&str, &str); 19] = [
+    ("CPL306", "clo-/cl-"),
+    ("CPL306", "clo2-/cl-"),
+    ("CPL306", "clo4-/clo3--base"),
+    ("CPL306", "co(oh)2/co"),
+    ("CPL306", "co3+/co2+"),
+    ("CPL306", "ce4+/ce3+"),
+    ("CPL306", "f2/f-"),
+    ("CPL306", "fe2+/fe"),
+    ("CPL306", "bi3+/bi"),
+    ("CPL306", "ni(oh)2/ni"),
+    ("CPL306", "no3-/no2"),
+    ("CPL306", "no3-/no2-"),
+    ("CPL306", "pt2+/pt"),
+    ("CPL306", "ra2+/ra"),
+    ("CPL306", "s/s2-"),
+    ("CPL306", "s2o8^2-/so4^2-"),
+    ("CPL306", "sc3+/sc"),
+    ("CPL306", "tl3+/tl+"),
+    ("CPL306", "y3+/y"),
+];
 
 #[test]
 fn builtin_table_checks_clean_but_for_known_source_disagreements() {
     let (json, _) = run_json(&["data/"]);
     let text = std::fs::read_to_string("data/potentials.toml").unwrap();
     let lines: Vec<&str> = text.lines().collect();
+    // The id of the couple a line belongs to: the nearest `id = "…"` above it.
+    let id_of = |line: usize| -> String {
+        lines[..line]
+            .iter()
+            .rev()
+            .find_map(|l| l.trim().strip_prefix("id = \""))
+            .map(|rest| rest.trim_end_matches('"').to_owned())
+            .unwrap_or_default()
+    };
     let mut found: Vec<(String, String)> = json["diagnostics"]
         .as_array()
         .unwrap()
         .iter()
         .map(|d| {
             let line = d["line"].as_u64().unwrap() as usize;
-            (
-                d["code"].as_str().unwrap().to_owned(),
-                lines[line - 1].trim().to_owned(),
-            )
+            (d["code"].as_str().unwrap().to_owned(), id_of(line))
         })
         .collect();
     found.sort();
-    let known: Vec<(String, String)> = KNOWN_TABLE_FINDINGS
+    let mut known: Vec<(String, String)> = KNOWN_TABLE_FINDINGS
         .iter()
         .map(|(c, l)| (c.to_string(), l.to_string()))
         .collect();
+    known.sort();
     assert_eq!(found, known, "{json}");
     assert_eq!(json["summary"]["entries"], 210);
-    assert_eq!(json["summary"]["warnings"], 0);
+    assert_eq!(json["summary"]["warnings"], KNOWN_TABLE_FINDINGS.len());
 }
 
 #[test]
