@@ -10,7 +10,8 @@ use couplet::notation::Species;
 use couplet::oxidation::{ElementChange, RedoxAnalysis, analyse, signed_text};
 use num_bigint::BigInt;
 use num_traits::Signed;
-use std::fmt::Write;
+use std::fmt::Write as _;
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct BalanceArgs {
@@ -28,7 +29,7 @@ pub struct BalanceArgs {
     json: bool,
 }
 
-pub fn run(args: &BalanceArgs) -> u8 {
+pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
     let options = BalanceOptions {
         medium: args.medium.parse().unwrap_or(Medium::None),
         electrons: if args.half {
@@ -42,28 +43,27 @@ pub fn run(args: &BalanceArgs) -> u8 {
         Ok(text) => text,
         Err(message) => {
             eprintln!("error: {message}");
-            return EXIT_USAGE;
+            return Ok(EXIT_USAGE);
         }
     };
     if args.input != "-" {
         let line = text.trim_end_matches(['\n', '\r']);
         let result = balance_text(line, &options);
         if args.json {
-            println!("{}", result_json(line, None, options.medium, &result));
+            writeln!(out, "{}", result_json(line, None, options.medium, &result))?;
         } else {
             match &result {
-                Ok(balanced) => print!("{}", human(balanced)),
+                Ok(balanced) => write!(out, "{}", human(balanced))?,
                 Err(error) => eprint!("{}", human_error(error, line, args.half)),
             }
         }
-        return match &result {
+        return Ok(match &result {
             Ok(_) => EXIT_OK,
             Err(BalanceError::Notation(_) | BalanceError::Repeated { .. }) => EXIT_USAGE,
             Err(_) => EXIT_FINDINGS,
-        };
+        });
     }
     let mut status = EXIT_OK;
-    let mut out = String::new();
     for (index, line) in text.lines().enumerate() {
         let line = line.trim();
         if line.is_empty() || line.starts_with('#') {
@@ -75,28 +75,22 @@ pub fn run(args: &BalanceArgs) -> u8 {
             status = EXIT_FINDINGS;
         }
         if args.json {
-            out.push_str(&result_json(line, Some(number), options.medium, &result));
+            out.write_all(result_json(line, Some(number), options.medium, &result).as_bytes())?;
         } else {
             match &result {
-                Ok(balanced) => out.push_str(&balanced.ascii()),
+                Ok(balanced) => out.write_all(balanced.ascii().as_bytes())?,
                 Err(error) => {
-                    let _ = write!(out, "line {number}: error ({}): {error}", error.kind());
+                    write!(out, "line {number}: error ({}): {error}", error.kind())?;
                     if let BalanceError::NotUnique { basis } = error {
                         let listed: Vec<String> = basis.iter().map(|r| r.to_string()).collect();
-                        let _ = write!(out, ": {}", listed.join(" ; "));
+                        write!(out, ": {}", listed.join(" ; "))?;
                     }
                 }
             }
         }
-        out.push('\n');
-        // Large batches are written in pieces so memory stays flat.
-        if out.len() > 1 << 16 {
-            print!("{out}");
-            out.clear();
-        }
+        writeln!(out)?;
     }
-    print!("{out}");
-    status
+    Ok(status)
 }
 
 /// Electrons of a half-reaction, or n of a whole reaction from its redox analysis (computed

@@ -13,6 +13,7 @@ use couplet::notation::{Arrow, Style, parse_equation, parse_species};
 use couplet::reaction::Reaction;
 use couplet::table::is_reaction_text;
 use serde_json::{Value, json};
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct CapacityArgs {
@@ -119,18 +120,20 @@ fn cell_json(c: &CellCapacity) -> Value {
     })
 }
 
-fn print_materials(materials: &[MaterialCapacity]) {
-    println!(
+fn print_materials(out: &mut dyn Write, materials: &[MaterialCapacity]) -> io::Result<()> {
+    writeln!(
+        out,
         "{:<14} {:<15} {:>4} {:>11} {:>10} {:>9} {:>11}",
         "material", "", "n", "M g/mol", "mAh/g", "g/Ah", "mAh/cm3"
-    );
+    )?;
     for m in materials {
         let n = if m.formula_units == 1.into() {
             m.electrons.to_string()
         } else {
             format!("{}/{}", m.electrons, m.formula_units)
         };
-        println!(
+        writeln!(
+            out,
             "{:<14} {:<15} {:>4} {:>11.3} {:>10.1} {:>9.3} {:>11}",
             m.species.unicode(),
             m.side.name(),
@@ -140,62 +143,80 @@ fn print_materials(materials: &[MaterialCapacity]) {
             m.grams_per_amp_hour,
             m.milliamp_hours_per_cm3
                 .map_or_else(|| "-".to_owned(), |v| format!("{v:.0}"))
-        );
+        )?;
         if m.assumed_solid {
-            println!(
+            writeln!(
+                out,
                 "  note: {} has no state label: taken as a solid",
                 m.species.ascii()
-            );
+            )?;
         }
         if m.approximate_mass {
-            println!(
+            writeln!(
+                out,
                 "  note: {} uses a mass number: its molar mass is approximate",
                 m.species.ascii()
-            );
+            )?;
         }
     }
-    println!("(mAh/g equals Ah/kg; n is electrons per formula unit; q = n·F/(3.6·M))");
+    writeln!(
+        out,
+        "(mAh/g equals Ah/kg; n is electrons per formula unit; q = n·F/(3.6·M))"
+    )
 }
 
-fn print_cell(c: &CellCapacity) {
-    println!("basis    {}: {}", c.basis.name(), c.basis.description());
+fn print_cell(out: &mut dyn Write, c: &CellCapacity) -> io::Result<()> {
+    writeln!(
+        out,
+        "basis    {}: {}",
+        c.basis.name(),
+        c.basis.description()
+    )?;
     for s in &c.shares {
-        println!(
+        writeln!(
+            out,
             "  {} {:<12} {:<18} {:>10.3} g  {}",
             if s.counted { "+" } else { " " },
             format!("{} {}", s.coefficient, s.species.unicode()),
             s.role.name(),
             s.grams,
             if s.counted { "counted" } else { "not counted" }
-        );
+        )?;
     }
-    println!(
+    writeln!(
+        out,
         "mass     {:.3} g per mole of reaction (n = {})",
         c.mass_g_per_mol, c.electrons
-    );
-    println!(
+    )?;
+    writeln!(
+        out,
         "capacity {:.1} Ah/kg  ({:.3} g/Ah)",
         c.amp_hours_per_kg, c.grams_per_amp_hour
-    );
-    println!(
+    )?;
+    writeln!(
+        out,
         "energy   {:.0} Wh/kg  (at E = {:.4} V)",
         c.watt_hours_per_kg, c.e_volts
-    );
+    )?;
     match (c.amp_hours_per_litre, c.watt_hours_per_litre) {
-        (Some(ah), Some(wh)) => println!("volume   {ah:.0} Ah/L, {wh:.0} Wh/L"),
-        _ => println!(
+        (Some(ah), Some(wh)) => writeln!(out, "volume   {ah:.0} Ah/L, {wh:.0} Wh/L")?,
+        _ => writeln!(
+            out,
             "volume   no density for {} (give --density SPECIES=G_PER_CM3)",
             c.missing_densities
                 .iter()
                 .map(|s| s.ascii())
                 .collect::<Vec<_>>()
                 .join(", ")
-        ),
+        )?,
     }
     for note in &c.notes {
-        println!("note: {note}");
+        writeln!(out, "note: {note}")?;
     }
-    println!("theoretical figures: no separator, case, current collector or unused electrolyte");
+    writeln!(
+        out,
+        "theoretical figures: no separator, case, current collector or unused electrolyte"
+    )
 }
 
 fn report(error: &CapacityError) -> u8 {
@@ -203,14 +224,14 @@ fn report(error: &CapacityError) -> u8 {
     EXIT_FINDINGS
 }
 
-pub fn run(args: &CapacityArgs) -> u8 {
+pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
     let densities = match densities(&args.densities) {
         Ok(d) => d,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     if let Some(query) = &args.couple {
         // A typed half-reaction needs no potential for its capacity, so it need not be in the
@@ -220,33 +241,40 @@ pub fn run(args: &CapacityArgs) -> u8 {
                 Ok(eq) => Reaction::from_equation(&eq),
                 Err(e) => {
                     eprintln!("{}", e.render());
-                    return super::parse::error_status(&e);
+                    return Ok(super::parse::error_status(&e));
                 }
             }
         } else {
             match table.find(query, args.electrodes.medium) {
                 Ok(c) => c.reaction.clone(),
-                Err(e) => return report_lookup(&e),
+                Err(e) => return Ok(report_lookup(&e)),
             }
         };
         let materials = match half_reaction_materials(&half, &densities) {
             Ok(m) => m,
-            Err(e) => return report(&e),
+            Err(e) => return Ok(report(&e)),
         };
         if args.json {
-            print_json(&json!({
-                "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
-                "cell": Value::Null,
-            }));
+            print_json(
+                out,
+                &json!({
+                    "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
+                    "cell": Value::Null,
+                }),
+            )?;
         } else {
-            println!("half     {}", half.to_text(Style::Unicode, Arrow::Forward));
-            print_materials(&materials);
+            writeln!(
+                out,
+                "half     {}",
+                half.to_text(Style::Unicode, Arrow::Forward)
+            )?;
+            print_materials(out, &materials)?;
         }
-        return EXIT_OK;
+        return Ok(EXIT_OK);
     }
     let (Some(cathode), Some(anode)) = (&args.cathode, &args.anode) else {
         eprintln!("error: give a couple, or --cathode and --anode");
-        return EXIT_USAGE;
+        return Ok(EXIT_USAGE);
     };
     let cell = match build_cell(
         &table,
@@ -255,14 +283,14 @@ pub fn run(args: &CapacityArgs) -> u8 {
             .cell_request(cathode, anode, args.temperature),
     ) {
         Ok(cell) => cell,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     if !cell.runs_as_written {
         eprintln!(
             "error: E°cell = {:+.4} V: the reaction does not run as written and stores no energy; swap --cathode and --anode",
             cell.e0_volts
         );
-        return EXIT_FINDINGS;
+        return Ok(EXIT_FINDINGS);
     }
     let e_volts = cell
         .at_temperature
@@ -270,30 +298,34 @@ pub fn run(args: &CapacityArgs) -> u8 {
         .map_or(cell.e0_volts, |t| t.e0_volts);
     let figures = match cell_capacity(&cell.net, &cell.electrons, e_volts, args.basis, &densities) {
         Ok(f) => f,
-        Err(e) => return report(&e),
+        Err(e) => return Ok(report(&e)),
     };
     let materials = cell_materials(&cell.net, &cell.electrons, &densities);
     if args.json {
-        print_json(&json!({
-            "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
-            "cell": cell_json(&figures),
-        }));
-        return EXIT_OK;
+        print_json(
+            out,
+            &json!({
+                "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
+                "cell": cell_json(&figures),
+            }),
+        )?;
+        return Ok(EXIT_OK);
     }
-    println!(
+    writeln!(
+        out,
         "net      {}",
         cell.net.to_text(Style::Unicode, Arrow::Forward)
-    );
-    println!("E°cell   {:+.4} V", cell.e0_volts);
+    )?;
+    writeln!(out, "E°cell   {:+.4} V", cell.e0_volts)?;
     for note in &cell.notes {
-        println!("note: {note}");
+        writeln!(out, "note: {note}")?;
     }
     if !materials.is_empty() {
-        print_materials(&materials);
+        print_materials(out, &materials)?;
     }
-    print_cell(&figures);
+    print_cell(out, &figures)?;
     if let Some(line) = caution(&cell.net) {
-        println!("{line}");
+        writeln!(out, "{line}")?;
     }
-    EXIT_OK
+    Ok(EXIT_OK)
 }

@@ -11,6 +11,7 @@ use couplet::scale::Scale;
 use couplet::table::Couple;
 use num_traits::ToPrimitive;
 use serde_json::{Value, json};
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct CellArgs {
@@ -45,14 +46,14 @@ fn half_json(couple: &Couple, scale: &Scale) -> Value {
     })
 }
 
-pub fn run(args: &CellArgs) -> u8 {
+pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let scale = match scale(&args.table) {
         Ok(scale) => scale,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let cell = match build_cell(
         &table,
@@ -61,7 +62,7 @@ pub fn run(args: &CellArgs) -> u8 {
             .cell_request(&args.cathode, &args.anode, args.temperature),
     ) {
         Ok(cell) => cell,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let at_t = cell.at_temperature.as_ref();
     let dedt = match (
@@ -81,7 +82,7 @@ pub fn run(args: &CellArgs) -> u8 {
         Ok(format) => format,
         Err(message) => {
             eprintln!("error: {message}");
-            return EXIT_USAGE;
+            return Ok(EXIT_USAGE);
         }
     };
     let (nernst, conditions) =
@@ -89,7 +90,7 @@ pub fn run(args: &CellArgs) -> u8 {
             Ok(found) => found,
             Err(message) => {
                 eprintln!("error: {message}");
-                return EXIT_USAGE;
+                return Ok(EXIT_USAGE);
             }
         };
     if let Some(format) = format {
@@ -100,12 +101,12 @@ pub fn run(args: &CellArgs) -> u8 {
         );
         match emit(&standard, &nernst, &conditions, format, &source) {
             Ok(code) => {
-                print!("{code}");
-                return EXIT_OK;
+                write!(out, "{code}")?;
+                return Ok(EXIT_OK);
             }
             Err(message) => {
                 eprintln!("error: {message}");
-                return EXIT_USAGE;
+                return Ok(EXIT_USAGE);
             }
         }
     }
@@ -159,48 +160,58 @@ pub fn run(args: &CellArgs) -> u8 {
         object.insert("notes".into(), json!(cell.notes));
         object.insert("caution".into(), json!(caution(&cell.net)));
         object.extend(json_fields(&nernst, conditions.model.model));
-        print_json(&value);
-        return EXIT_OK;
+        print_json(out, &value)?;
+        return Ok(EXIT_OK);
     }
     let on = |e: f64| format!("{:+.4} V", scale.from_she(e));
-    println!(
+    writeln!(
+        out,
         "cathode  {:<44} E° {}  ({})",
         cell.cathode
             .reaction
             .to_text(Style::Unicode, Arrow::Forward),
         on(cell.cathode.e0_volts),
         cell.cathode.label()
-    );
-    println!(
+    )?;
+    writeln!(
+        out,
         "anode    {:<44} E° {}  ({})",
         cell.anode.reaction.to_text(Style::Unicode, Arrow::Forward),
         on(cell.anode.e0_volts),
         cell.anode.label()
-    );
-    println!(
+    )?;
+    writeln!(
+        out,
         "net      {}",
         cell.net.to_text(Style::Unicode, Arrow::Forward)
-    );
-    println!("n        {}", cell.electrons);
-    println!("E°cell   {:+.4} V  (at 298.15 K)", cell.e0_volts);
-    println!("ΔG°      {:+.2} kJ/mol", cell.delta_g0_kilojoules_per_mol);
+    )?;
+    writeln!(out, "n        {}", cell.electrons)?;
+    writeln!(out, "E°cell   {:+.4} V  (at 298.15 K)", cell.e0_volts)?;
+    writeln!(
+        out,
+        "ΔG°      {:+.2} kJ/mol",
+        cell.delta_g0_kilojoules_per_mol
+    )?;
     match cell.k() {
-        Some(k) => println!("K        {k:.3e}  (log10 K = {:.2})", cell.log10_k),
-        None => println!(
+        Some(k) => writeln!(out, "K        {k:.3e}  (log10 K = {:.2})", cell.log10_k)?,
+        None => writeln!(
+            out,
             "K        beyond floating point  (log10 K = {:.2})",
             cell.log10_k
-        ),
+        )?,
     }
-    println!(
+    writeln!(
+        out,
         "         {}",
         if cell.runs_as_written {
             "runs as written (galvanic)"
         } else {
             "does not run as written: the reverse is spontaneous (an electrolytic cell as written)"
         }
-    );
+    )?;
     if let Some(t) = at_t {
-        println!(
+        writeln!(
+            out,
             "at {} K  E° {:+.4} V, ΔG° {:+.2} kJ/mol, log10 K {:.2}  (dE°/dT {:+.3} mV/K, ΔS° {:+.1} J/(mol·K), ΔH° {:+.2} kJ/mol)",
             t.temperature_kelvin,
             t.e0_volts,
@@ -209,25 +220,27 @@ pub fn run(args: &CellArgs) -> u8 {
             t.dedt_millivolts_per_kelvin,
             t.delta_s0_joules_per_mol_kelvin,
             t.delta_h0_kilojoules_per_mol
-        );
+        )?;
     }
     if scale != Scale::She {
-        println!(
+        writeln!(
+            out,
             "electrode potentials vs {}; E°cell does not depend on the scale",
             scale.label()
-        );
+        )?;
     }
-    print!("{}", text(&nernst, args.temperature));
+    write!(out, "{}", text(&nernst, args.temperature))?;
     for note in &cell.notes {
-        println!("note: {note}");
+        writeln!(out, "note: {note}")?;
     }
-    println!(
+    writeln!(
+        out,
         "sources: cathode {}; anode {}",
         cell.cathode.source.as_deref().unwrap_or("given"),
         cell.anode.source.as_deref().unwrap_or("given")
-    );
+    )?;
     if let Some(line) = caution(&cell.net) {
-        println!("{line}");
+        writeln!(out, "{line}")?;
     }
-    EXIT_OK
+    Ok(EXIT_OK)
 }

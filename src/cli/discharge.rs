@@ -11,6 +11,7 @@ use couplet::notation::{Arrow, Species, Style, parse_species};
 use couplet::output::svg::{DischargeAxis, discharge_plot, render};
 use couplet::output::{csv::discharge_csv, write_atomically};
 use serde_json::json;
+use std::io::{self, Write};
 use std::path::PathBuf;
 
 #[derive(clap::Args)]
@@ -124,19 +125,22 @@ fn json_of(curve: &Discharge) -> serde_json::Value {
     })
 }
 
-fn print_text(curve: &Discharge) {
-    println!("net       {}", curve.reaction);
-    println!(
+fn print_text(out: &mut dyn Write, curve: &Discharge) -> io::Result<()> {
+    writeln!(out, "net       {}", curve.reaction)?;
+    writeln!(
+        out,
         "n         {}    E° {:+.4} V at {} K    γ model {}",
         curve.electrons, curve.e0_volts, curve.temperature_kelvin, curve.gamma_model
-    );
-    println!(
+    )?;
+    writeln!(
+        out,
         "limiting  {} (runs out after {:.4} mol of reaction)",
         curve.limiting.ascii(),
         curve.extent_end_mol
-    );
+    )?;
     if !curve.excess.is_empty() {
-        println!(
+        writeln!(
+            out,
             "excess    {}",
             curve
                 .excess
@@ -144,16 +148,17 @@ fn print_text(curve: &Discharge) {
                 .map(|s| s.ascii())
                 .collect::<Vec<_>>()
                 .join(", ")
-        );
+        )?;
     }
-    println!("{:>6} {:>12} {:>10}", "soc", "charge Ah", "E V");
+    writeln!(out, "{:>6} {:>12} {:>10}", "soc", "charge Ah", "E V")?;
     let every = (curve.points.len() / 10).max(1);
     for (i, p) in curve.points.iter().enumerate() {
         if i % every == 0 || i + 1 == curve.points.len() {
-            println!(
+            writeln!(
+                out,
                 "{:>6.3} {:>12.4} {:>10.4}",
                 p.state_of_charge, p.charge_amp_hours, p.e_volts
-            );
+            )?;
         }
     }
     let mean = if curve.capacity_amp_hours > 0.0 {
@@ -161,45 +166,49 @@ fn print_text(curve: &Discharge) {
     } else {
         f64::NAN
     };
-    println!(
+    writeln!(
+        out,
         "capacity  {:.4} Ah    energy {:.4} Wh    mean E {:.4} V",
         curve.capacity_amp_hours, curve.energy_watt_hours, mean
-    );
+    )?;
     if let Some(reason) = &curve.stopped {
-        println!("note: {reason}");
+        writeln!(out, "note: {reason}")?;
     }
     for a in &curve.assumptions {
-        println!("assumed: {a}");
+        writeln!(out, "assumed: {a}")?;
     }
-    println!("open-circuit (equilibrium) voltages: no overpotential, resistance or self-discharge");
+    writeln!(
+        out,
+        "open-circuit (equilibrium) voltages: no overpotential, resistance or self-discharge"
+    )
 }
 
-pub fn run(args: &DischargeArgs) -> u8 {
+pub fn run(args: &DischargeArgs, out: &mut dyn Write) -> io::Result<u8> {
     let Some(model) = GammaModel::from_name(&args.gamma) else {
         eprintln!(
             "error: --gamma must be ideal, debye-huckel, extended, davies or table, not '{}'",
             args.gamma
         );
-        return EXIT_USAGE;
+        return Ok(EXIT_USAGE);
     };
     let amounts = match amounts(&args.amounts) {
         Ok(a) => a,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let mut pressures = Vec::new();
     for item in &args.pressures {
         let (gas, value) = match split_pair("--pressure", item) {
             Ok(p) => p,
-            Err(status) => return status,
+            Err(status) => return Ok(status),
         };
         match number("--pressure", item, value) {
             Ok(bar) => pressures.push((gas, bar)),
-            Err(status) => return status,
+            Err(status) => return Ok(status),
         }
     }
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let cell = match build_cell(
         &table,
@@ -208,7 +217,7 @@ pub fn run(args: &DischargeArgs) -> u8 {
             .cell_request(&args.cathode, &args.anode, args.temperature),
     ) {
         Ok(cell) => cell,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let spec = DischargeSpec {
         amounts,
@@ -224,7 +233,7 @@ pub fn run(args: &DischargeArgs) -> u8 {
         Ok(curve) => curve,
         Err(error) => {
             eprintln!("error: {error}");
-            return EXIT_FINDINGS;
+            return Ok(EXIT_FINDINGS);
         }
     };
     // Render everything before writing anything, so a rendering fault writes no file.
@@ -248,7 +257,7 @@ pub fn run(args: &DischargeArgs) -> u8 {
                 Ok(text) => Some(text),
                 Err(error) => {
                     eprintln!("error: {error}");
-                    return EXIT_FINDINGS;
+                    return Ok(EXIT_FINDINGS);
                 }
             }
         }
@@ -265,16 +274,16 @@ pub fn run(args: &DischargeArgs) -> u8 {
             && let Err(error) = write_atomically(path, text.as_bytes())
         {
             eprintln!("error: cannot write {}: {error}", path.display());
-            return EXIT_USAGE;
+            return Ok(EXIT_USAGE);
         }
     }
     if args.json {
-        print_json(&json_of(&curve));
+        print_json(out, &json_of(&curve))?;
     } else {
-        print_text(&curve);
+        print_text(out, &curve)?;
         if let Some(line) = caution(&cell.net) {
-            println!("{line}");
+            writeln!(out, "{line}")?;
         }
     }
-    EXIT_OK
+    Ok(EXIT_OK)
 }

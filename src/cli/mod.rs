@@ -14,7 +14,7 @@ mod parse;
 mod table;
 
 use clap::{Parser, Subcommand};
-use std::io::Read;
+use std::io::{self, Read, Write};
 use std::process::ExitCode;
 
 /// Exit status: everything went as asked.
@@ -97,27 +97,94 @@ pub fn run() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(cli) => cli,
         Err(error) => {
-            let _ = error.print();
-            return ExitCode::from(if error.use_stderr() {
+            // Help and version go to standard output: a failed write of them is an error too,
+            // a closed pipe is not.
+            let printed = error.print();
+            let failed = match printed {
+                Err(e) if e.kind() != io::ErrorKind::BrokenPipe => {
+                    let _ = writeln!(io::stderr(), "error: cannot write the help: {e}");
+                    true
+                }
+                _ => false,
+            };
+            return ExitCode::from(if error.use_stderr() || failed {
                 EXIT_USAGE
             } else {
                 EXIT_OK
             });
         }
     };
-    let status = match cli.command {
-        Command::Parse(args) => parse::run(&args),
-        Command::Balance(args) => balance::run(&args),
-        Command::Table(args) => table::run(&args),
-        Command::Cell(args) => cell::run(&args),
-        Command::Derive(args) => derive::run(&args),
-        Command::Oxidation(args) => oxidation::run(&args),
-        Command::Capacity(args) => capacity::run(&args),
-        Command::Discharge(args) => discharge::run(&args),
-        Command::PhLine(args) => nernst::run_ph_line(&args),
-        Command::Check(args) => check::run(&args),
-    };
-    ExitCode::from(status)
+    let mut out = io::BufWriter::new(Stdout::default());
+    let result = dispatch(cli.command, &mut out).and_then(|status| {
+        out.flush()?;
+        Ok(status)
+    });
+    match result {
+        Ok(status) => ExitCode::from(status),
+        Err(error) => {
+            // Whatever was buffered cannot be written either; drop it without a second error.
+            let _ = out.into_parts();
+            let _ = writeln!(
+                io::stderr(),
+                "error: cannot write to standard output: {error}"
+            );
+            ExitCode::from(EXIT_USAGE)
+        }
+    }
+}
+
+/// Runs one command, writing its output to `out`.
+fn dispatch(command: Command, out: &mut dyn Write) -> io::Result<u8> {
+    match command {
+        Command::Parse(args) => parse::run(&args, out),
+        Command::Balance(args) => balance::run(&args, out),
+        Command::Table(args) => table::run(&args, out),
+        Command::Cell(args) => cell::run(&args, out),
+        Command::Derive(args) => derive::run(&args, out),
+        Command::Oxidation(args) => oxidation::run(&args, out),
+        Command::Capacity(args) => capacity::run(&args, out),
+        Command::Discharge(args) => discharge::run(&args, out),
+        Command::PhLine(args) => nernst::run_ph_line(&args, out),
+        Command::Check(args) => check::run(&args, out),
+    }
+}
+
+/// Standard output as every command writes it. When the reader has gone (`| head`), the rest of
+/// the output is dropped quietly and the command still ends with its own exit status; every other
+/// write error (a full disk, `> /dev/full`) is returned, reported once and gives exit status 2.
+#[derive(Default)]
+struct Stdout {
+    closed: bool,
+}
+
+impl Stdout {
+    fn absorb<T>(&mut self, result: io::Result<T>, done: T) -> io::Result<T> {
+        match result {
+            Err(error) if error.kind() == io::ErrorKind::BrokenPipe => {
+                self.closed = true;
+                Ok(done)
+            }
+            other => other,
+        }
+    }
+}
+
+impl Write for Stdout {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        if self.closed {
+            return Ok(buf.len());
+        }
+        let result = io::stdout().lock().write(buf);
+        self.absorb(result, buf.len())
+    }
+
+    fn flush(&mut self) -> io::Result<()> {
+        if self.closed {
+            return Ok(());
+        }
+        let result = io::stdout().lock().flush();
+        self.absorb(result, ())
+    }
 }
 
 /// The text of an argument, or all of standard input when the argument is `-`.
@@ -132,10 +199,8 @@ pub fn argument_or_stdin(argument: &str) -> Result<String, String> {
     Ok(text)
 }
 
-/// Prints a JSON value on one line.
-pub fn print_json(value: &serde_json::Value) {
-    println!(
-        "{}",
-        serde_json::to_string(value).expect("JSON values always serialise")
-    );
+/// Writes a JSON value on one line.
+pub fn print_json(out: &mut dyn Write, value: &serde_json::Value) -> io::Result<()> {
+    serde_json::to_writer(&mut *out, value)?;
+    writeln!(out)
 }

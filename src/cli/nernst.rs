@@ -12,6 +12,7 @@ use couplet::notation::{Species, parse_species};
 use couplet::quotient::Basis;
 use couplet::table::Medium;
 use serde_json::{Value, json};
+use std::io::{self, Write};
 
 /// Composition, γ model and export options.
 #[derive(clap::Args, Clone, Debug, Default)]
@@ -251,14 +252,14 @@ pub struct PhLineArgs {
 }
 
 /// Prints `pH,E_V` rows (CSV) for the couple; assumptions go to standard error.
-pub fn run_ph_line(args: &PhLineArgs) -> u8 {
+pub fn run_ph_line(args: &PhLineArgs, out: &mut dyn Write) -> io::Result<u8> {
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let couple = match resolve(&table, &args.couple, args.e0, args.medium) {
         Ok(c) => c,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let standard = Standard {
         reaction: &couple.reaction,
@@ -270,14 +271,14 @@ pub fn run_ph_line(args: &PhLineArgs) -> u8 {
         Ok(c) => c,
         Err(message) => {
             eprintln!("error: {message}");
-            return EXIT_USAGE;
+            return Ok(EXIT_USAGE);
         }
     };
     match ph_line(&standard, &conditions, args.from, args.to, args.step) {
         Ok((points, assumptions)) => {
-            println!("pH,E_V");
+            writeln!(out, "pH,E_V")?;
             for p in points {
-                println!("{},{:.6}", p.ph, p.e_volts);
+                writeln!(out, "{},{:.6}", p.ph, p.e_volts)?;
             }
             eprintln!(
                 "couple: {} (E° {} V, {})",
@@ -288,11 +289,11 @@ pub fn run_ph_line(args: &PhLineArgs) -> u8 {
             for a in assumptions {
                 eprintln!("assumed: {a}");
             }
-            EXIT_OK
+            Ok(EXIT_OK)
         }
         Err(error) => {
             eprintln!("error: {error}");
-            EXIT_USAGE
+            Ok(EXIT_USAGE)
         }
     }
 }

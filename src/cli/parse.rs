@@ -5,6 +5,7 @@ use couplet::composition::Composition;
 use couplet::notation::{Input, NotationError, NotationErrorKind, Species, Term, parse_input};
 use num_rational::Ratio;
 use serde_json::{Value, json};
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct ParseArgs {
@@ -15,37 +16,37 @@ pub struct ParseArgs {
     json: bool,
 }
 
-pub fn run(args: &ParseArgs) -> u8 {
+pub fn run(args: &ParseArgs, out: &mut dyn Write) -> io::Result<u8> {
     let text = match argument_or_stdin(&args.input) {
         Ok(text) => text,
         Err(message) => {
             eprintln!("error: {message}");
-            return EXIT_USAGE;
+            return Ok(EXIT_USAGE);
         }
     };
     let text = text.trim_end_matches(['\n', '\r']);
     match parse_input(text) {
         Ok(input) => {
             if args.json {
-                print_json(&input_json(&input, text));
+                print_json(out, &input_json(&input, text))?;
             } else {
-                print!("{}", input_table(&input));
+                write!(out, "{}", input_table(&input))?;
             }
-            EXIT_OK
+            Ok(EXIT_OK)
         }
-        Err(error) => report_error(&error, args.json),
+        Err(error) => report_error(out, &error, args.json),
     }
 }
 
 /// Prints a notation error (JSON on stdout, or a caret rendering on stderr) and returns its exit
 /// status.
-pub fn report_error(error: &NotationError, json: bool) -> u8 {
+pub fn report_error(out: &mut dyn Write, error: &NotationError, json: bool) -> io::Result<u8> {
     if json {
-        print_json(&error_json(error));
+        print_json(out, &error_json(error))?;
     } else {
         eprintln!("{}", error.render());
     }
-    error_status(error)
+    Ok(error_status(error))
 }
 
 /// The exit status of a notation error.

@@ -5,6 +5,7 @@ use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::table::{Couple, element_named};
 use serde_json::json;
 use std::fmt::Write as _;
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct TableCommandArgs {
@@ -21,14 +22,14 @@ pub struct TableCommandArgs {
     json: bool,
 }
 
-pub fn run(args: &TableCommandArgs) -> u8 {
+pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let scale = match scale(&args.table) {
         Ok(scale) => scale,
-        Err(status) => return status,
+        Err(status) => return Ok(status),
     };
     let mut found: Vec<&Couple> = match &args.query {
         Some(query) => table.matching(query),
@@ -37,7 +38,7 @@ pub fn run(args: &TableCommandArgs) -> u8 {
     if let Some(name) = &args.element {
         let Some(element) = element_named(name) else {
             eprintln!("error: no element is called '{name}'");
-            return EXIT_USAGE;
+            return Ok(EXIT_USAGE);
         };
         found.retain(|c| c.contains_element(element));
     }
@@ -54,26 +55,26 @@ pub fn run(args: &TableCommandArgs) -> u8 {
                 })
             })
             .collect();
-        print_json(&serde_json::Value::Array(rows));
-        return if found.is_empty() {
+        print_json(out, &serde_json::Value::Array(rows))?;
+        return Ok(if found.is_empty() {
             EXIT_FINDINGS
         } else {
             EXIT_OK
-        };
+        });
     }
     if found.is_empty() {
         eprintln!("no couple fits; try an element name or symbol, or `couplet table` for all");
-        return EXIT_FINDINGS;
+        return Ok(EXIT_FINDINGS);
     }
-    let mut out = String::new();
+    let mut text = String::new();
     let _ = writeln!(
-        out,
+        text,
         "{:<26} {:>9}  {:>8}  {:<7}  reaction",
         "id", "E°/V", "dE/dT", "medium"
     );
     for c in &found {
         let _ = writeln!(
-            out,
+            text,
             "{:<26} {:>9.4}  {:>8}  {:<7}  {}",
             c.id.as_deref().unwrap_or("(no id)"),
             scale.from_she(c.e0_volts),
@@ -85,27 +86,21 @@ pub fn run(args: &TableCommandArgs) -> u8 {
     }
     if found.len() <= 3 {
         for c in &found {
-            let _ = writeln!(out, "\n{}", c.label());
+            let _ = writeln!(text, "\n{}", c.label());
             let source = c.source.as_deref().unwrap_or("none given");
-            let _ = writeln!(out, "  source: {source}");
+            let _ = writeln!(text, "  source: {source}");
             if let Some(note) = &c.note {
-                let _ = writeln!(out, "  note:   {note}");
+                let _ = writeln!(text, "  note:   {note}");
             }
-            let _ = writeln!(out, "  from:   {}", c.origin);
+            let _ = writeln!(text, "  from:   {}", c.origin);
         }
     }
     let _ = writeln!(
-        out,
+        text,
         "\n{} couple(s); E° in V vs {} at 298.15 K, dE/dT in mV/K",
         found.len(),
         scale.label()
     );
-    print_quietly(&out);
-    EXIT_OK
-}
-
-/// Writes to standard output; a closed pipe (`| head`) ends the output quietly.
-fn print_quietly(text: &str) {
-    use std::io::Write;
-    let _ = std::io::stdout().lock().write_all(text.as_bytes());
+    out.write_all(text.as_bytes())?;
+    Ok(EXIT_OK)
 }
