@@ -1,15 +1,14 @@
 //! `couplet capacity`: theoretical capacity of electrode materials and of a cell, with its
 //! specific energy on a stated mass basis and volumetric figures where densities are known.
 
-use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, report_lookup};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, report_lookup, scale};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::capacity::{
     Basis, CapacityError, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
     half_reaction_materials,
 };
 use couplet::cell::caution;
-use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
-use couplet::notation::{Arrow, Style, parse_equation, parse_species};
+use couplet::notation::{Arrow, Style, parse_equation};
 use couplet::reaction::Reaction;
 use couplet::table::is_reaction_text;
 use serde_json::{Value, json};
@@ -29,8 +28,9 @@ pub struct CapacityArgs {
     anode: Option<String>,
     #[command(flatten)]
     electrodes: ElectrodeArgs,
-    /// Temperature in K for the cell voltage used in the energy (first order from dE°/dT)
-    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    /// Temperature for the cell voltage used in the energy (first order from dE°/dT), with its
+    /// unit: 25C, 25°C, 298.15K; a bare number is kelvin and must be at least 200
+    #[arg(long, default_value = "298.15K", value_parser = super::units::temperature)]
     temperature: f64,
     /// Mass basis of the cell figures: active (electrode materials), with-electrolyte
     /// (also consumed dissolved species and water) or all-reactants (gases too)
@@ -56,24 +56,14 @@ fn basis_arg(text: &str) -> Result<Basis, String> {
 /// Reads `SPECIES=VALUE` into the built-in densities.
 fn densities(given: &[String]) -> Result<Densities, u8> {
     let mut densities = Densities::builtin();
-    for item in given {
-        let Some((name, value)) = item.rsplit_once('=') else {
-            eprintln!("error: --density '{item}': expected SPECIES=G_PER_CM3");
-            return Err(EXIT_USAGE);
-        };
-        let species = match parse_species(name.trim()) {
-            Ok(s) => s,
-            Err(e) => {
-                eprintln!("error: --density '{item}': {}", e.message);
-                return Err(EXIT_USAGE);
-            }
-        };
-        let Ok(value) = value.trim().parse::<f64>() else {
-            eprintln!("error: --density '{item}': '{value}' is not a number");
-            return Err(EXIT_USAGE);
-        };
+    let given = super::units::species_numbers("--density", given).map_err(|message| {
+        eprintln!("error: {message}");
+        EXIT_USAGE
+    })?;
+    for (species, value) in given {
+        let name = species.ascii();
         if let Err(e) = densities.insert(species, value, "given".to_owned()) {
-            eprintln!("error: --density '{item}': {e}");
+            eprintln!("error: --density {name}: {e}");
             return Err(EXIT_USAGE);
         }
     }
@@ -272,6 +262,10 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
         }
         return Ok(EXIT_OK);
     }
+    let scale = match scale(&args.table) {
+        Ok(scale) => scale,
+        Err(status) => return Ok(status),
+    };
     let (Some(cathode), Some(anode)) = (&args.cathode, &args.anode) else {
         eprintln!("error: give a couple, or --cathode and --anode");
         return Ok(EXIT_USAGE);
@@ -280,7 +274,7 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
         &table,
         &args
             .electrodes
-            .cell_request(cathode, anode, args.temperature),
+            .cell_request(cathode, anode, args.temperature, &scale),
     ) {
         Ok(cell) => cell,
         Err(status) => return Ok(status),

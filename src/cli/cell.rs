@@ -23,8 +23,9 @@ pub struct CellArgs {
     anode: String,
     #[command(flatten)]
     electrodes: ElectrodeArgs,
-    /// Temperature in K for E°(T), ΔG°(T), K(T) (first order from dE°/dT)
-    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    /// Temperature for E°(T), ΔG°(T), K(T) (first order from dE°/dT), with its unit: 25C,
+    /// 25°C, 298.15K; a bare number is kelvin and must be at least 200; a warning outside 0–100 °C
+    #[arg(long, default_value = "298.15K", value_parser = super::units::temperature)]
     temperature: f64,
     #[command(flatten)]
     table: TableArgs,
@@ -40,7 +41,7 @@ fn half_json(couple: &Couple, scale: &Scale) -> Value {
     json!({
         "id": couple.id,
         "reaction": couple.reaction.to_string(),
-        "e0_V": scale.from_she(couple.e0_volts),
+        "e0_V": scale.couple_potential(&couple.reaction, couple.e0_volts),
         "n": couple.electrons().to_integer().to_string().parse::<i64>().unwrap_or(0),
         "source": couple.source,
     })
@@ -59,7 +60,7 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
         &table,
         &args
             .electrodes
-            .cell_request(&args.cathode, &args.anode, args.temperature),
+            .cell_request(&args.cathode, &args.anode, args.temperature, &scale),
     ) {
         Ok(cell) => cell,
         Err(status) => return Ok(status),
@@ -85,14 +86,24 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
             return Ok(EXIT_USAGE);
         }
     };
-    let (nernst, conditions) =
-        match run_nernst(&args.nernst, &standard, args.table.ph, args.temperature) {
-            Ok(found) => found,
-            Err(message) => {
-                eprintln!("error: {message}");
-                return Ok(EXIT_USAGE);
-            }
-        };
+    // A pH whose H+ and OH- cancel in the net reaction cannot move E: say so, do not refuse it
+    // (it still sets the RHE scale).
+    let mut ph = args.table.ph;
+    if let Some(value) = ph
+        && !has_h_or_oh(&cell.net)
+    {
+        eprintln!(
+            "note: pH {value} does not enter Q: the net reaction has no H+ or OH- (they cancel), so E does not depend on pH"
+        );
+        ph = None;
+    }
+    let (nernst, conditions) = match run_nernst(&args.nernst, &standard, ph, args.temperature) {
+        Ok(found) => found,
+        Err(message) => {
+            eprintln!("error: {message}");
+            return Ok(EXIT_USAGE);
+        }
+    };
     if let Some(format) = format {
         let source = format!(
             "cathode {}; anode {}",
@@ -163,21 +174,21 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
         print_json(out, &value)?;
         return Ok(EXIT_OK);
     }
-    let on = |e: f64| format!("{:+.4} V", scale.from_she(e));
+    let on = |c: &Couple| format!("{:+.4} V", scale.couple_potential(&c.reaction, c.e0_volts));
     writeln!(
         out,
         "cathode  {:<44} E° {}  ({})",
         cell.cathode
             .reaction
             .to_text(Style::Unicode, Arrow::Forward),
-        on(cell.cathode.e0_volts),
+        on(&cell.cathode),
         cell.cathode.label()
     )?;
     writeln!(
         out,
         "anode    {:<44} E° {}  ({})",
         cell.anode.reaction.to_text(Style::Unicode, Arrow::Forward),
-        on(cell.anode.e0_volts),
+        on(&cell.anode),
         cell.anode.label()
     )?;
     writeln!(
@@ -225,8 +236,9 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
     if scale != Scale::She {
         writeln!(
             out,
-            "electrode potentials vs {}; E°cell does not depend on the scale",
-            scale.label()
+            "electrode potentials vs {}{}; E°cell does not depend on the scale",
+            scale.label(),
+            super::common::rhe_meaning(&scale)
         )?;
     }
     write!(out, "{}", text(&nernst, args.temperature))?;
@@ -243,4 +255,12 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
         writeln!(out, "{line}")?;
     }
     Ok(EXIT_OK)
+}
+
+/// Whether H+ or OH- takes part in a reaction.
+fn has_h_or_oh(reaction: &couplet::reaction::Reaction) -> bool {
+    reaction
+        .entries()
+        .iter()
+        .any(|e| matches!(e.species.without_state().ascii().as_str(), "H+" | "OH-"))
 }

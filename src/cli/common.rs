@@ -12,12 +12,14 @@ pub struct TableArgs {
     /// already present replaces the earlier couple
     #[arg(long = "table", value_name = "FILE")]
     pub tables: Vec<PathBuf>,
-    /// Print potentials against this reference: she, rhe (with --ph), sce, ag-agcl-sat-kcl,
-    /// ag-agcl-3m-kcl, hg-hgo-1m-koh, hg-hg2so4-sat-k2so4, li-li+, … (see docs)
+    /// Reference scale of the electrode potentials printed and of those typed with
+    /// --cathode-e0, --anode-e0 or --e0: she, rhe (with --ph), sce, ag-agcl-sat-kcl,
+    /// ag-agcl-3m-kcl, hg-hgo-1m-koh, hg-hg2so4-sat-k2so4, li-li+, … (see docs); E°cell does not
+    /// depend on it
     #[arg(long, value_name = "SCALE", default_value = "she")]
     pub scale: String,
-    /// pH of the solution, for --scale rhe
-    #[arg(long)]
+    /// pH of the solution (−2 to 16), for --scale rhe and for a(H+) in Q
+    #[arg(long, value_parser = super::units::ph, allow_hyphen_values = true)]
     pub ph: Option<f64>,
 }
 
@@ -54,6 +56,16 @@ pub fn scale(args: &TableArgs) -> Result<Scale, u8> {
     })
 }
 
+/// What a potential on RHE means, for the line that names the scale (empty on other scales).
+pub fn rhe_meaning(scale: &Scale) -> &'static str {
+    match scale {
+        Scale::Rhe { .. } => {
+            ": each couple in the solution of that pH (other species at unit activity) against the RHE in the same solution"
+        }
+        _ => "",
+    }
+}
+
 /// Prints why a lookup failed and returns the exit status.
 pub fn report_lookup(error: &LookupError) -> u8 {
     match error {
@@ -82,21 +94,32 @@ pub fn report_lookup(error: &LookupError) -> u8 {
 }
 
 /// A couple named by id, `Ox/Red` or half-reaction; a typed half-reaction with its own E°
-/// (`e0`) need not be in the table.
+/// (`e0`, read on `scale`) need not be in the table.
 pub fn resolve(
     table: &Table,
     query: &str,
-    e0_volts: Option<f64>,
+    e0: Option<(f64, &Scale)>,
     medium: Option<Medium>,
 ) -> Result<Couple, u8> {
-    if let Some(e0) = e0_volts {
+    if let Some((e0, scale)) = e0 {
         if !couplet::table::is_reaction_text(query) {
             eprintln!(
                 "error: a potential given on the command line needs a typed half-reaction, not '{query}'"
             );
             return Err(EXIT_USAGE);
         }
-        return Couple::new(query, e0).map_err(|error| {
+        let typed = Couple::new(query, e0).map(|mut couple| {
+            if *scale != Scale::She {
+                couple.e0_volts = scale.couple_e0_vs_she(&couple.reaction, e0);
+                eprintln!(
+                    "note: the E° typed for '{query}' is read vs {}: {e0} V there is {} V vs SHE",
+                    scale.label(),
+                    couplet::figures::significant(couple.e0_volts, 5)
+                );
+            }
+            couple
+        });
+        return typed.map_err(|error| {
             match &error {
                 couplet::table::CoupleError::Notation(e) => eprintln!("{}", e.render()),
                 _ => eprintln!("error: {error}"),
@@ -123,11 +146,12 @@ pub fn medium_arg(text: &str) -> Result<Medium, String> {
 /// the medium both halves are written for.
 #[derive(clap::Args)]
 pub struct ElectrodeArgs {
-    /// E° (V vs SHE) of a typed cathode half-reaction that is not in the table
-    #[arg(long = "cathode-e0", allow_hyphen_values = true)]
+    /// E° in V of a typed cathode half-reaction that is not in the table, on the --scale
+    /// (vs SHE unless --scale says otherwise)
+    #[arg(long = "cathode-e0", allow_hyphen_values = true, value_parser = super::units::volts)]
     pub cathode_e0: Option<f64>,
-    /// E° (V vs SHE) of a typed anode half-reaction that is not in the table
-    #[arg(long = "anode-e0", allow_hyphen_values = true)]
+    /// E° in V of a typed anode half-reaction that is not in the table, on the --scale
+    #[arg(long = "anode-e0", allow_hyphen_values = true, value_parser = super::units::volts)]
     pub anode_e0: Option<f64>,
     /// Write both halves for this solution: acid or base (converts with Kw)
     #[arg(long, value_parser = medium_arg)]
@@ -141,6 +165,7 @@ impl ElectrodeArgs {
         cathode: &'a str,
         anode: &'a str,
         temperature_kelvin: f64,
+        scale: &'a Scale,
     ) -> CellRequest<'a> {
         CellRequest {
             cathode,
@@ -149,6 +174,7 @@ impl ElectrodeArgs {
             anode_e0: self.anode_e0,
             medium: self.medium,
             temperature_kelvin,
+            scale,
         }
     }
 }
@@ -161,13 +187,26 @@ pub struct CellRequest<'a> {
     pub anode_e0: Option<f64>,
     pub medium: Option<Medium>,
     pub temperature_kelvin: f64,
+    /// The scale typed potentials are on.
+    pub scale: &'a Scale,
 }
 
 /// Looks both electrodes up and combines them into a cell; on failure the error has been
 /// reported and the exit status is returned.
 pub fn build_cell(table: &Table, request: &CellRequest<'_>) -> Result<couplet::cell::Cell, u8> {
-    let cathode = resolve(table, request.cathode, request.cathode_e0, request.medium)?;
-    let anode = resolve(table, request.anode, request.anode_e0, request.medium)?;
+    let typed = |e0: Option<f64>| e0.map(|e0| (e0, request.scale));
+    let cathode = resolve(
+        table,
+        request.cathode,
+        typed(request.cathode_e0),
+        request.medium,
+    )?;
+    let anode = resolve(
+        table,
+        request.anode,
+        typed(request.anode_e0),
+        request.medium,
+    )?;
     let options = couplet::cell::CellOptions {
         temperature_kelvin: request.temperature_kelvin,
         medium: request.medium,

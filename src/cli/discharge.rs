@@ -1,13 +1,13 @@
 //! `couplet discharge`: open-circuit voltage of a cell along its discharge, from initial
 //! amounts, with CSV and SVG output written atomically.
 
-use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale};
+use super::units::{refuse_repeats, species_numbers, species_value};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::activity::{ActivityModel, GammaModel};
 use couplet::cell::caution;
-use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
 use couplet::discharge::{Amount, Discharge, DischargeSpec, discharge};
-use couplet::notation::{Arrow, Species, Style, parse_species};
+use couplet::notation::{Arrow, Species, Style};
 use couplet::output::svg::{DischargeAxis, discharge_plot, render};
 use couplet::output::{csv::discharge_csv, write_atomically};
 use serde_json::json;
@@ -40,11 +40,12 @@ pub struct DischargeArgs {
     /// Pressure of a gas in bar, GAS=BAR (air: O2=0.21); gases not given are at 1 bar
     #[arg(long = "pressure", value_name = "GAS=BAR")]
     pressures: Vec<String>,
-    /// Temperature in K
-    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    /// Temperature with its unit: 25C, 25°C, 298.15K; a bare number is kelvin and must be at
+    /// least 200; a warning outside 0–100 °C
+    #[arg(long, default_value = "298.15K", value_parser = super::units::temperature)]
     temperature: f64,
-    /// Steps from charged to the end (points = steps + 1)
-    #[arg(long, default_value_t = 100)]
+    /// Steps from charged to the end (points = steps + 1), 1 to 10000
+    #[arg(long, default_value_t = 100, value_parser = super::units::steps)]
     steps: usize,
     /// Write the curve as CSV (columns soc, charge_Ah, e_V, …)
     #[arg(long)]
@@ -62,39 +63,28 @@ pub struct DischargeArgs {
     json: bool,
 }
 
-fn split_pair<'a>(option: &str, item: &'a str) -> Result<(Species, &'a str), u8> {
-    let Some((name, value)) = item.rsplit_once('=') else {
-        eprintln!("error: {option} '{item}': expected SPECIES=VALUE");
-        return Err(EXIT_USAGE);
-    };
-    match parse_species(name.trim()) {
-        Ok(s) => Ok((s, value.trim())),
-        Err(e) => {
-            eprintln!("error: {option} '{item}': {}", e.message);
-            Err(EXIT_USAGE)
-        }
-    }
-}
-
-fn number(option: &str, item: &str, text: &str) -> Result<f64, u8> {
-    text.parse::<f64>().map_err(|_| {
-        eprintln!("error: {option} '{item}': '{text}' is not a number");
-        EXIT_USAGE
-    })
-}
-
-fn amounts(items: &[String]) -> Result<Vec<(Species, Amount)>, u8> {
+fn amounts(items: &[String]) -> Result<Vec<(Species, Amount)>, String> {
     let mut out = Vec::new();
     for item in items {
-        let (species, value) = split_pair("--amount", item)?;
-        let amount = if let Some(grams) = value.strip_suffix('g') {
-            Amount::Grams(number("--amount", item, grams.trim())?)
-        } else {
-            let mol = value.strip_suffix("mol").unwrap_or(value).trim();
-            Amount::Moles(number("--amount", item, mol)?)
+        let (species, value) = species_value("--amount", item)?;
+        let (digits, grams) = match value.strip_suffix('g') {
+            Some(digits) => (digits, true),
+            None => (value.strip_suffix("mol").unwrap_or(value), false),
         };
-        out.push((species, amount));
+        let number: f64 = digits
+            .trim()
+            .parse()
+            .map_err(|_| format!("--amount {item}: '{value}' is not a number of mol or grams"))?;
+        out.push((
+            species,
+            if grams {
+                Amount::Grams(number)
+            } else {
+                Amount::Moles(number)
+            },
+        ));
     }
+    refuse_repeats(out.iter().map(|(s, _)| ("--amount", s)))?;
     Ok(out)
 }
 
@@ -191,30 +181,28 @@ pub fn run(args: &DischargeArgs, out: &mut dyn Write) -> io::Result<u8> {
         );
         return Ok(EXIT_USAGE);
     };
-    let amounts = match amounts(&args.amounts) {
-        Ok(a) => a,
-        Err(status) => return Ok(status),
-    };
-    let mut pressures = Vec::new();
-    for item in &args.pressures {
-        let (gas, value) = match split_pair("--pressure", item) {
-            Ok(p) => p,
-            Err(status) => return Ok(status),
-        };
-        match number("--pressure", item, value) {
-            Ok(bar) => pressures.push((gas, bar)),
-            Err(status) => return Ok(status),
+    let given = amounts(&args.amounts)
+        .and_then(|amounts| Ok((amounts, species_numbers("--pressure", &args.pressures)?)));
+    let (amounts, pressures) = match given {
+        Ok(given) => given,
+        Err(message) => {
+            eprintln!("error: {message}");
+            return Ok(EXIT_USAGE);
         }
-    }
+    };
     let table = match load_table(&args.table) {
         Ok(table) => table,
+        Err(status) => return Ok(status),
+    };
+    let scale = match scale(&args.table) {
+        Ok(scale) => scale,
         Err(status) => return Ok(status),
     };
     let cell = match build_cell(
         &table,
         &args
             .electrodes
-            .cell_request(&args.cathode, &args.anode, args.temperature),
+            .cell_request(&args.cathode, &args.anode, args.temperature, &scale),
     ) {
         Ok(cell) => cell,
         Err(status) => return Ok(status),

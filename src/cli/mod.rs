@@ -12,6 +12,7 @@ mod nernst;
 mod oxidation;
 mod parse;
 mod table;
+mod units;
 
 use clap::{Parser, Subcommand};
 use std::io::{self, Read, Write};

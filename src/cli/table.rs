@@ -2,6 +2,7 @@
 
 use super::common::{TableArgs, load_table, scale};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
+use couplet::scale::Scale;
 use couplet::table::{Couple, element_named};
 use serde_json::json;
 use std::fmt::Write as _;
@@ -77,9 +78,12 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
             text,
             "{:<26} {:>9.4}  {:>8}  {:<7}  {}",
             c.id.as_deref().unwrap_or("(no id)"),
-            scale.from_she(c.e0_volts),
+            scale.couple_potential(&c.reaction, c.e0_volts),
             c.dedt_millivolts_per_kelvin
-                .map_or("—".to_owned(), |d| format!("{d:.3}")),
+                .map_or("—".to_owned(), |d| format!(
+                    "{:.3}",
+                    scale.dedt_millivolts_per_kelvin(d).unwrap_or(d)
+                )),
             c.medium.name(),
             c.reaction
         );
@@ -97,10 +101,27 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
     }
     let _ = writeln!(
         text,
-        "\n{} couple(s); E° in V vs {} at 298.15 K, dE/dT in mV/K",
+        "\n{} couple(s); E° in V vs {} at 298.15 K{}, dE/dT in mV/K {}",
         found.len(),
-        scale.label()
+        scale.label(),
+        super::common::rhe_meaning(&scale),
+        dedt_basis(&scale)
     );
     out.write_all(text.as_bytes())?;
     Ok(EXIT_OK)
+}
+
+/// Which scale the dE/dT column is on.
+fn dedt_basis(scale: &Scale) -> String {
+    match (scale, scale.dedt_millivolts_per_kelvin(0.0)) {
+        (Scale::She, _) => "vs SHE".to_owned(),
+        (_, Some(_)) => format!("vs {} (its own published dE/dT subtracted)", scale.label()),
+        (Scale::Rhe { .. }, None) => {
+            "still vs SHE (the RHE's coefficient depends on the solution)".to_owned()
+        }
+        (_, None) => format!(
+            "still vs SHE (data/reference_electrodes.toml gives no dE/dT for {})",
+            scale.label()
+        ),
+    }
 }
