@@ -253,4 +253,20 @@ mod tests {
         assert!(Scale::from_name("ag-agcl-sat", None).is_ok());
         assert_eq!(reference_electrodes().len(), 22);
     }
+
+    #[test]
+    fn rhe_reads_a_couple_at_the_scale_ph_and_typed_values_come_back() {
+        use crate::notation::parse_equation;
+        // O2 + 4 H+ + 4 e- -> 2 H2O, E° 1.229 V (Harris App. H): one H+ per electron, so E vs RHE
+        // is E° at every pH (DOMAIN: E(RHE) = E(SHE) + (RT/F) ln10 · pH).
+        let oxygen = Reaction::from_equation(&parse_equation("O2 + 4 H+ + 4 e- -> 2 H2O").unwrap());
+        for ph in [0.0, 7.0, 14.0] {
+            let rhe = Scale::Rhe { ph };
+            assert!((rhe.couple_potential(&oxygen, 1.229) - 1.229).abs() < 1e-12);
+            assert!((rhe.couple_e0_vs_she(&oxygen, 1.229) - 1.229).abs() < 1e-12);
+        }
+        let sce = Scale::from_name("sce", None).unwrap();
+        let back = sce.couple_e0_vs_she(&oxygen, sce.couple_potential(&oxygen, 1.229));
+        assert!((back - 1.229).abs() < 1e-12);
+    }
 }
