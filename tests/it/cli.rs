@@ -271,6 +271,17 @@ fn temperature_coefficients_follow_the_reference_or_say_they_do_not() {
     assert!(stdout.contains("still vs SHE"), "{stdout}");
 }
 
+/// A Daniell-type cell discharged from 1 mol of zinc (invented amounts).
+const DISCHARGE: &[&str] = &[
+    "discharge",
+    "--cathode",
+    "Cu2+/Cu",
+    "--anode",
+    "Zn2+/Zn",
+    "--amount",
+    "Zn=1",
+];
+
 const DANIELL: &[&str] = &[
     "cell",
     "--json",
@@ -357,17 +368,7 @@ fn a_species_named_twice_is_refused_by_name() {
             "{stderr}"
         );
     }
-    let (status, _, stderr) = run(&[
-        "discharge",
-        "--cathode",
-        "Cu2+/Cu",
-        "--anode",
-        "Zn2+/Zn",
-        "--amount",
-        "Zn=1",
-        "--amount",
-        "Zn=10g",
-    ]);
+    let (status, _, stderr) = run(&[DISCHARGE, &["--amount", "Zn=10g"]].concat());
     assert_eq!(status, 2);
     assert!(stderr.contains("Zn is given twice"), "{stderr}");
     let (status, _, stderr) = run(&[
@@ -384,17 +385,7 @@ fn a_species_named_twice_is_refused_by_name() {
 
 #[test]
 fn discharge_steps_have_a_documented_bound() {
-    let (status, _, stderr) = run(&[
-        "discharge",
-        "--cathode",
-        "Cu2+/Cu",
-        "--anode",
-        "Zn2+/Zn",
-        "--amount",
-        "Zn=1",
-        "--steps",
-        "100000000",
-    ]);
+    let (status, _, stderr) = run(&[DISCHARGE, &["--steps", "100000000"]].concat());
     assert_eq!(status, 2);
     assert!(stderr.contains("1 to 10000"), "{stderr}");
 }
