@@ -1,6 +1,7 @@
 //! `couplet balance`: one equation from the argument, or one per line from standard input.
 
-use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, argument_or_stdin};
+use super::failure::{self, Failure};
+use super::{EXIT_FINDINGS, EXIT_OK, argument_or_stdin};
 use couplet::balance::{
     BalanceError, BalanceOptions, BalancedReaction, Conserved, ElectronRule, Impossible, Medium,
     balance_text,
@@ -41,10 +42,7 @@ pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
     };
     let text = match argument_or_stdin(&args.input) {
         Ok(text) => text,
-        Err(message) => {
-            eprintln!("error: {message}");
-            return Ok(EXIT_USAGE);
-        }
+        Err(message) => return Failure::usage(message).report(out, args.json),
     };
     if args.input != "-" {
         let line = text.trim_end_matches(['\n', '\r']);
@@ -59,8 +57,7 @@ pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
         }
         return Ok(match &result {
             Ok(_) => EXIT_OK,
-            Err(BalanceError::Notation(_) | BalanceError::Repeated { .. }) => EXIT_USAGE,
-            Err(_) => EXIT_FINDINGS,
+            Err(error) => failure::balance(error, line).status,
         });
     }
     let mut status = EXIT_OK;
@@ -80,7 +77,8 @@ pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
             match &result {
                 Ok(balanced) => out.write_all(balanced.ascii().as_bytes())?,
                 Err(error) => {
-                    write!(out, "line {number}: error ({}): {error}", error.kind())?;
+                    let kind = failure::balance(error, line).kind;
+                    write!(out, "line {number}: error ({kind}): {error}")?;
                     if let BalanceError::NotUnique { basis } = error {
                         let listed: Vec<String> = basis.iter().map(|r| r.to_string()).collect();
                         write!(out, ": {}", listed.join(" ; "))?;
@@ -181,7 +179,7 @@ fn changes_json(changes: &[ElementChange]) -> String {
 }
 
 fn human_error(error: &BalanceError, line: &str, half: bool) -> String {
-    let mut out = error.render(line);
+    let mut out = failure::balance(error, line).rendered().to_owned();
     out.push('\n');
     match error {
         BalanceError::NotUnique { basis } => {
@@ -245,6 +243,12 @@ fn result_json(
                 }
                 None => out.push_str(",\"electrons\":null"),
             }
+            match couplet::cell::caution(balanced.reaction()) {
+                Some(caution) => {
+                    let _ = write!(out, ",\"caution\":{}", json_string(&caution));
+                }
+                None => out.push_str(",\"caution\":null"),
+            }
             if let Some((analysis, halves)) = redox {
                 let n = if analysis.n.is_integer() {
                     analysis.n.to_integer().to_string()
@@ -275,7 +279,7 @@ fn result_json(
             let _ = write!(
                 out,
                 ",\"error\":{{\"kind\":\"{}\",\"message\":{}",
-                error.kind(),
+                failure::balance(error, input).kind,
                 json_string(&error.to_string())
             );
             if let BalanceError::NotUnique { basis } = error {

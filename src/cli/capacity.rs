@@ -1,16 +1,17 @@
 //! `couplet capacity`: theoretical capacity of electrode materials and of a cell, with its
 //! specific energy on a stated mass basis and volumetric figures where densities are known.
 
-use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, report_lookup, scale};
-use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale};
+use super::failure::Failure;
+use super::{EXIT_OK, exact_integer_json, print_json};
 use couplet::capacity::{
-    Basis, CapacityError, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
+    Basis, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
     half_reaction_materials,
 };
 use couplet::cell::caution;
 use couplet::notation::{Arrow, Style, parse_equation};
 use couplet::reaction::Reaction;
-use couplet::table::is_reaction_text;
+use couplet::table::{imbalance_text, is_reaction_text};
 use serde_json::{Value, json};
 use std::io::{self, Write};
 
@@ -54,34 +55,26 @@ fn basis_arg(text: &str) -> Result<Basis, String> {
 }
 
 /// Reads `SPECIES=VALUE` into the built-in densities.
-fn densities(given: &[String]) -> Result<Densities, u8> {
+fn densities(given: &[String]) -> Result<Densities, Failure> {
     let mut densities = Densities::builtin();
-    let given = super::units::species_numbers("--density", given).map_err(|message| {
-        eprintln!("error: {message}");
-        EXIT_USAGE
-    })?;
+    let given = super::units::species_numbers("--density", given).map_err(Failure::usage)?;
     for (species, value) in given {
         let name = species.ascii();
         if let Err(e) = densities.insert(species, value, "given".to_owned()) {
-            eprintln!("error: --density {name}: {e}");
-            return Err(EXIT_USAGE);
+            return Err(Failure::usage(format!("--density {name}: {e}")));
         }
     }
     Ok(densities)
-}
-
-fn small_int(value: &num_bigint::BigInt) -> i64 {
-    value.to_string().parse().unwrap_or(0)
 }
 
 fn material_json(m: &MaterialCapacity) -> Value {
     json!({
         "species": m.species.ascii(),
         "molar_mass_g_per_mol": m.molar_mass_g_per_mol,
-        "n": small_int(&m.electrons),
+        "n": exact_integer_json(&m.electrons),
         "mAh_per_g": m.milliamp_hours_per_gram,
         // Extra fields; the four above are the stable schema.
-        "formula_units": small_int(&m.formula_units),
+        "formula_units": exact_integer_json(&m.formula_units),
         "side": m.side.name(),
         "g_per_Ah": m.grams_per_amp_hour,
         "density_g_per_cm3": m.density.as_ref().map(|d| d.grams_per_cm3),
@@ -95,7 +88,7 @@ fn cell_json(c: &CellCapacity) -> Value {
         "basis": c.basis.name(),
         "reaction": c.reaction.to_string(),
         "mass_g_per_mol": c.mass_g_per_mol,
-        "n": small_int(&c.electrons),
+        "n": exact_integer_json(&c.electrons),
         "Ah_per_kg": c.amp_hours_per_kg,
         "Wh_per_kg": c.watt_hours_per_kg,
         // Extra fields; the six above are the stable schema.
@@ -209,19 +202,14 @@ fn print_cell(out: &mut dyn Write, c: &CellCapacity) -> io::Result<()> {
     )
 }
 
-fn report(error: &CapacityError) -> u8 {
-    eprintln!("error: {error}");
-    EXIT_FINDINGS
-}
-
 pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
     let densities = match densities(&args.densities) {
         Ok(d) => d,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     if let Some(query) = &args.couple {
         // A typed half-reaction needs no potential for its capacity, so it need not be in the
@@ -229,20 +217,24 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
         let half = if is_reaction_text(query) {
             match parse_equation(query) {
                 Ok(eq) => Reaction::from_equation(&eq),
-                Err(e) => {
-                    eprintln!("{}", e.render());
-                    return Ok(super::parse::error_status(&e));
-                }
+                Err(e) => return Failure::from(&e).report(out, args.json),
             }
         } else {
             match table.find(query, args.electrodes.medium) {
                 Ok(c) => c.reaction.clone(),
-                Err(e) => return Ok(report_lookup(&e)),
+                Err(e) => return Failure::from(&e).report(out, args.json),
             }
         };
+        // An unbalanced half-reaction would give a wrong n, so a wrong capacity.
+        if let Some(detail) = imbalance_text(&half) {
+            return Failure::chemistry(format!(
+                "'{query}' does not balance ({detail}); see couplet balance"
+            ))
+            .report(out, args.json);
+        }
         let materials = match half_reaction_materials(&half, &densities) {
             Ok(m) => m,
-            Err(e) => return Ok(report(&e)),
+            Err(e) => return Failure::from(&e).report(out, args.json),
         };
         if args.json {
             print_json(
@@ -264,11 +256,10 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
     }
     let scale = match scale(&args.table) {
         Ok(scale) => scale,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     let (Some(cathode), Some(anode)) = (&args.cathode, &args.anode) else {
-        eprintln!("error: give a couple, or --cathode and --anode");
-        return Ok(EXIT_USAGE);
+        return Failure::usage("give a couple, or --cathode and --anode").report(out, args.json);
     };
     let cell = match build_cell(
         &table,
@@ -277,14 +268,14 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
             .cell_request(cathode, anode, args.temperature, &scale),
     ) {
         Ok(cell) => cell,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     if !cell.runs_as_written {
-        eprintln!(
-            "error: E°cell = {:+.4} V: the reaction does not run as written and stores no energy; swap --cathode and --anode",
+        return Failure::chemistry(format!(
+            "E°cell = {:+.4} V: the reaction does not run as written and stores no energy; swap --cathode and --anode",
             cell.e0_volts
-        );
-        return Ok(EXIT_FINDINGS);
+        ))
+        .report(out, args.json);
     }
     let e_volts = cell
         .at_temperature
@@ -292,7 +283,7 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
         .map_or(cell.e0_volts, |t| t.e0_volts);
     let figures = match cell_capacity(&cell.net, &cell.electrons, e_volts, args.basis, &densities) {
         Ok(f) => f,
-        Err(e) => return Ok(report(&e)),
+        Err(e) => return Failure::from(&e).report(out, args.json),
     };
     let materials = cell_materials(&cell.net, &cell.electrons, &densities);
     if args.json {
@@ -301,6 +292,7 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
             &json!({
                 "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
                 "cell": cell_json(&figures),
+                "caution": caution(&cell.net),
             }),
         )?;
         return Ok(EXIT_OK);

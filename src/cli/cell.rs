@@ -1,8 +1,9 @@
 //! `couplet cell`: a cathode and an anode couple combined into the net reaction and its figures.
 
 use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale};
+use super::failure::Failure;
 use super::nernst::{NernstArgs, emit, json_fields, run_nernst, text};
-use super::{EXIT_OK, EXIT_USAGE, print_json};
+use super::{EXIT_OK, exact_integer_json, exact_json, print_json};
 use couplet::cell::caution;
 use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
 use couplet::nernst::Standard;
@@ -42,7 +43,7 @@ fn half_json(couple: &Couple, scale: &Scale) -> Value {
         "id": couple.id,
         "reaction": couple.reaction.to_string(),
         "e0_V": scale.couple_potential(&couple.reaction, couple.e0_volts),
-        "n": couple.electrons().to_integer().to_string().parse::<i64>().unwrap_or(0),
+        "n": exact_json(&couple.electrons()),
         "source": couple.source,
     })
 }
@@ -50,11 +51,11 @@ fn half_json(couple: &Couple, scale: &Scale) -> Value {
 pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     let scale = match scale(&args.table) {
         Ok(scale) => scale,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     let cell = match build_cell(
         &table,
@@ -63,7 +64,7 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
             .cell_request(&args.cathode, &args.anode, args.temperature, &scale),
     ) {
         Ok(cell) => cell,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     let at_t = cell.at_temperature.as_ref();
     let dedt = match (
@@ -82,8 +83,7 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
     let format = match args.nernst.emit_format() {
         Ok(format) => format,
         Err(message) => {
-            eprintln!("error: {message}");
-            return Ok(EXIT_USAGE);
+            return Failure::usage(message).report(out, args.json);
         }
     };
     // A pH whose H+ and OH- cancel in the net reaction cannot move E: say so, do not refuse it
@@ -100,8 +100,7 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
     let (nernst, conditions) = match run_nernst(&args.nernst, &standard, ph, args.temperature) {
         Ok(found) => found,
         Err(message) => {
-            eprintln!("error: {message}");
-            return Ok(EXIT_USAGE);
+            return Failure::usage(message).report(out, args.json);
         }
     };
     if let Some(format) = format {
@@ -116,13 +115,12 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
                 return Ok(EXIT_OK);
             }
             Err(message) => {
-                eprintln!("error: {message}");
-                return Ok(EXIT_USAGE);
+                return Failure::usage(message).report(out, args.json);
             }
         }
     }
     if args.json {
-        let side = |terms: Vec<(String, String)>| -> Value {
+        let side = |terms: Vec<(String, Value)>| -> Value {
             Value::Array(
                 terms
                     .into_iter()
@@ -133,12 +131,12 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
         let reactants = cell
             .net
             .reactants()
-            .map(|(s, c)| (s.ascii(), c.to_string()))
+            .map(|(s, c)| (s.ascii(), exact_json(&c)))
             .collect();
         let products = cell
             .net
             .products()
-            .map(|(s, c)| (s.ascii(), c.to_string()))
+            .map(|(s, c)| (s.ascii(), exact_json(&c)))
             .collect();
         let mut value = json!({
             "cathode": half_json(&cell.cathode, &scale),
@@ -148,7 +146,7 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
                 "reactants": side(reactants),
                 "products": side(products),
             },
-            "n": cell.electrons.to_string().parse::<i64>().unwrap_or(0),
+            "n": exact_integer_json(&cell.electrons),
             "e0_V": at_t.map_or(cell.e0_volts, |t| t.e0_volts),
             "delta_g0_kJ_per_mol": at_t.map_or(cell.delta_g0_kilojoules_per_mol, |t| t.delta_g0_kilojoules_per_mol),
             "log10_k": at_t.map_or(cell.log10_k, |t| t.log10_k),
@@ -224,7 +222,7 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
         writeln!(
             out,
             "at {} K  E° {:+.4} V, ΔG° {:+.2} kJ/mol, log10 K {:.2}  (dE°/dT {:+.3} mV/K, ΔS° {:+.1} J/(mol·K), ΔH° {:+.2} kJ/mol)",
-            t.temperature_kelvin,
+            couplet::figures::significant(t.temperature_kelvin, 6),
             t.e0_volts,
             t.delta_g0_kilojoules_per_mol,
             t.log10_k,

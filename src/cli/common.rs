@@ -1,8 +1,9 @@
 //! Pieces the table, cell and derive commands share: loading tables, naming couples, scales.
 
+use super::failure::Failure;
 use super::{EXIT_FINDINGS, EXIT_USAGE};
 use couplet::scale::Scale;
-use couplet::table::{Couple, CoupleFile, LookupError, Medium, Origin, Table};
+use couplet::table::{Couple, CoupleFile, Medium, Origin, Table};
 use std::path::PathBuf;
 
 /// Options every potential command takes.
@@ -24,19 +25,20 @@ pub struct TableArgs {
 }
 
 /// Built-in table plus the user's files; notes about replaced ids go to standard error.
-pub fn load_table(args: &TableArgs) -> Result<Table, u8> {
+pub fn load_table(args: &TableArgs) -> Result<Table, Failure> {
     let mut table = Table::builtin();
     for path in &args.tables {
-        let file = match CoupleFile::read(path) {
-            Ok(file) => file,
-            Err(error) => {
-                eprintln!("error: cannot read {}: {error}", path.display());
-                return Err(EXIT_USAGE);
-            }
-        };
+        let file = CoupleFile::read(path).map_err(|error| {
+            Failure::new(
+                "file",
+                EXIT_USAGE,
+                format!("cannot read {}: {error}", path.display()),
+            )
+        })?;
         if let Err(error) = table.add_file(&file, Origin::File(path.clone())) {
-            eprintln!("{}", error.render());
-            return Err(EXIT_FINDINGS);
+            return Err(
+                Failure::new("table", EXIT_FINDINGS, error.to_string()).shown_as(error.render())
+            );
         }
     }
     for replaced in table.overrides() {
@@ -48,12 +50,9 @@ pub fn load_table(args: &TableArgs) -> Result<Table, u8> {
     Ok(table)
 }
 
-/// The scale asked for, or an error printed.
-pub fn scale(args: &TableArgs) -> Result<Scale, u8> {
-    Scale::from_name(&args.scale, args.ph).map_err(|error| {
-        eprintln!("error: {error}");
-        EXIT_USAGE
-    })
+/// The scale asked for.
+pub fn scale(args: &TableArgs) -> Result<Scale, Failure> {
+    Scale::from_name(&args.scale, args.ph).map_err(|error| Failure::usage(error.to_string()))
 }
 
 /// What a potential on RHE means, for the line that names the scale (empty on other scales).
@@ -66,33 +65,6 @@ pub fn rhe_meaning(scale: &Scale) -> &'static str {
     }
 }
 
-/// Prints why a lookup failed and returns the exit status.
-pub fn report_lookup(error: &LookupError) -> u8 {
-    match error {
-        LookupError::Notation(e) => {
-            eprintln!("{}", e.render());
-            super::parse::error_status(e)
-        }
-        LookupError::Ambiguous { candidates, .. } => {
-            eprintln!("error: {error}");
-            for c in candidates {
-                eprintln!(
-                    "  {:<24} {:>8.4} V  {:<7}  {}",
-                    c.id.as_deref().unwrap_or("(no id)"),
-                    c.e0_volts,
-                    c.medium.name(),
-                    c.reaction
-                );
-            }
-            EXIT_FINDINGS
-        }
-        _ => {
-            eprintln!("error: {error}");
-            EXIT_FINDINGS
-        }
-    }
-}
-
 /// A couple named by id, `Ox/Red` or half-reaction; a typed half-reaction with its own E°
 /// (`e0`, read on `scale`) need not be in the table.
 pub fn resolve(
@@ -100,13 +72,12 @@ pub fn resolve(
     query: &str,
     e0: Option<(f64, &Scale)>,
     medium: Option<Medium>,
-) -> Result<Couple, u8> {
+) -> Result<Couple, Failure> {
     if let Some((e0, scale)) = e0 {
         if !couplet::table::is_reaction_text(query) {
-            eprintln!(
-                "error: a potential given on the command line needs a typed half-reaction, not '{query}'"
-            );
-            return Err(EXIT_USAGE);
+            return Err(Failure::usage(format!(
+                "a potential given on the command line needs a typed half-reaction, not '{query}'"
+            )));
         }
         let typed = Couple::new(query, e0).map(|mut couple| {
             if *scale != Scale::She {
@@ -119,21 +90,12 @@ pub fn resolve(
             }
             couple
         });
-        return typed.map_err(|error| {
-            match &error {
-                couplet::table::CoupleError::Notation(e) => eprintln!("{}", e.render()),
-                _ => eprintln!("error: {error}"),
-            }
-            match error {
-                couplet::table::CoupleError::Notation(e) => super::parse::error_status(&e),
-                _ => EXIT_FINDINGS,
-            }
-        });
+        return typed.map_err(|error| Failure::from(&error));
     }
     table
         .find(query, medium)
         .cloned()
-        .map_err(|e| report_lookup(&e))
+        .map_err(|e| Failure::from(&e))
 }
 
 /// Reads `acid`/`base`/`neutral`.
@@ -191,9 +153,11 @@ pub struct CellRequest<'a> {
     pub scale: &'a Scale,
 }
 
-/// Looks both electrodes up and combines them into a cell; on failure the error has been
-/// reported and the exit status is returned.
-pub fn build_cell(table: &Table, request: &CellRequest<'_>) -> Result<couplet::cell::Cell, u8> {
+/// Looks both electrodes up and combines them into a cell.
+pub fn build_cell(
+    table: &Table,
+    request: &CellRequest<'_>,
+) -> Result<couplet::cell::Cell, Failure> {
     let typed = |e0: Option<f64>| e0.map(|e0| (e0, request.scale));
     let cathode = resolve(
         table,
@@ -211,8 +175,5 @@ pub fn build_cell(table: &Table, request: &CellRequest<'_>) -> Result<couplet::c
         temperature_kelvin: request.temperature_kelvin,
         medium: request.medium,
     };
-    couplet::cell::combine(&cathode, &anode, options).map_err(|error| {
-        eprintln!("error: {error}");
-        EXIT_FINDINGS
-    })
+    couplet::cell::combine(&cathode, &anode, options).map_err(|error| Failure::from(&error))
 }

@@ -2,11 +2,13 @@
 //! amounts, with CSV and SVG output written atomically.
 
 use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale};
+use super::failure::Failure;
 use super::units::{refuse_repeats, species_numbers, species_value};
-use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
+use super::{EXIT_OK, EXIT_USAGE, print_json};
 use couplet::activity::{ActivityModel, GammaModel};
 use couplet::cell::caution;
 use couplet::discharge::{Amount, Discharge, DischargeSpec, discharge};
+use couplet::figures::significant;
 use couplet::notation::{Arrow, Species, Style};
 use couplet::output::svg::{DischargeAxis, discharge_plot, render};
 use couplet::output::{csv::discharge_csv, write_atomically};
@@ -88,7 +90,12 @@ fn amounts(items: &[String]) -> Result<Vec<(Species, Amount)>, String> {
     Ok(out)
 }
 
-fn json_of(curve: &Discharge) -> serde_json::Value {
+/// The charge the energy integral covers: the last point computed.
+fn energy_charge_amp_hours(curve: &Discharge) -> f64 {
+    curve.points.last().map_or(0.0, |p| p.charge_amp_hours)
+}
+
+fn json_of(curve: &Discharge, caution: Option<String>) -> serde_json::Value {
     json!({
         "reaction": curve.reaction,
         "n": curve.electrons,
@@ -100,7 +107,10 @@ fn json_of(curve: &Discharge) -> serde_json::Value {
         "capacity_Ah": curve.capacity_amp_hours,
         "energy_Wh": curve.energy_watt_hours,
         "stopped": curve.stopped,
+        // The charge the energy covers: capacity_Ah unless the curve stopped early.
+        "energy_charge_Ah": energy_charge_amp_hours(curve),
         "assumptions": curve.assumptions,
+        "caution": caution,
         "solutes": curve.solutes.iter().map(|s| s.ascii()).collect::<Vec<_>>(),
         "points": curve.points.iter().map(|p| json!({
             "soc": p.state_of_charge,
@@ -120,7 +130,10 @@ fn print_text(out: &mut dyn Write, curve: &Discharge) -> io::Result<()> {
     writeln!(
         out,
         "n         {}    E° {:+.4} V at {} K    γ model {}",
-        curve.electrons, curve.e0_volts, curve.temperature_kelvin, curve.gamma_model
+        curve.electrons,
+        curve.e0_volts,
+        significant(curve.temperature_kelvin, 6),
+        curve.gamma_model
     )?;
     writeln!(
         out,
@@ -151,16 +164,28 @@ fn print_text(out: &mut dyn Write, curve: &Discharge) -> io::Result<()> {
             )?;
         }
     }
-    let mean = if curve.capacity_amp_hours > 0.0 {
-        curve.energy_watt_hours / curve.points.last().map_or(1.0, |p| p.charge_amp_hours)
+    let covered = energy_charge_amp_hours(curve);
+    let mean = if covered > 0.0 {
+        curve.energy_watt_hours / covered
     } else {
         f64::NAN
     };
+    let figure = |x: f64| significant(x, 5);
     writeln!(
         out,
-        "capacity  {:.4} Ah    energy {:.4} Wh    mean E {:.4} V",
-        curve.capacity_amp_hours, curve.energy_watt_hours, mean
+        "capacity  {} Ah    energy {} Wh    mean E {} V",
+        figure(curve.capacity_amp_hours),
+        figure(curve.energy_watt_hours),
+        figure(mean)
     )?;
+    if curve.stopped.is_some() {
+        writeln!(
+            out,
+            "note: energy and mean E cover the computed curve only, the first {} Ah of {} Ah: the rest has no voltage (below)",
+            figure(covered),
+            figure(curve.capacity_amp_hours)
+        )?;
+    }
     if let Some(reason) = &curve.stopped {
         writeln!(out, "note: {reason}")?;
     }
@@ -175,28 +200,27 @@ fn print_text(out: &mut dyn Write, curve: &Discharge) -> io::Result<()> {
 
 pub fn run(args: &DischargeArgs, out: &mut dyn Write) -> io::Result<u8> {
     let Some(model) = GammaModel::from_name(&args.gamma) else {
-        eprintln!(
-            "error: --gamma must be ideal, debye-huckel, extended, davies or table, not '{}'",
+        return Failure::usage(format!(
+            "--gamma must be ideal, debye-huckel, extended, davies or table, not '{}'",
             args.gamma
-        );
-        return Ok(EXIT_USAGE);
+        ))
+        .report(out, args.json);
     };
     let given = amounts(&args.amounts)
         .and_then(|amounts| Ok((amounts, species_numbers("--pressure", &args.pressures)?)));
     let (amounts, pressures) = match given {
         Ok(given) => given,
         Err(message) => {
-            eprintln!("error: {message}");
-            return Ok(EXIT_USAGE);
+            return Failure::usage(message).report(out, args.json);
         }
     };
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     let scale = match scale(&args.table) {
         Ok(scale) => scale,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     let cell = match build_cell(
         &table,
@@ -205,7 +229,7 @@ pub fn run(args: &DischargeArgs, out: &mut dyn Write) -> io::Result<u8> {
             .cell_request(&args.cathode, &args.anode, args.temperature, &scale),
     ) {
         Ok(cell) => cell,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     let spec = DischargeSpec {
         amounts,
@@ -220,8 +244,7 @@ pub fn run(args: &DischargeArgs, out: &mut dyn Write) -> io::Result<u8> {
     let curve = match discharge(&cell, &spec) {
         Ok(curve) => curve,
         Err(error) => {
-            eprintln!("error: {error}");
-            return Ok(EXIT_FINDINGS);
+            return Failure::from(&error).report(out, args.json);
         }
     };
     // Render everything before writing anything, so a rendering fault writes no file.
@@ -244,8 +267,7 @@ pub fn run(args: &DischargeArgs, out: &mut dyn Write) -> io::Result<u8> {
             )) {
                 Ok(text) => Some(text),
                 Err(error) => {
-                    eprintln!("error: {error}");
-                    return Ok(EXIT_FINDINGS);
+                    return Failure::chemistry(error.to_string()).report(out, args.json);
                 }
             }
         }
@@ -261,12 +283,16 @@ pub fn run(args: &DischargeArgs, out: &mut dyn Write) -> io::Result<u8> {
         if let (Some(path), Some(text)) = (path, text)
             && let Err(error) = write_atomically(path, text.as_bytes())
         {
-            eprintln!("error: cannot write {}: {error}", path.display());
-            return Ok(EXIT_USAGE);
+            return Failure::new(
+                "file",
+                EXIT_USAGE,
+                format!("cannot write {}: {error}", path.display()),
+            )
+            .report(out, args.json);
         }
     }
     if args.json {
-        print_json(out, &json_of(&curve))?;
+        print_json(out, &json_of(&curve, caution(&cell.net)))?;
     } else {
         print_text(out, &curve)?;
         if let Some(line) = caution(&cell.net) {

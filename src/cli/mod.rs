@@ -8,6 +8,7 @@ mod check;
 mod common;
 mod derive;
 mod discharge;
+mod failure;
 mod nernst;
 mod oxidation;
 mod parse;
@@ -204,4 +205,22 @@ pub fn argument_or_stdin(argument: &str) -> Result<String, String> {
 pub fn print_json(out: &mut dyn Write, value: &serde_json::Value) -> io::Result<()> {
     serde_json::to_writer(&mut *out, value)?;
     writeln!(out)
+}
+
+/// An exact number as every JSON output writes it: a JSON integer when whole, a string `"a/b"`
+/// otherwise (integers beyond 64 bits, which ordinary input never reaches, as a string of digits;
+/// `couplet balance` writes those as bare JSON integers).
+pub fn exact_json(value: &num_rational::BigRational) -> serde_json::Value {
+    if !value.is_integer() {
+        return serde_json::Value::String(value.to_string());
+    }
+    i64::try_from(value.numer()).map_or_else(
+        |_| serde_json::Value::String(value.numer().to_string()),
+        serde_json::Value::from,
+    )
+}
+
+/// [`exact_json`] of an integer.
+pub fn exact_integer_json(value: &num_bigint::BigInt) -> serde_json::Value {
+    exact_json(&num_rational::BigRational::from_integer(value.clone()))
 }

@@ -3,6 +3,7 @@
 //! JSON fields `quotient`, `e_V`, `gamma_model`, `assumptions`.
 
 use super::common::{TableArgs, load_table, medium_arg, resolve, scale};
+use super::failure::Failure;
 use super::units::species_numbers;
 use super::{EXIT_OK, EXIT_USAGE};
 use couplet::activity::{ActivityModel, GammaModel, Solution};
@@ -161,7 +162,10 @@ pub fn text(result: &Nernst, temperature_kelvin: f64) -> String {
     match (result.q, result.e_volts) {
         (Some(q), Some(e)) => {
             out.push_str(&format!("Q        {q:.6e}\n"));
-            out.push_str(&format!("E        {e:+.4} V at {temperature_kelvin} K  (E = E° − (RT/nF)·ln Q)\n"));
+            out.push_str(&format!(
+                "E        {e:+.4} V at {} K  (E = E° − (RT/nF)·ln Q)\n",
+                significant(temperature_kelvin, 6)
+            ));
         }
         _ => out.push_str("E        needs a value for every species of Q (--activity, --molality, --pressure, --ph)\n"),
     }
@@ -262,7 +266,7 @@ pub struct PhLineArgs {
 pub fn run_ph_line(args: &PhLineArgs, out: &mut dyn Write) -> io::Result<u8> {
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, false),
     };
     // On RHE each row is read against the hydrogen electrode at that row's pH.
     let rhe = args.table.scale.trim().eq_ignore_ascii_case("rhe");
@@ -277,7 +281,7 @@ pub fn run_ph_line(args: &PhLineArgs, out: &mut dyn Write) -> io::Result<u8> {
     } else {
         match scale(&args.table) {
             Ok(scale) => scale,
-            Err(status) => return Ok(status),
+            Err(failure) => return failure.report(out, false),
         }
     };
     let couple = match resolve(
@@ -287,7 +291,7 @@ pub fn run_ph_line(args: &PhLineArgs, out: &mut dyn Write) -> io::Result<u8> {
         args.medium,
     ) {
         Ok(c) => c,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, false),
     };
     let standard = Standard {
         reaction: &couple.reaction,
@@ -298,8 +302,7 @@ pub fn run_ph_line(args: &PhLineArgs, out: &mut dyn Write) -> io::Result<u8> {
     let conditions = match args.nernst.conditions(None, args.temperature) {
         Ok(c) => c,
         Err(message) => {
-            eprintln!("error: {message}");
-            return Ok(EXIT_USAGE);
+            return Failure::usage(message).report(out, false);
         }
     };
     match ph_line(&standard, &conditions, args.from, args.to, args.step) {
@@ -342,9 +345,6 @@ pub fn run_ph_line(args: &PhLineArgs, out: &mut dyn Write) -> io::Result<u8> {
             }
             Ok(EXIT_OK)
         }
-        Err(error) => {
-            eprintln!("error: {error}");
-            Ok(EXIT_USAGE)
-        }
+        Err(error) => Failure::usage(error.to_string()).report(out, false),
     }
 }

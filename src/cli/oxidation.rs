@@ -1,7 +1,7 @@
 //! `couplet oxidation`: the oxidation number of every element of a species, or the redox
 //! analysis of a balanced reaction or half-reaction.
 
-use super::parse::report_error;
+use super::failure::Failure;
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, argument_or_stdin, print_json};
 use couplet::notation::{Equation, Input, parse_input, parse_species};
 use couplet::oxidation::{
@@ -46,7 +46,7 @@ pub fn run(args: &OxidationArgs, out: &mut dyn Write) -> io::Result<u8> {
     }
     let species = match parse_species(text) {
         Ok(species) => species,
-        Err(error) => return report_error(out, &error, args.json),
+        Err(error) => return Failure::from(&error).report(out, args.json),
     };
     let table = match IonTable::builtin() {
         Ok(table) => table,
@@ -109,40 +109,20 @@ fn run_reaction(out: &mut dyn Write, equation: &Equation, args: &OxidationArgs) 
             Ok(EXIT_OK)
         }
         Err(error) => {
-            if args.json {
-                print_json(
-                    out,
-                    &json!({"error": {
-                        "kind": error.kind_name(),
-                        "message": error.to_string(),
-                        "line": 1,
-                        "column": 1,
-                    }}),
-                )?;
-            } else {
-                eprintln!("error ({}): {error}", error.kind_name());
-            }
-            Ok(match error {
+            let status = match error {
                 RedoxError::Oxidation { .. }
                 | RedoxError::NotBalanced { .. }
                 | RedoxError::ElectronMismatch { .. } => EXIT_FINDINGS,
                 _ => EXIT_USAGE,
-            })
+            };
+            Failure::new(error.kind_name(), status, error.to_string()).report(out, args.json)
         }
     }
 }
 
-/// A count as a JSON integer when whole, else as an exact fraction string.
+/// A count as every JSON output writes exact numbers.
 fn count_json(value: &BigRational) -> Value {
-    if value.is_integer() {
-        value
-            .numer()
-            .to_string()
-            .parse::<i64>()
-            .map_or_else(|_| Value::String(value.to_string()), Value::from)
-    } else {
-        Value::String(value.to_string())
-    }
+    super::exact_json(value)
 }
 
 fn changes_json(changes: &[ElementChange]) -> Value {
@@ -232,33 +212,12 @@ fn redox_table(equation: &Equation, analysis: &RedoxAnalysis) -> String {
 }
 
 fn usage(out: &mut dyn Write, message: &str, json: bool) -> io::Result<u8> {
-    if json {
-        print_json(
-            out,
-            &json!({"error": {"kind": "usage", "message": message, "line": 1, "column": 1}}),
-        )?;
-    } else {
-        eprintln!("error: {message}");
-    }
-    Ok(EXIT_USAGE)
+    Failure::usage(message).report(out, json)
 }
 
 /// The formula was read but cannot be given oxidation numbers: exit 1 with the reason.
 fn failure(out: &mut dyn Write, error: &OxidationError, json: bool) -> io::Result<u8> {
-    if json {
-        print_json(
-            out,
-            &json!({"error": {
-                "kind": error.kind_name(),
-                "message": error.to_string(),
-                "line": 1,
-                "column": 1,
-            }}),
-        )?;
-    } else {
-        eprintln!("error ({}): {error}", error.kind_name());
-    }
-    Ok(EXIT_FINDINGS)
+    Failure::new(error.kind_name(), EXIT_FINDINGS, error.to_string()).report(out, json)
 }
 
 /// The JSON schema of issue 4 (documented in the README).

@@ -1,7 +1,8 @@
 //! `couplet table`: list, search and show couples of the potential table.
 
 use super::common::{TableArgs, load_table, scale};
-use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
+use super::failure::Failure;
+use super::{EXIT_FINDINGS, EXIT_OK, print_json};
 use couplet::scale::Scale;
 use couplet::table::{Couple, element_named};
 use serde_json::json;
@@ -26,11 +27,11 @@ pub struct TableCommandArgs {
 pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     let scale = match scale(&args.table) {
         Ok(scale) => scale,
-        Err(status) => return Ok(status),
+        Err(failure) => return failure.report(out, args.json),
     };
     let mut found: Vec<&Couple> = match &args.query {
         Some(query) => table.matching(query),
@@ -38,8 +39,7 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
     };
     if let Some(name) = &args.element {
         let Some(element) = element_named(name) else {
-            eprintln!("error: no element is called '{name}'");
-            return Ok(EXIT_USAGE);
+            return Failure::usage(format!("no element is called '{name}'")).report(out, args.json);
         };
         found.retain(|c| c.contains_element(element));
     }

@@ -125,6 +125,14 @@ fn run(args: &[&str]) -> (i32, String, String) {
     )
 }
 
+/// Asserts that couplet refuses `args` with `status` and a message on standard error holding
+/// `reason`.
+fn refused(args: &[&str], status: i32, reason: &str) {
+    let (code, stdout, stderr) = run(args);
+    assert_eq!(code, status, "{args:?}: {stdout}{stderr}");
+    assert!(stderr.contains(reason), "{args:?}: {stderr}");
+}
+
 fn json(args: &[&str]) -> serde_json::Value {
     let (status, stdout, stderr) = run(args);
     assert_eq!(status, 0, "{args:?}: {stderr}");
@@ -360,17 +368,23 @@ fn a_species_named_twice_is_refused_by_name() {
             "Cu2+=0.1",
         ],
     ] {
-        let (status, _, stderr) = run(&[DANIELL, extra].concat());
+        // With --json the error is a JSON object on standard output.
+        let (status, stdout, _) = run(&[DANIELL, extra].concat());
         assert_eq!(status, 2, "{extra:?}");
-        assert!(stderr.contains("is given twice"), "{stderr}");
+        let error: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+        assert_eq!(error["error"]["kind"], "usage");
+        let message = error["error"]["message"].as_str().unwrap();
+        assert!(message.contains("is given twice"), "{message}");
         assert!(
-            stderr.contains("Cu2+") || stderr.contains("Zn2+"),
-            "{stderr}"
+            message.contains("Cu2+") || message.contains("Zn2+"),
+            "{message}"
         );
     }
-    let (status, _, stderr) = run(&[DISCHARGE, &["--amount", "Zn=10g"]].concat());
-    assert_eq!(status, 2);
-    assert!(stderr.contains("Zn is given twice"), "{stderr}");
+    refused(
+        &[DISCHARGE, &["--amount", "Zn=10g"]].concat(),
+        2,
+        "Zn is given twice",
+    );
     let (status, _, stderr) = run(&[
         "capacity",
         "Zn2+/Zn",
@@ -385,9 +399,11 @@ fn a_species_named_twice_is_refused_by_name() {
 
 #[test]
 fn discharge_steps_have_a_documented_bound() {
-    let (status, _, stderr) = run(&[DISCHARGE, &["--steps", "100000000"]].concat());
-    assert_eq!(status, 2);
-    assert!(stderr.contains("1 to 10000"), "{stderr}");
+    refused(
+        &[DISCHARGE, &["--steps", "100000000"]].concat(),
+        2,
+        "1 to 10000",
+    );
 }
 
 #[test]
@@ -417,4 +433,173 @@ fn a_ph_that_cancels_in_the_cell_is_said_not_refused() {
         (cell["e_V"].as_f64().unwrap() - expected).abs() < 0.0005,
         "{cell}"
     );
+}
+
+#[test]
+fn exact_numbers_are_integers_when_whole_and_fractions_otherwise_in_every_json() {
+    let balance = json(&[
+        "balance",
+        "--json",
+        "--medium",
+        "acid",
+        "MnO4- + Fe2+ -> Mn2+ + Fe3+",
+    ]);
+    // MnO4- + 5 Fe2+ + 8 H+ -> Mn2+ + 5 Fe3+ + 4 H2O (any general-chemistry text).
+    assert_eq!(balance["reactants"][1]["coefficient"], 5);
+    let cell = json(&[
+        "cell",
+        "--json",
+        "--cathode",
+        "Fe3+/Fe2+",
+        "--anode",
+        "Zn2+/Zn",
+    ]);
+    // 2 Fe3+ + Zn -> 2 Fe2+ + Zn2+, n = 2.
+    assert_eq!(cell["net"]["reactants"][0]["coefficient"], 2);
+    assert_eq!(cell["n"], 2);
+    assert_eq!(cell["cathode"]["n"], 1);
+    let parse = json(&["parse", "--json", "1/2 O2 + H2 -> H2O"]);
+    assert_eq!(parse["reactants"][0]["coefficient"], "1/2");
+    assert_eq!(parse["reactants"][1]["coefficient"], 1);
+    let capacity = json(&["capacity", "--json", "Zn2+/Zn"]);
+    assert_eq!(capacity["materials"][0]["n"], 2);
+    let derive = json(&["derive", "--json", "Fe3+/Fe2+", "Fe2+/Fe"]);
+    assert_eq!(derive["n"], 3);
+}
+
+#[test]
+fn cautions_reach_the_json_wherever_the_text_has_them() {
+    // Dichromate is chromium(VI), a carcinogen (IARC group 1); lead is toxic.
+    let balance = json(&[
+        "balance",
+        "--json",
+        "--medium",
+        "acid",
+        "Cr2O7^2- + I- -> Cr3+ + I2",
+    ]);
+    assert!(
+        balance["caution"]
+            .as_str()
+            .unwrap()
+            .contains("chromium(VI)"),
+        "{balance}"
+    );
+    let water = json(&["balance", "--json", "H2O -> H2 + O2"]);
+    assert!(
+        water["caution"].as_str().unwrap().contains("hydrogen"),
+        "{water}"
+    );
+    let none = json(&["balance", "--json", "NaCl -> Na+ + Cl-"]);
+    assert!(none["caution"].is_null(), "{none}");
+    let lead = ["--cathode", "PbO2/PbSO4", "--anode", "PbSO4/Pb"];
+    let capacity = json(&[&["capacity", "--json"][..], &lead].concat());
+    assert!(
+        capacity["caution"].as_str().unwrap().contains("lead"),
+        "{capacity}"
+    );
+    let amounts = [
+        "--amount", "Pb=1", "--amount", "PbO2=1", "--amount", "H2SO4=3",
+    ];
+    let discharge = json(
+        &[
+            &["discharge", "--json", "--solvent-kg", "1"][..],
+            &lead,
+            &amounts,
+        ]
+        .concat(),
+    );
+    assert!(
+        discharge["caution"].as_str().unwrap().contains("lead"),
+        "{discharge}"
+    );
+}
+
+#[test]
+fn the_same_bad_input_gets_the_same_kind_and_status_everywhere() {
+    // (typed half-reaction, kind, status): an unknown element is a fault of typing (2); a
+    // charge beyond the protons of the formula is read but impossible (1).
+    for (half, kind, status) in [
+        ("Xx2+ + 2 e- -> Xx", "unknown_element", 2),
+        ("H^2+ + 2 e- -> H2", "chemistry", 1),
+    ] {
+        let cell = [
+            "--cathode",
+            half,
+            "--cathode-e0",
+            "0.1",
+            "--anode",
+            "Zn2+/Zn",
+        ];
+        let mut seen = Vec::new();
+        for args in [
+            vec!["parse", "--json", half],
+            vec!["balance", "--json", half],
+            vec!["capacity", "--json", half],
+            [&["cell", "--json"][..], &cell].concat(),
+            [&["discharge", "--json", "--amount", "Zn=1"][..], &cell].concat(),
+        ] {
+            let (code, stdout, stderr) = run(&args);
+            let value: serde_json::Value = serde_json::from_str(&stdout)
+                .unwrap_or_else(|e| panic!("{args:?}: {e}: {stdout}{stderr}"));
+            seen.push((args[0], value["error"]["kind"].clone(), code));
+        }
+        for (command, seen_kind, code) in &seen {
+            assert_eq!(
+                (seen_kind.as_str(), *code),
+                (Some(kind), status),
+                "{command}: {seen:?}"
+            );
+        }
+    }
+}
+
+#[test]
+fn a_typed_half_reaction_that_does_not_balance_has_no_capacity() {
+    refused(&["capacity", "Cu2+ + e- -> Cu"], 1, "does not balance");
+}
+
+#[test]
+fn people_read_rounded_figures() {
+    // 1.3 mol/kg H2SO4 has I = 3 × 1.3 = 3.9 mol/kg (I = ½ Σ m z², full dissociation), beyond
+    // the Davies range: the error says 3.9, not 3.9000000000000004.
+    let lead = ["cell", "--cathode", "PbO2/PbSO4", "--anode", "PbSO4/Pb"];
+    let davies = ["--molality", "H2SO4=1.3", "--gamma", "davies"];
+    refused(
+        &[&lead[..], &davies].concat(),
+        2,
+        "ionic strength 3.9 mol/kg",
+    );
+    let long_decimals = |text: &str| {
+        text.split(|c: char| !(c.is_ascii_digit() || c == '.'))
+            .any(|number| number.split_once('.').is_some_and(|(_, d)| d.len() >= 10))
+    };
+    for args in EVERY_COMMAND
+        .iter()
+        .filter(|a| !a.contains(&"--json") && a[0] != "check")
+    {
+        let (_, stdout, stderr) = run(args);
+        assert!(!long_decimals(&stdout), "{args:?}: {stdout}");
+        assert!(!long_decimals(&stderr), "{args:?}: {stderr}");
+    }
+}
+
+#[test]
+fn a_discharge_curve_that_stops_early_says_what_its_energy_covers() {
+    // Invented amounts: the copper runs out, and its activity reaches zero one step before the end.
+    let amounts = [
+        "--amount",
+        "Cu2+=0.05",
+        "--amount",
+        "Zn2+=0.01",
+        "--solvent-kg",
+        "1",
+    ];
+    let args = [DISCHARGE, &amounts].concat();
+    let (status, stdout, _) = run(&args);
+    assert_eq!(status, 0);
+    assert!(stdout.contains("cover the computed curve only"), "{stdout}");
+    let curve = json(&[&args[..], &["--json"]].concat());
+    assert!(!curve["stopped"].is_null());
+    let covered = curve["energy_charge_Ah"].as_f64().unwrap();
+    assert!(covered < curve["capacity_Ah"].as_f64().unwrap(), "{curve}");
 }
