@@ -52,7 +52,7 @@ pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
         } else {
             match &result {
                 Ok(balanced) => write!(out, "{}", human(balanced))?,
-                Err(error) => eprint!("{}", human_error(error, line, args.half)),
+                Err(error) => say!("{}", human_error(error, line, args.half).trim_end()),
             }
         }
         return Ok(match &result {

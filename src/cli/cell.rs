@@ -92,7 +92,7 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
     if let Some(value) = ph
         && !has_h_or_oh(&cell.net)
     {
-        eprintln!(
+        say!(
             "note: pH {value} does not enter Q: the net reaction has no H+ or OH- (they cancel), so E does not depend on pH"
         );
         ph = None;

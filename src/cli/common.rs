@@ -42,9 +42,11 @@ pub fn load_table(args: &TableArgs) -> Result<Table, Failure> {
         }
     }
     for replaced in table.overrides() {
-        eprintln!(
+        say!(
             "note: couple '{}' from {} replaces the one from {}",
-            replaced.id, replaced.by, replaced.replaced
+            replaced.id,
+            replaced.by,
+            replaced.replaced
         );
     }
     Ok(table)
@@ -82,7 +84,7 @@ pub fn resolve(
         let typed = Couple::new(query, e0).map(|mut couple| {
             if *scale != Scale::She {
                 couple.e0_volts = scale.couple_e0_vs_she(&couple.reaction, e0);
-                eprintln!(
+                say!(
                     "note: the E° typed for '{query}' is read vs {}: {e0} V there is {} V vs SHE",
                     scale.label(),
                     couplet::figures::significant(couple.e0_volts, 5)

@@ -1,6 +1,15 @@
 //! Command-line front end: argument definitions and dispatch. Each command lives in its own
 //! file and only calls the library and renders what it returns.
 
+/// Writes a line to standard error. Unlike `eprintln!`, a failed write (`2> /dev/full`) is
+/// ignored instead of a panic: there is nowhere left to report it.
+macro_rules! say {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stderr(), $($arg)*);
+    }};
+}
+
 mod balance;
 mod capacity;
 mod cell;

@@ -207,7 +207,7 @@ pub fn emit(
     let molality = match MolalityForm::new(&result.quotient, conditions.model, solution.as_ref()) {
         Ok(form) => Some(form),
         Err(ExportError::NoClosedForm) => {
-            eprintln!("note: {}", ExportError::NoClosedForm);
+            say!("note: {}", ExportError::NoClosedForm);
             None
         }
         Err(error) => return Err(error.to_string()),
@@ -271,7 +271,7 @@ pub fn run_ph_line(args: &PhLineArgs, out: &mut dyn Write) -> io::Result<u8> {
     // On RHE each row is read against the hydrogen electrode at that row's pH.
     let rhe = args.table.scale.trim().eq_ignore_ascii_case("rhe");
     if rhe && args.table.ph.is_some() {
-        eprintln!(
+        say!(
             "error: ph-line --scale rhe reads each row against the RHE at that row's pH: leave out --ph"
         );
         return Ok(EXIT_USAGE);
@@ -327,21 +327,21 @@ pub fn run_ph_line(args: &PhLineArgs, out: &mut dyn Write) -> io::Result<u8> {
                     row_scale.from_she_at(p.e_volts, args.temperature)
                 )?;
             }
-            eprintln!(
+            say!(
                 "couple: {} (E° {} V vs SHE, {})",
                 couple.reaction,
                 significant(couple.e0_volts, SIGNIFICANT),
                 couple.source.as_deref().unwrap_or("given")
             );
             if scale != Scale::She {
-                eprintln!(
+                say!(
                     "potentials vs {}{}",
                     label,
                     if rhe { " at each row's pH" } else { "" }
                 );
             }
             for a in assumptions {
-                eprintln!("assumed: {a}");
+                say!("assumed: {a}");
             }
             Ok(EXIT_OK)
         }

@@ -64,7 +64,7 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
         });
     }
     if found.is_empty() {
-        eprintln!("no couple fits; try an element name or symbol, or `couplet table` for all");
+        say!("no couple fits; try an element name or symbol, or `couplet table` for all");
         return Ok(EXIT_FINDINGS);
     }
     let mut text = String::new();

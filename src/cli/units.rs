@@ -60,7 +60,7 @@ pub fn temperature(text: &str) -> Result<f64, String> {
         ));
     }
     if kelvin < WATER_KELVIN.0 || kelvin > WATER_KELVIN.1 {
-        eprintln!(
+        say!(
             "warning: {} K is outside 0–100 °C, the range of liquid water at 1 bar and of the activity models; figures there are extrapolations",
             couplet::figures::significant(kelvin, 5)
         );

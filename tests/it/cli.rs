@@ -603,3 +603,31 @@ fn a_discharge_curve_that_stops_early_says_what_its_energy_covers() {
     let covered = curve["energy_charge_Ah"].as_f64().unwrap();
     assert!(covered < curve["capacity_Ah"].as_f64().unwrap(), "{curve}");
 }
+
+#[test]
+fn a_full_standard_error_is_no_panic() {
+    let full = || {
+        std::fs::OpenOptions::new()
+            .write(true)
+            .open("/dev/full")
+            .expect("/dev/full exists on Linux")
+    };
+    // Notes, warnings and errors all go to standard error.
+    for args in [
+        &[
+            "cell",
+            "--cathode",
+            "Cu2+/Cu",
+            "--anode",
+            "Zn2+/Zn",
+            "--temperature",
+            "400K",
+        ][..],
+        &["balance", "H2 -> H2O"],
+        &["parse", "Xx"],
+        &["ph-line", "o2/h2o"],
+    ] {
+        let output = couplet().args(args).stderr(full()).output().unwrap();
+        assert_ne!(output.status.code(), Some(101), "{args:?}");
+    }
+}
