@@ -74,7 +74,7 @@ enum Command {
     Table(table::TableCommandArgs),
     /// Combine a cathode and an anode couple: net reaction, n, E°cell, ΔG°, K, temperature
     #[command(
-        after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --activity Cu2+=0.1 --activity Zn2+=0.001\n  couplet cell --cathode O2/OH- --anode ZnO/Zn --medium base --temperature 310 --json\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --emit python"
+        after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --activity Cu2+=0.1 --activity Zn2+=0.001\n  couplet cell --cathode O2/OH- --anode ZnO/Zn --medium base --temperature 37C --json\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --emit python"
     )]
     Cell(cell::CellArgs),
     /// A new couple from couples that share species, by adding free energies

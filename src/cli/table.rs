@@ -71,7 +71,15 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
     let _ = writeln!(
         text,
         "{:<26} {:>9}  {:>8}  {:<7}  reaction",
-        "id", "E°/V", "dE/dT", "medium"
+        "id",
+        // On RHE the column is each couple's potential at the scale's pH, not a standard one.
+        if matches!(scale, Scale::Rhe { .. }) {
+            "E(pH)/V"
+        } else {
+            "E°/V"
+        },
+        "dE/dT",
+        "medium"
     );
     for c in &found {
         let _ = writeln!(
@@ -101,8 +109,13 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
     }
     let _ = writeln!(
         text,
-        "\n{} couple(s); E° in V vs {} at 298.15 K{}, dE/dT in mV/K {}",
+        "\n{} couple(s); {} in V vs {} at 298.15 K{}, dE/dT in mV/K {}",
         found.len(),
+        if matches!(scale, Scale::Rhe { .. }) {
+            "E(pH)"
+        } else {
+            "E°"
+        },
         scale.label(),
         super::common::rhe_meaning(&scale),
         dedt_basis(&scale)

@@ -631,3 +631,18 @@ fn a_full_standard_error_is_no_panic() {
         assert_ne!(output.status.code(), Some(101), "{args:?}");
     }
 }
+
+#[test]
+fn scale_footers_say_what_the_columns_are() {
+    // The layout people read; the numbers are checked by the tests above.
+    let (_, rhe, _) = run(&["table", "o2/h2o", "--scale", "rhe", "--ph", "7"]);
+    let (_, sce, _) = run(&["table", "zn2+/zn", "--scale", "sce"]);
+    insta::assert_snapshot!("table_scale_footers", format!("{rhe}\n{sce}"));
+}
+
+#[test]
+fn json_errors_have_one_shape() {
+    let (status, stdout, _) = run(&["table", "--json", "--element", "Xy"]);
+    assert_eq!(status, 2);
+    insta::assert_snapshot!("json_usage_error", stdout);
+}
