@@ -646,3 +646,65 @@ fn json_errors_have_one_shape() {
     assert_eq!(status, 2);
     insta::assert_snapshot!("json_usage_error", stdout);
 }
+
+/// The words of a README command line as a POSIX shell splits them (single quotes only, which
+/// is all the README uses), up to a `#` comment or a `>` redirection.
+fn shell_words(line: &str) -> Vec<String> {
+    let mut words = Vec::new();
+    let mut word: Option<String> = None;
+    let mut quoted = false;
+    for c in line.chars() {
+        match c {
+            '\'' => {
+                quoted = !quoted;
+                word.get_or_insert_with(String::new);
+            }
+            ' ' if !quoted => words.extend(word.take()),
+            '#' | '>' if !quoted && word.is_none() => break,
+            _ => word.get_or_insert_with(String::new).push(c),
+        }
+    }
+    words.extend(word);
+    words
+}
+
+#[test]
+fn the_readme_examples_run() {
+    let readme = std::fs::read_to_string("README.md").unwrap();
+    // Examples that write files (--csv, --svg) write them here.
+    let dir = tempfile::tempdir().unwrap();
+    let mut in_code = false;
+    let mut ran = 0;
+    let mut pending = String::new();
+    for line in readme.lines() {
+        if line.starts_with("```") {
+            in_code = !in_code;
+            continue;
+        }
+        if !in_code {
+            continue;
+        }
+        if let Some(start) = line.strip_suffix('\\') {
+            pending.push_str(start);
+            continue;
+        }
+        let line = std::mem::take(&mut pending) + line;
+        // Synopses ([--option]) and `check` (which reads and may rewrite directories) are left
+        // out; the checker's own tests run it.
+        let Some(rest) = line.strip_prefix("couplet ") else {
+            continue;
+        };
+        if line.contains('[') || rest.starts_with("check") {
+            continue;
+        }
+        let output = couplet()
+            .args(shell_words(rest))
+            .current_dir(dir.path())
+            .output()
+            .unwrap();
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert_eq!(output.status.code(), Some(0), "README: {line}\n{stderr}");
+        ran += 1;
+    }
+    assert!(ran >= 25, "only {ran} README examples found");
+}
