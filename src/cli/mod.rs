@@ -35,6 +35,10 @@ pub const EXIT_FINDINGS: u8 = 1;
 /// Exit status: usage error, unreadable input, or a syntax error.
 pub const EXIT_USAGE: u8 = 2;
 
+/// `--scale` of the commands that print no electrode potential: there it only says what the
+/// typed ones are on.
+const TYPED_SCALE_HELP: &str = "Reference scale of the potentials typed with --cathode-e0 and --anode-e0 (she, rhe with --ph, sce, li-li+, …; see docs); the cell voltage does not depend on it";
+
 #[derive(Parser)]
 #[command(
     name = "couplet",
@@ -90,11 +94,13 @@ enum Command {
     #[command(
         after_help = "Examples:\n  couplet capacity Zn2+/Zn\n  couplet capacity --cathode PbO2/PbSO4 --anode PbSO4/Pb --basis with-electrolyte"
     )]
+    #[command(mut_arg("scale", |arg| arg.help(TYPED_SCALE_HELP)))]
     Capacity(capacity::CapacityArgs),
     /// Open-circuit voltage along a discharge from initial amounts, with CSV and SVG output
     #[command(
         after_help = "Examples:\n  couplet discharge --cathode PbO2/PbSO4 --anode PbSO4/Pb --amount PbO2=1 --amount Pb=1 --amount H2SO4=4 --solvent-kg 0.8 --gamma table --csv lead.csv --svg lead.svg"
     )]
+    #[command(mut_arg("scale", |arg| arg.help(TYPED_SCALE_HELP)))]
     Discharge(discharge::DischargeArgs),
     /// Validate couple files (TOML or CSV) for CI: syntax, chemistry, numbers, table consistency
     #[command(
