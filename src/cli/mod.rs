@@ -95,12 +95,14 @@ enum Command {
         after_help = "Examples:\n  couplet capacity Zn2+/Zn\n  couplet capacity --cathode PbO2/PbSO4 --anode PbSO4/Pb --basis with-electrolyte"
     )]
     #[command(mut_arg("scale", |arg| arg.help(TYPED_SCALE_HELP)))]
+    #[command(mut_arg("ph", |arg| arg.help("pH of the solution (−2 to 16), for --scale rhe")))]
     Capacity(capacity::CapacityArgs),
     /// Open-circuit voltage along a discharge from initial amounts, with CSV and SVG output
     #[command(
         after_help = "Examples:\n  couplet discharge --cathode PbO2/PbSO4 --anode PbSO4/Pb --amount PbO2=1 --amount Pb=1 --amount H2SO4=4 --solvent-kg 0.8 --gamma table --csv lead.csv --svg lead.svg"
     )]
     #[command(mut_arg("scale", |arg| arg.help(TYPED_SCALE_HELP)))]
+    #[command(mut_arg("ph", |arg| arg.help("pH of the solution (−2 to 16), for --scale rhe")))]
     Discharge(discharge::DischargeArgs),
     /// Validate couple files (TOML or CSV) for CI: syntax, chemistry, numbers, table consistency
     #[command(

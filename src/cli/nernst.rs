@@ -2,10 +2,10 @@
 //! `couplet ph-line` command: reading `SPECIES=VALUE` arguments, rendering Q and E, and the
 //! JSON fields `quotient`, `e_V`, `gamma_model`, `assumptions`.
 
+use super::EXIT_OK;
 use super::common::{TableArgs, load_table, medium_arg, resolve, scale};
 use super::failure::Failure;
 use super::units::species_numbers;
-use super::{EXIT_OK, EXIT_USAGE};
 use couplet::activity::{ActivityModel, GammaModel, Solution};
 use couplet::export::{Emit, Export, ExportError, MolalityForm};
 use couplet::figures::{SIGNIFICANT, significant};
@@ -270,11 +270,11 @@ pub fn run_ph_line(args: &PhLineArgs, out: &mut dyn Write) -> io::Result<u8> {
     };
     // On RHE each row is read against the hydrogen electrode at that row's pH.
     let rhe = args.table.scale.trim().eq_ignore_ascii_case("rhe");
-    if rhe && args.table.ph.is_some() {
-        say!(
-            "error: ph-line --scale rhe reads each row against the RHE at that row's pH: leave out --ph"
-        );
-        return Ok(EXIT_USAGE);
+    if args.table.ph.is_some() {
+        return Failure::usage(
+            "ph-line sweeps the pH with --from, --to and --step (and --scale rhe reads each row against the RHE at its own pH): leave out --ph",
+        )
+        .report(out, false);
     }
     let scale = if rhe {
         Scale::Rhe { ph: 0.0 }
