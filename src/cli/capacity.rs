@@ -1,7 +1,7 @@
 //! `couplet capacity`: theoretical capacity of electrode materials and of a cell, with its
 //! specific energy on a stated mass basis and volumetric figures where densities are known.
 
-use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale_without_quotient};
 use super::failure::Failure;
 use super::{EXIT_OK, exact_integer_json, print_json};
 use couplet::capacity::{
@@ -254,7 +254,7 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
         }
         return Ok(EXIT_OK);
     }
-    let scale = match scale(&args.table) {
+    let scale = match scale_without_quotient(&args.table) {
         Ok(scale) => scale,
         Err(failure) => return failure.report(out, args.json),
     };

@@ -57,6 +57,18 @@ pub fn scale(args: &TableArgs) -> Result<Scale, Failure> {
     Scale::from_name(&args.scale, args.ph).map_err(|error| Failure::usage(error.to_string()))
 }
 
+/// The scale of a command whose only use of `--ph` is the RHE: a pH given with another scale
+/// would be ignored, so it is refused.
+pub fn scale_without_quotient(args: &TableArgs) -> Result<Scale, Failure> {
+    let scale = scale(args)?;
+    if args.ph.is_some() && !matches!(scale, Scale::Rhe { .. }) {
+        return Err(Failure::usage(
+            "--ph is used here only by --scale rhe: give --scale rhe or leave out --ph",
+        ));
+    }
+    Ok(scale)
+}
+
 /// What a potential on RHE means, for the line that names the scale (empty on other scales).
 pub fn rhe_meaning(scale: &Scale) -> &'static str {
     match scale {

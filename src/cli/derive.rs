@@ -1,6 +1,6 @@
 //! `couplet derive`: a new couple from couples that share species, by adding free energies.
 
-use super::common::{TableArgs, load_table, resolve, scale};
+use super::common::{TableArgs, load_table, resolve, scale_without_quotient};
 use super::failure::Failure;
 use super::{EXIT_OK, print_json};
 use couplet::cell::derive;
@@ -30,7 +30,7 @@ pub fn run(args: &DeriveArgs, out: &mut dyn Write) -> io::Result<u8> {
         Ok(table) => table,
         Err(failure) => return failure.report(out, args.json),
     };
-    let scale = match scale(&args.table) {
+    let scale = match scale_without_quotient(&args.table) {
         Ok(scale) => scale,
         Err(failure) => return failure.report(out, args.json),
     };

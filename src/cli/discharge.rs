@@ -1,7 +1,7 @@
 //! `couplet discharge`: open-circuit voltage of a cell along its discharge, from initial
 //! amounts, with CSV and SVG output written atomically.
 
-use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale_without_quotient};
 use super::failure::Failure;
 use super::units::{refuse_repeats, species_numbers, species_value};
 use super::{EXIT_OK, EXIT_USAGE, print_json};
@@ -218,7 +218,7 @@ pub fn run(args: &DischargeArgs, out: &mut dyn Write) -> io::Result<u8> {
         Ok(table) => table,
         Err(failure) => return failure.report(out, args.json),
     };
-    let scale = match scale(&args.table) {
+    let scale = match scale_without_quotient(&args.table) {
         Ok(scale) => scale,
         Err(failure) => return failure.report(out, args.json),
     };

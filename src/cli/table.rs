@@ -1,6 +1,6 @@
 //! `couplet table`: list, search and show couples of the potential table.
 
-use super::common::{TableArgs, load_table, scale};
+use super::common::{TableArgs, load_table, scale_without_quotient};
 use super::failure::Failure;
 use super::{EXIT_FINDINGS, EXIT_OK, print_json};
 use couplet::scale::Scale;
@@ -29,7 +29,7 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
         Ok(table) => table,
         Err(failure) => return failure.report(out, args.json),
     };
-    let scale = match scale(&args.table) {
+    let scale = match scale_without_quotient(&args.table) {
         Ok(scale) => scale,
         Err(failure) => return failure.report(out, args.json),
     };

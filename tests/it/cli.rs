@@ -190,6 +190,7 @@ fn ph_line_follows_the_scale() {
     let rows: Vec<&str> = stdout.lines().skip(1).collect();
     // ph-line sweeps the pH itself: a --ph would be ignored, so it is refused.
     refused(&["ph-line", "o2/h2o", "--ph", "3"], 2, "leave out --ph");
+    refused(&["table", "o2/h2o", "--ph", "3"], 2, "only by --scale rhe");
     // pH is written as typed steps, not as float sums (0.30000000000000004).
     assert_eq!(
         rows.iter()
