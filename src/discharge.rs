@@ -11,6 +11,7 @@ use crate::activity::{ActivityModel, GammaModel, Solution, split_electrolyte};
 use crate::capacity::AMP_HOURS_PER_MOL_ELECTRONS;
 use crate::cell::Cell;
 use crate::constants::thermal_voltage_volts;
+use crate::figures::{SIGNIFICANT, significant};
 use crate::notation::{Species, parse_species};
 use crate::quotient::{Phase, phase_of};
 use num_traits::ToPrimitive;
@@ -278,11 +279,12 @@ pub fn discharge(cell: &Cell, spec: &DischargeSpec) -> Result<Discharge, Dischar
                 .any(|e| e.species.kind == ion.kind)
         };
         assumptions.push(format!(
-            "{} taken as fully dissociated: {mol} mol gives {} mol {} and {} mol {}{}",
+            "{} taken as fully dissociated: {} mol gives {} mol {} and {} mol {}{}",
             species.ascii(),
-            mol * f64::from(nu_c),
+            significant(mol, SIGNIFICANT),
+            significant(mol * f64::from(nu_c), SIGNIFICANT),
             cation.ascii(),
-            mol * f64::from(nu_a),
+            significant(mol * f64::from(nu_a), SIGNIFICANT),
             anion.ascii(),
             if uses(&cation) || uses(&anion) {
                 ""

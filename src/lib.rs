@@ -25,6 +25,7 @@ pub mod constants;
 pub mod discharge;
 pub mod elements;
 pub mod export;
+pub mod figures;
 pub mod kw;
 pub mod nernst;
 pub mod notation;

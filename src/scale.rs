@@ -1,7 +1,8 @@
 //! Reference scales: potentials vs SHE restated against a practical reference electrode
 //! (from `data/reference_electrodes.toml`) or the reversible hydrogen electrode at a pH.
 
-use crate::constants::nernst_slope_volts_per_decade;
+use crate::constants::{STANDARD_TEMPERATURE_KELVIN, nernst_slope_volts_per_decade};
+use crate::reaction::Reaction;
 use std::sync::LazyLock;
 use toml::de::DeTable;
 
@@ -153,12 +154,82 @@ impl Scale {
         }
     }
 
-    /// A potential vs SHE restated on this scale at 298.15 K.
+    /// A measured potential vs SHE restated on this scale at 298.15 K: the reference's own
+    /// potential subtracted (for RHE, −(RT/F)·ln 10·pH, so E(RHE) = E(SHE) + (RT/F)·ln 10·pH).
     pub fn from_she(&self, e_vs_she_volts: f64) -> f64 {
+        self.from_she_at(e_vs_she_volts, STANDARD_TEMPERATURE_KELVIN)
+    }
+
+    /// [`Scale::from_she`] at a temperature: the RHE shift uses RT/F at `temperature_kelvin`,
+    /// and a reference electrode with a published dE/dT moves by it (first order from 298.15 K).
+    pub fn from_she_at(&self, e_vs_she_volts: f64, temperature_kelvin: f64) -> f64 {
         match self {
             Scale::She => e_vs_she_volts,
-            Scale::Rhe { ph } => e_vs_she_volts + nernst_slope_volts_per_decade(298.15) * ph,
-            Scale::Electrode(e) => e_vs_she_volts - e.e_vs_she_volts,
+            Scale::Rhe { ph } => {
+                e_vs_she_volts + nernst_slope_volts_per_decade(temperature_kelvin) * ph
+            }
+            Scale::Electrode(e) => {
+                let drift = e.dedt_millivolts_per_kelvin.map_or(0.0, |d| {
+                    d / 1000.0 * (temperature_kelvin - STANDARD_TEMPERATURE_KELVIN)
+                });
+                e_vs_she_volts - (e.e_vs_she_volts + drift)
+            }
+        }
+    }
+
+    /// The potential of a couple (a reduction half-reaction with standard potential
+    /// `e0_vs_she_volts`) as it is read on this scale at 298.15 K.
+    ///
+    /// On SHE and a reference electrode this is E° shifted by the reference. On RHE the
+    /// hydrogen electrode sits in the solution of the scale's pH, so the couple is taken in that
+    /// solution too: H+ and OH- at that pH (a(OH-) from the project's one Kw), every other species
+    /// at unit activity. A couple that takes up as many H+ as electrons (O2/H2O) therefore reads
+    /// E° at every pH: 1.229 V vs RHE.
+    pub fn couple_potential(&self, reaction: &Reaction, e0_vs_she_volts: f64) -> f64 {
+        self.from_she(e0_vs_she_volts + self.ph_term(reaction))
+    }
+
+    /// The inverse of [`Scale::couple_potential`]: a couple's E° vs SHE from its potential
+    /// typed on this scale.
+    pub fn couple_e0_vs_she(&self, reaction: &Reaction, e_on_scale_volts: f64) -> f64 {
+        e_on_scale_volts - self.from_she(0.0) - self.ph_term(reaction)
+    }
+
+    /// The change of a couple's potential from a(H+) = 1 to the scale's pH:
+    /// −(RT/nF)·ln(a(H+)^ν(H+)·a(OH-)^ν(OH-)); zero except on RHE.
+    fn ph_term(&self, reaction: &Reaction) -> f64 {
+        let Scale::Rhe { ph } = self else {
+            return 0.0;
+        };
+        let mut nu_h = 0.0;
+        let mut nu_oh = 0.0;
+        for entry in reaction.entries() {
+            let nu = num_traits::ToPrimitive::to_f64(&entry.nu).unwrap_or(0.0);
+            match entry.species.without_state().ascii().as_str() {
+                "H+" => nu_h += nu,
+                "OH-" => nu_oh += nu,
+                _ => {}
+            }
+        }
+        let electrons = -num_traits::ToPrimitive::to_f64(&reaction.electron_nu()).unwrap_or(0.0);
+        if electrons == 0.0 {
+            return 0.0;
+        }
+        let t = STANDARD_TEMPERATURE_KELVIN;
+        let log10_a_h = -ph;
+        let log10_a_oh = crate::kw::log10_kw(t) + ph;
+        -nernst_slope_volts_per_decade(t) / electrons * (nu_h * log10_a_h + nu_oh * log10_a_oh)
+    }
+
+    /// A couple's dE°/dT (mV/K, vs SHE) on this scale: the reference electrode's own published
+    /// coefficient subtracted. `None` where the scale has none to subtract (RHE, whose
+    /// coefficient depends on the solution, and electrodes the data file gives none for):
+    /// then the value vs SHE is all there is, and output must say so.
+    pub fn dedt_millivolts_per_kelvin(&self, dedt_vs_she: f64) -> Option<f64> {
+        match self {
+            Scale::She => Some(dedt_vs_she),
+            Scale::Rhe { .. } => None,
+            Scale::Electrode(e) => e.dedt_millivolts_per_kelvin.map(|d| dedt_vs_she - d),
         }
     }
 }
@@ -181,5 +252,21 @@ mod tests {
         ));
         assert!(Scale::from_name("ag-agcl-sat", None).is_ok());
         assert_eq!(reference_electrodes().len(), 22);
+    }
+
+    #[test]
+    fn rhe_reads_a_couple_at_the_scale_ph_and_typed_values_come_back() {
+        use crate::notation::parse_equation;
+        // O2 + 4 H+ + 4 e- -> 2 H2O, E° 1.229 V (Harris App. H): one H+ per electron, so E vs RHE
+        // is E° at every pH (DOMAIN: E(RHE) = E(SHE) + (RT/F) ln10 · pH).
+        let oxygen = Reaction::from_equation(&parse_equation("O2 + 4 H+ + 4 e- -> 2 H2O").unwrap());
+        for ph in [0.0, 7.0, 14.0] {
+            let rhe = Scale::Rhe { ph };
+            assert!((rhe.couple_potential(&oxygen, 1.229) - 1.229).abs() < 1e-12);
+            assert!((rhe.couple_e0_vs_she(&oxygen, 1.229) - 1.229).abs() < 1e-12);
+        }
+        let sce = Scale::from_name("sce", None).unwrap();
+        let back = sce.couple_e0_vs_she(&oxygen, sce.couple_potential(&oxygen, 1.229));
+        assert!((back - 1.229).abs() < 1e-12);
     }
 }

@@ -5,6 +5,7 @@
 pub mod table;
 pub mod water;
 
+use crate::figures::{SIGNIFICANT, significant};
 use crate::notation::{Species, parse_species};
 use std::fmt;
 use std::sync::OnceLock;
@@ -16,7 +17,8 @@ use thiserror::Error;
 pub enum ActivityError {
     /// The ionic strength is beyond what the model is documented for.
     #[error(
-        "ionic strength {ionic_strength} mol/kg is beyond the {model} model's range (I <= {limit} mol/kg); use the table model or force it"
+        "ionic strength {} mol/kg is beyond the {model} model's range (I <= {limit} mol/kg); use the table model or force it",
+        crate::figures::significant(*.ionic_strength, crate::figures::SIGNIFICANT)
     )]
     OutsideRange {
         /// Model name.
@@ -28,7 +30,8 @@ pub enum ActivityError {
     },
     /// A molality outside the published range of an electrolyte.
     #[error(
-        "{electrolyte} at {molality} mol/kg is outside its published range {low}..{high} mol/kg; the table model does not extrapolate"
+        "{electrolyte} at {} mol/kg is outside its published range {low}..{high} mol/kg; the table model does not extrapolate",
+        crate::figures::significant(*.molality, crate::figures::SIGNIFICANT)
     )]
     OutsideTable {
         /// Electrolyte formula.
@@ -314,10 +317,10 @@ impl Solution {
                     assumptions.push(format!(
                         "{} taken as fully dissociated: {} mol/kg gives {} {} + {} {}",
                         species.ascii(),
-                        amount,
-                        amount * nu_c as f64,
+                        significant(*amount, SIGNIFICANT),
+                        significant(amount * nu_c as f64, SIGNIFICANT),
                         cation.ascii(),
-                        amount * nu_a as f64,
+                        significant(amount * nu_a as f64, SIGNIFICANT),
                         anion.ascii()
                     ));
                     add_solute(&mut solutes, &cation, amount * nu_c as f64);
@@ -333,7 +336,7 @@ impl Solution {
         if net_charge.abs() > 1e-9 * scale {
             assumptions.push(format!(
                 "charge balance: {} mol/kg of an unnamed monovalent counter-{} assumed for the ionic strength",
-                net_charge.abs(),
+                significant(net_charge.abs(), SIGNIFICANT),
                 if net_charge > 0.0 { "anion" } else { "cation" }
             ));
         }

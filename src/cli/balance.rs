@@ -1,6 +1,7 @@
 //! `couplet balance`: one equation from the argument, or one per line from standard input.
 
-use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, argument_or_stdin};
+use super::failure::{self, Failure};
+use super::{EXIT_FINDINGS, EXIT_OK, argument_or_stdin};
 use couplet::balance::{
     BalanceError, BalanceOptions, BalancedReaction, Conserved, ElectronRule, Impossible, Medium,
     balance_text,
@@ -10,7 +11,8 @@ use couplet::notation::Species;
 use couplet::oxidation::{ElementChange, RedoxAnalysis, analyse, signed_text};
 use num_bigint::BigInt;
 use num_traits::Signed;
-use std::fmt::Write;
+use std::fmt::Write as _;
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct BalanceArgs {
@@ -28,7 +30,7 @@ pub struct BalanceArgs {
     json: bool,
 }
 
-pub fn run(args: &BalanceArgs) -> u8 {
+pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
     let options = BalanceOptions {
         medium: args.medium.parse().unwrap_or(Medium::None),
         electrons: if args.half {
@@ -40,30 +42,25 @@ pub fn run(args: &BalanceArgs) -> u8 {
     };
     let text = match argument_or_stdin(&args.input) {
         Ok(text) => text,
-        Err(message) => {
-            eprintln!("error: {message}");
-            return EXIT_USAGE;
-        }
+        Err(message) => return Failure::usage(message).report(out, args.json),
     };
     if args.input != "-" {
         let line = text.trim_end_matches(['\n', '\r']);
         let result = balance_text(line, &options);
         if args.json {
-            println!("{}", result_json(line, None, options.medium, &result));
+            writeln!(out, "{}", result_json(line, None, options.medium, &result))?;
         } else {
             match &result {
-                Ok(balanced) => print!("{}", human(balanced)),
-                Err(error) => eprint!("{}", human_error(error, line, args.half)),
+                Ok(balanced) => write!(out, "{}", human(balanced))?,
+                Err(error) => say!("{}", human_error(error, line, args.half).trim_end()),
             }
         }
-        return match &result {
+        return Ok(match &result {
             Ok(_) => EXIT_OK,
-            Err(BalanceError::Notation(_) | BalanceError::Repeated { .. }) => EXIT_USAGE,
-            Err(_) => EXIT_FINDINGS,
-        };
+            Err(error) => failure::balance(error, line).status,
+        });
     }
     let mut status = EXIT_OK;
-    let mut out = String::new();
     for (index, line) in text.lines().enumerate() {
         let line = line.trim();
         if line.is_empty() || line.starts_with('#') {
@@ -75,28 +72,23 @@ pub fn run(args: &BalanceArgs) -> u8 {
             status = EXIT_FINDINGS;
         }
         if args.json {
-            out.push_str(&result_json(line, Some(number), options.medium, &result));
+            out.write_all(result_json(line, Some(number), options.medium, &result).as_bytes())?;
         } else {
             match &result {
-                Ok(balanced) => out.push_str(&balanced.ascii()),
+                Ok(balanced) => out.write_all(balanced.ascii().as_bytes())?,
                 Err(error) => {
-                    let _ = write!(out, "line {number}: error ({}): {error}", error.kind());
+                    let kind = failure::balance(error, line).kind;
+                    write!(out, "line {number}: error ({kind}): {error}")?;
                     if let BalanceError::NotUnique { basis } = error {
                         let listed: Vec<String> = basis.iter().map(|r| r.to_string()).collect();
-                        let _ = write!(out, ": {}", listed.join(" ; "));
+                        write!(out, ": {}", listed.join(" ; "))?;
                     }
                 }
             }
         }
-        out.push('\n');
-        // Large batches are written in pieces so memory stays flat.
-        if out.len() > 1 << 16 {
-            print!("{out}");
-            out.clear();
-        }
+        writeln!(out)?;
     }
-    print!("{out}");
-    status
+    Ok(status)
 }
 
 /// Electrons of a half-reaction, or n of a whole reaction from its redox analysis (computed
@@ -187,7 +179,7 @@ fn changes_json(changes: &[ElementChange]) -> String {
 }
 
 fn human_error(error: &BalanceError, line: &str, half: bool) -> String {
-    let mut out = error.render(line);
+    let mut out = failure::balance(error, line).rendered().to_owned();
     out.push('\n');
     match error {
         BalanceError::NotUnique { basis } => {
@@ -251,6 +243,12 @@ fn result_json(
                 }
                 None => out.push_str(",\"electrons\":null"),
             }
+            match couplet::cell::caution(balanced.reaction()) {
+                Some(caution) => {
+                    let _ = write!(out, ",\"caution\":{}", json_string(&caution));
+                }
+                None => out.push_str(",\"caution\":null"),
+            }
             if let Some((analysis, halves)) = redox {
                 let n = if analysis.n.is_integer() {
                     analysis.n.to_integer().to_string()
@@ -281,7 +279,7 @@ fn result_json(
             let _ = write!(
                 out,
                 ",\"error\":{{\"kind\":\"{}\",\"message\":{}",
-                error.kind(),
+                failure::balance(error, input).kind,
                 json_string(&error.to_string())
             );
             if let BalanceError::NotUnique { basis } = error {

@@ -1,18 +1,19 @@
 //! `couplet capacity`: theoretical capacity of electrode materials and of a cell, with its
 //! specific energy on a stated mass basis and volumetric figures where densities are known.
 
-use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, report_lookup};
-use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale_without_quotient};
+use super::failure::Failure;
+use super::{EXIT_OK, exact_integer_json, print_json};
 use couplet::capacity::{
-    Basis, CapacityError, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
+    Basis, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
     half_reaction_materials,
 };
 use couplet::cell::caution;
-use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
-use couplet::notation::{Arrow, Style, parse_equation, parse_species};
+use couplet::notation::{Arrow, Style, parse_equation};
 use couplet::reaction::Reaction;
-use couplet::table::is_reaction_text;
+use couplet::table::{imbalance_text, is_reaction_text};
 use serde_json::{Value, json};
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct CapacityArgs {
@@ -28,8 +29,9 @@ pub struct CapacityArgs {
     anode: Option<String>,
     #[command(flatten)]
     electrodes: ElectrodeArgs,
-    /// Temperature in K for the cell voltage used in the energy (first order from dE°/dT)
-    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    /// Temperature for the cell voltage used in the energy (first order from dE°/dT), with its
+    /// unit: 25C, 25°C, 298.15K; a bare number is kelvin and must be at least 200
+    #[arg(long, default_value = "298.15K", value_parser = super::units::temperature)]
     temperature: f64,
     /// Mass basis of the cell figures: active (electrode materials), with-electrolyte
     /// (also consumed dissolved species and water) or all-reactants (gases too)
@@ -53,44 +55,26 @@ fn basis_arg(text: &str) -> Result<Basis, String> {
 }
 
 /// Reads `SPECIES=VALUE` into the built-in densities.
-fn densities(given: &[String]) -> Result<Densities, u8> {
+fn densities(given: &[String]) -> Result<Densities, Failure> {
     let mut densities = Densities::builtin();
-    for item in given {
-        let Some((name, value)) = item.rsplit_once('=') else {
-            eprintln!("error: --density '{item}': expected SPECIES=G_PER_CM3");
-            return Err(EXIT_USAGE);
-        };
-        let species = match parse_species(name.trim()) {
-            Ok(s) => s,
-            Err(e) => {
-                eprintln!("error: --density '{item}': {}", e.message);
-                return Err(EXIT_USAGE);
-            }
-        };
-        let Ok(value) = value.trim().parse::<f64>() else {
-            eprintln!("error: --density '{item}': '{value}' is not a number");
-            return Err(EXIT_USAGE);
-        };
+    let given = super::units::species_numbers("--density", given).map_err(Failure::usage)?;
+    for (species, value) in given {
+        let name = species.ascii();
         if let Err(e) = densities.insert(species, value, "given".to_owned()) {
-            eprintln!("error: --density '{item}': {e}");
-            return Err(EXIT_USAGE);
+            return Err(Failure::usage(format!("--density {name}: {e}")));
         }
     }
     Ok(densities)
-}
-
-fn small_int(value: &num_bigint::BigInt) -> i64 {
-    value.to_string().parse().unwrap_or(0)
 }
 
 fn material_json(m: &MaterialCapacity) -> Value {
     json!({
         "species": m.species.ascii(),
         "molar_mass_g_per_mol": m.molar_mass_g_per_mol,
-        "n": small_int(&m.electrons),
+        "n": exact_integer_json(&m.electrons),
         "mAh_per_g": m.milliamp_hours_per_gram,
         // Extra fields; the four above are the stable schema.
-        "formula_units": small_int(&m.formula_units),
+        "formula_units": exact_integer_json(&m.formula_units),
         "side": m.side.name(),
         "g_per_Ah": m.grams_per_amp_hour,
         "density_g_per_cm3": m.density.as_ref().map(|d| d.grams_per_cm3),
@@ -104,7 +88,7 @@ fn cell_json(c: &CellCapacity) -> Value {
         "basis": c.basis.name(),
         "reaction": c.reaction.to_string(),
         "mass_g_per_mol": c.mass_g_per_mol,
-        "n": small_int(&c.electrons),
+        "n": exact_integer_json(&c.electrons),
         "Ah_per_kg": c.amp_hours_per_kg,
         "Wh_per_kg": c.watt_hours_per_kg,
         // Extra fields; the six above are the stable schema.
@@ -119,18 +103,20 @@ fn cell_json(c: &CellCapacity) -> Value {
     })
 }
 
-fn print_materials(materials: &[MaterialCapacity]) {
-    println!(
+fn print_materials(out: &mut dyn Write, materials: &[MaterialCapacity]) -> io::Result<()> {
+    writeln!(
+        out,
         "{:<14} {:<15} {:>4} {:>11} {:>10} {:>9} {:>11}",
         "material", "", "n", "M g/mol", "mAh/g", "g/Ah", "mAh/cm3"
-    );
+    )?;
     for m in materials {
         let n = if m.formula_units == 1.into() {
             m.electrons.to_string()
         } else {
             format!("{}/{}", m.electrons, m.formula_units)
         };
-        println!(
+        writeln!(
+            out,
             "{:<14} {:<15} {:>4} {:>11.3} {:>10.1} {:>9.3} {:>11}",
             m.species.unicode(),
             m.side.name(),
@@ -140,77 +126,90 @@ fn print_materials(materials: &[MaterialCapacity]) {
             m.grams_per_amp_hour,
             m.milliamp_hours_per_cm3
                 .map_or_else(|| "-".to_owned(), |v| format!("{v:.0}"))
-        );
+        )?;
         if m.assumed_solid {
-            println!(
+            writeln!(
+                out,
                 "  note: {} has no state label: taken as a solid",
                 m.species.ascii()
-            );
+            )?;
         }
         if m.approximate_mass {
-            println!(
+            writeln!(
+                out,
                 "  note: {} uses a mass number: its molar mass is approximate",
                 m.species.ascii()
-            );
+            )?;
         }
     }
-    println!("(mAh/g equals Ah/kg; n is electrons per formula unit; q = n·F/(3.6·M))");
+    writeln!(
+        out,
+        "(mAh/g equals Ah/kg; n is electrons per formula unit; q = n·F/(3.6·M))"
+    )
 }
 
-fn print_cell(c: &CellCapacity) {
-    println!("basis    {}: {}", c.basis.name(), c.basis.description());
+fn print_cell(out: &mut dyn Write, c: &CellCapacity) -> io::Result<()> {
+    writeln!(
+        out,
+        "basis    {}: {}",
+        c.basis.name(),
+        c.basis.description()
+    )?;
     for s in &c.shares {
-        println!(
+        writeln!(
+            out,
             "  {} {:<12} {:<18} {:>10.3} g  {}",
             if s.counted { "+" } else { " " },
             format!("{} {}", s.coefficient, s.species.unicode()),
             s.role.name(),
             s.grams,
             if s.counted { "counted" } else { "not counted" }
-        );
+        )?;
     }
-    println!(
+    writeln!(
+        out,
         "mass     {:.3} g per mole of reaction (n = {})",
         c.mass_g_per_mol, c.electrons
-    );
-    println!(
+    )?;
+    writeln!(
+        out,
         "capacity {:.1} Ah/kg  ({:.3} g/Ah)",
         c.amp_hours_per_kg, c.grams_per_amp_hour
-    );
-    println!(
+    )?;
+    writeln!(
+        out,
         "energy   {:.0} Wh/kg  (at E = {:.4} V)",
         c.watt_hours_per_kg, c.e_volts
-    );
+    )?;
     match (c.amp_hours_per_litre, c.watt_hours_per_litre) {
-        (Some(ah), Some(wh)) => println!("volume   {ah:.0} Ah/L, {wh:.0} Wh/L"),
-        _ => println!(
+        (Some(ah), Some(wh)) => writeln!(out, "volume   {ah:.0} Ah/L, {wh:.0} Wh/L")?,
+        _ => writeln!(
+            out,
             "volume   no density for {} (give --density SPECIES=G_PER_CM3)",
             c.missing_densities
                 .iter()
                 .map(|s| s.ascii())
                 .collect::<Vec<_>>()
                 .join(", ")
-        ),
+        )?,
     }
     for note in &c.notes {
-        println!("note: {note}");
+        writeln!(out, "note: {note}")?;
     }
-    println!("theoretical figures: no separator, case, current collector or unused electrolyte");
+    writeln!(
+        out,
+        "theoretical figures: no separator, case, current collector or unused electrolyte"
+    )
 }
 
-fn report(error: &CapacityError) -> u8 {
-    eprintln!("error: {error}");
-    EXIT_FINDINGS
-}
-
-pub fn run(args: &CapacityArgs) -> u8 {
+pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
     let densities = match densities(&args.densities) {
         Ok(d) => d,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
     if let Some(query) = &args.couple {
         // A typed half-reaction needs no potential for its capacity, so it need not be in the
@@ -218,51 +217,65 @@ pub fn run(args: &CapacityArgs) -> u8 {
         let half = if is_reaction_text(query) {
             match parse_equation(query) {
                 Ok(eq) => Reaction::from_equation(&eq),
-                Err(e) => {
-                    eprintln!("{}", e.render());
-                    return super::parse::error_status(&e);
-                }
+                Err(e) => return Failure::from(&e).report(out, args.json),
             }
         } else {
             match table.find(query, args.electrodes.medium) {
                 Ok(c) => c.reaction.clone(),
-                Err(e) => return report_lookup(&e),
+                Err(e) => return Failure::from(&e).report(out, args.json),
             }
         };
+        // An unbalanced half-reaction would give a wrong n, so a wrong capacity.
+        if let Some(detail) = imbalance_text(&half) {
+            return Failure::chemistry(format!(
+                "'{query}' does not balance ({detail}); see couplet balance"
+            ))
+            .report(out, args.json);
+        }
         let materials = match half_reaction_materials(&half, &densities) {
             Ok(m) => m,
-            Err(e) => return report(&e),
+            Err(e) => return Failure::from(&e).report(out, args.json),
         };
         if args.json {
-            print_json(&json!({
-                "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
-                "cell": Value::Null,
-            }));
+            print_json(
+                out,
+                &json!({
+                    "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
+                    "cell": Value::Null,
+                }),
+            )?;
         } else {
-            println!("half     {}", half.to_text(Style::Unicode, Arrow::Forward));
-            print_materials(&materials);
+            writeln!(
+                out,
+                "half     {}",
+                half.to_text(Style::Unicode, Arrow::Forward)
+            )?;
+            print_materials(out, &materials)?;
         }
-        return EXIT_OK;
+        return Ok(EXIT_OK);
     }
+    let scale = match scale_without_quotient(&args.table) {
+        Ok(scale) => scale,
+        Err(failure) => return failure.report(out, args.json),
+    };
     let (Some(cathode), Some(anode)) = (&args.cathode, &args.anode) else {
-        eprintln!("error: give a couple, or --cathode and --anode");
-        return EXIT_USAGE;
+        return Failure::usage("give a couple, or --cathode and --anode").report(out, args.json);
     };
     let cell = match build_cell(
         &table,
         &args
             .electrodes
-            .cell_request(cathode, anode, args.temperature),
+            .cell_request(cathode, anode, args.temperature, &scale),
     ) {
         Ok(cell) => cell,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
     if !cell.runs_as_written {
-        eprintln!(
-            "error: E°cell = {:+.4} V: the reaction does not run as written and stores no energy; swap --cathode and --anode",
+        return Failure::chemistry(format!(
+            "E°cell = {:+.4} V: the reaction does not run as written and stores no energy; swap --cathode and --anode",
             cell.e0_volts
-        );
-        return EXIT_FINDINGS;
+        ))
+        .report(out, args.json);
     }
     let e_volts = cell
         .at_temperature
@@ -270,30 +283,35 @@ pub fn run(args: &CapacityArgs) -> u8 {
         .map_or(cell.e0_volts, |t| t.e0_volts);
     let figures = match cell_capacity(&cell.net, &cell.electrons, e_volts, args.basis, &densities) {
         Ok(f) => f,
-        Err(e) => return report(&e),
+        Err(e) => return Failure::from(&e).report(out, args.json),
     };
     let materials = cell_materials(&cell.net, &cell.electrons, &densities);
     if args.json {
-        print_json(&json!({
-            "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
-            "cell": cell_json(&figures),
-        }));
-        return EXIT_OK;
+        print_json(
+            out,
+            &json!({
+                "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
+                "cell": cell_json(&figures),
+                "caution": caution(&cell.net),
+            }),
+        )?;
+        return Ok(EXIT_OK);
     }
-    println!(
+    writeln!(
+        out,
         "net      {}",
         cell.net.to_text(Style::Unicode, Arrow::Forward)
-    );
-    println!("E°cell   {:+.4} V", cell.e0_volts);
+    )?;
+    writeln!(out, "E°cell   {:+.4} V", cell.e0_volts)?;
     for note in &cell.notes {
-        println!("note: {note}");
+        writeln!(out, "note: {note}")?;
     }
     if !materials.is_empty() {
-        print_materials(&materials);
+        print_materials(out, &materials)?;
     }
-    print_cell(&figures);
+    print_cell(out, &figures)?;
     if let Some(line) = caution(&cell.net) {
-        println!("{line}");
+        writeln!(out, "{line}")?;
     }
-    EXIT_OK
+    Ok(EXIT_OK)
 }

@@ -1,8 +1,9 @@
 //! `couplet cell`: a cathode and an anode couple combined into the net reaction and its figures.
 
 use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale};
+use super::failure::Failure;
 use super::nernst::{NernstArgs, emit, json_fields, run_nernst, text};
-use super::{EXIT_OK, EXIT_USAGE, print_json};
+use super::{EXIT_OK, exact_integer_json, exact_json, print_json};
 use couplet::cell::caution;
 use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
 use couplet::nernst::Standard;
@@ -11,6 +12,7 @@ use couplet::scale::Scale;
 use couplet::table::Couple;
 use num_traits::ToPrimitive;
 use serde_json::{Value, json};
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct CellArgs {
@@ -22,8 +24,9 @@ pub struct CellArgs {
     anode: String,
     #[command(flatten)]
     electrodes: ElectrodeArgs,
-    /// Temperature in K for E°(T), ΔG°(T), K(T) (first order from dE°/dT)
-    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    /// Temperature for E°(T), ΔG°(T), K(T) (first order from dE°/dT), with its unit: 25C,
+    /// 25°C, 298.15K; a bare number is kelvin and must be at least 200; a warning outside 0–100 °C
+    #[arg(long, default_value = "298.15K", value_parser = super::units::temperature)]
     temperature: f64,
     #[command(flatten)]
     table: TableArgs,
@@ -39,29 +42,29 @@ fn half_json(couple: &Couple, scale: &Scale) -> Value {
     json!({
         "id": couple.id,
         "reaction": couple.reaction.to_string(),
-        "e0_V": scale.from_she(couple.e0_volts),
-        "n": couple.electrons().to_integer().to_string().parse::<i64>().unwrap_or(0),
+        "e0_V": scale.couple_potential(&couple.reaction, couple.e0_volts),
+        "n": exact_json(&couple.electrons()),
         "source": couple.source,
     })
 }
 
-pub fn run(args: &CellArgs) -> u8 {
+pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
     let scale = match scale(&args.table) {
         Ok(scale) => scale,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
     let cell = match build_cell(
         &table,
         &args
             .electrodes
-            .cell_request(&args.cathode, &args.anode, args.temperature),
+            .cell_request(&args.cathode, &args.anode, args.temperature, &scale),
     ) {
         Ok(cell) => cell,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
     let at_t = cell.at_temperature.as_ref();
     let dedt = match (
@@ -80,18 +83,26 @@ pub fn run(args: &CellArgs) -> u8 {
     let format = match args.nernst.emit_format() {
         Ok(format) => format,
         Err(message) => {
-            eprintln!("error: {message}");
-            return EXIT_USAGE;
+            return Failure::usage(message).report(out, args.json);
         }
     };
-    let (nernst, conditions) =
-        match run_nernst(&args.nernst, &standard, args.table.ph, args.temperature) {
-            Ok(found) => found,
-            Err(message) => {
-                eprintln!("error: {message}");
-                return EXIT_USAGE;
-            }
-        };
+    // A pH whose H+ and OH- cancel in the net reaction cannot move E: say so, do not refuse it
+    // (it still sets the RHE scale).
+    let mut ph = args.table.ph;
+    if let Some(value) = ph
+        && !has_h_or_oh(&cell.net)
+    {
+        say!(
+            "note: pH {value} does not enter Q: the net reaction has no H+ or OH- (they cancel), so E does not depend on pH"
+        );
+        ph = None;
+    }
+    let (nernst, conditions) = match run_nernst(&args.nernst, &standard, ph, args.temperature) {
+        Ok(found) => found,
+        Err(message) => {
+            return Failure::usage(message).report(out, args.json);
+        }
+    };
     if let Some(format) = format {
         let source = format!(
             "cathode {}; anode {}",
@@ -100,17 +111,16 @@ pub fn run(args: &CellArgs) -> u8 {
         );
         match emit(&standard, &nernst, &conditions, format, &source) {
             Ok(code) => {
-                print!("{code}");
-                return EXIT_OK;
+                write!(out, "{code}")?;
+                return Ok(EXIT_OK);
             }
             Err(message) => {
-                eprintln!("error: {message}");
-                return EXIT_USAGE;
+                return Failure::usage(message).report(out, args.json);
             }
         }
     }
     if args.json {
-        let side = |terms: Vec<(String, String)>| -> Value {
+        let side = |terms: Vec<(String, Value)>| -> Value {
             Value::Array(
                 terms
                     .into_iter()
@@ -121,12 +131,12 @@ pub fn run(args: &CellArgs) -> u8 {
         let reactants = cell
             .net
             .reactants()
-            .map(|(s, c)| (s.ascii(), c.to_string()))
+            .map(|(s, c)| (s.ascii(), exact_json(&c)))
             .collect();
         let products = cell
             .net
             .products()
-            .map(|(s, c)| (s.ascii(), c.to_string()))
+            .map(|(s, c)| (s.ascii(), exact_json(&c)))
             .collect();
         let mut value = json!({
             "cathode": half_json(&cell.cathode, &scale),
@@ -136,7 +146,7 @@ pub fn run(args: &CellArgs) -> u8 {
                 "reactants": side(reactants),
                 "products": side(products),
             },
-            "n": cell.electrons.to_string().parse::<i64>().unwrap_or(0),
+            "n": exact_integer_json(&cell.electrons),
             "e0_V": at_t.map_or(cell.e0_volts, |t| t.e0_volts),
             "delta_g0_kJ_per_mol": at_t.map_or(cell.delta_g0_kilojoules_per_mol, |t| t.delta_g0_kilojoules_per_mol),
             "log10_k": at_t.map_or(cell.log10_k, |t| t.log10_k),
@@ -159,75 +169,96 @@ pub fn run(args: &CellArgs) -> u8 {
         object.insert("notes".into(), json!(cell.notes));
         object.insert("caution".into(), json!(caution(&cell.net)));
         object.extend(json_fields(&nernst, conditions.model.model));
-        print_json(&value);
-        return EXIT_OK;
+        print_json(out, &value)?;
+        return Ok(EXIT_OK);
     }
-    let on = |e: f64| format!("{:+.4} V", scale.from_she(e));
-    println!(
+    let on = |c: &Couple| format!("{:+.4} V", scale.couple_potential(&c.reaction, c.e0_volts));
+    writeln!(
+        out,
         "cathode  {:<44} E° {}  ({})",
         cell.cathode
             .reaction
             .to_text(Style::Unicode, Arrow::Forward),
-        on(cell.cathode.e0_volts),
+        on(&cell.cathode),
         cell.cathode.label()
-    );
-    println!(
+    )?;
+    writeln!(
+        out,
         "anode    {:<44} E° {}  ({})",
         cell.anode.reaction.to_text(Style::Unicode, Arrow::Forward),
-        on(cell.anode.e0_volts),
+        on(&cell.anode),
         cell.anode.label()
-    );
-    println!(
+    )?;
+    writeln!(
+        out,
         "net      {}",
         cell.net.to_text(Style::Unicode, Arrow::Forward)
-    );
-    println!("n        {}", cell.electrons);
-    println!("E°cell   {:+.4} V  (at 298.15 K)", cell.e0_volts);
-    println!("ΔG°      {:+.2} kJ/mol", cell.delta_g0_kilojoules_per_mol);
+    )?;
+    writeln!(out, "n        {}", cell.electrons)?;
+    writeln!(out, "E°cell   {:+.4} V  (at 298.15 K)", cell.e0_volts)?;
+    writeln!(
+        out,
+        "ΔG°      {:+.2} kJ/mol",
+        cell.delta_g0_kilojoules_per_mol
+    )?;
     match cell.k() {
-        Some(k) => println!("K        {k:.3e}  (log10 K = {:.2})", cell.log10_k),
-        None => println!(
+        Some(k) => writeln!(out, "K        {k:.3e}  (log10 K = {:.2})", cell.log10_k)?,
+        None => writeln!(
+            out,
             "K        beyond floating point  (log10 K = {:.2})",
             cell.log10_k
-        ),
+        )?,
     }
-    println!(
+    writeln!(
+        out,
         "         {}",
         if cell.runs_as_written {
             "runs as written (galvanic)"
         } else {
             "does not run as written: the reverse is spontaneous (an electrolytic cell as written)"
         }
-    );
+    )?;
     if let Some(t) = at_t {
-        println!(
+        writeln!(
+            out,
             "at {} K  E° {:+.4} V, ΔG° {:+.2} kJ/mol, log10 K {:.2}  (dE°/dT {:+.3} mV/K, ΔS° {:+.1} J/(mol·K), ΔH° {:+.2} kJ/mol)",
-            t.temperature_kelvin,
+            couplet::figures::significant(t.temperature_kelvin, 6),
             t.e0_volts,
             t.delta_g0_kilojoules_per_mol,
             t.log10_k,
             t.dedt_millivolts_per_kelvin,
             t.delta_s0_joules_per_mol_kelvin,
             t.delta_h0_kilojoules_per_mol
-        );
+        )?;
     }
     if scale != Scale::She {
-        println!(
-            "electrode potentials vs {}; E°cell does not depend on the scale",
-            scale.label()
-        );
+        writeln!(
+            out,
+            "electrode potentials vs {}{}; E°cell does not depend on the scale",
+            scale.label(),
+            super::common::rhe_meaning(&scale)
+        )?;
     }
-    print!("{}", text(&nernst, args.temperature));
+    write!(out, "{}", text(&nernst, args.temperature))?;
     for note in &cell.notes {
-        println!("note: {note}");
+        writeln!(out, "note: {note}")?;
     }
-    println!(
+    writeln!(
+        out,
         "sources: cathode {}; anode {}",
         cell.cathode.source.as_deref().unwrap_or("given"),
         cell.anode.source.as_deref().unwrap_or("given")
-    );
+    )?;
     if let Some(line) = caution(&cell.net) {
-        println!("{line}");
+        writeln!(out, "{line}")?;
     }
-    EXIT_OK
+    Ok(EXIT_OK)
+}
+
+/// Whether H+ or OH- takes part in a reaction.
+fn has_h_or_oh(reaction: &couplet::reaction::Reaction) -> bool {
+    reaction
+        .entries()
+        .iter()
+        .any(|e| matches!(e.species.without_state().ascii().as_str(), "H+" | "OH-"))
 }

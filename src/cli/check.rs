@@ -2,11 +2,11 @@
 //! rewriting reactions the balancer balances unambiguously.
 
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use couplet::check::load::{expand_paths, load_file, looks_like_couple_file};
+use couplet::check::load::{expand_paths, load_file, looks_like_couple_file, source_from_bytes};
 use couplet::check::output::{self, Colour};
 use couplet::check::{CheckOptions, DEFAULT_TOLERANCE_VOLTS, Severity, check, fix};
-use couplet::table::ProblemKind;
-use std::io::{IsTerminal, Write};
+use couplet::table::{FileFormat, ProblemKind};
+use std::io::{self, IsTerminal, Write};
 use std::path::PathBuf;
 
 #[derive(clap::Args)]
@@ -44,12 +44,12 @@ fn parse_tolerance(text: &str) -> Result<f64, String> {
     }
 }
 
-pub fn run(args: &CheckArgs) -> u8 {
+pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
     let found = match expand_paths(&args.paths) {
         Ok(found) => found,
         Err(error) => {
             eprintln!("error: {error}");
-            return EXIT_USAGE;
+            return Ok(EXIT_USAGE);
         }
     };
     let mut sources = Vec::new();
@@ -65,7 +65,7 @@ pub fn run(args: &CheckArgs) -> u8 {
             }
             Err(error) => {
                 eprintln!("error: {error}");
-                return EXIT_USAGE;
+                return Ok(EXIT_USAGE);
             }
         }
     }
@@ -108,17 +108,29 @@ pub fn run(args: &CheckArgs) -> u8 {
                 }
                 Err(error) => {
                     eprintln!("error: {}: {error}", source.name);
-                    return EXIT_USAGE;
+                    return Ok(EXIT_USAGE);
                 }
             }
         }
         if args.dry_run {
-            let _ = std::io::stdout().lock().write_all(diff.as_bytes());
-            return EXIT_OK;
+            out.write_all(diff.as_bytes())?;
+            // The status is that of the files as --fix would leave them.
+            let mut sources: Vec<_> = report.files.clone();
+            for (path, text) in &rewritten {
+                let index = paths
+                    .iter()
+                    .position(|p| p == path)
+                    .expect("a path checked");
+                let name = sources[index].name.clone();
+                sources[index] =
+                    source_from_bytes(&name, text.as_bytes(), FileFormat::from_path(path));
+            }
+            let after = check(sources, &options);
+            return Ok(status(&after, args.deny_warnings));
         }
         if let Err(error) = fix::write_all(&rewritten) {
             eprintln!("error: {error}; no file was changed");
-            return EXIT_USAGE;
+            return Ok(EXIT_USAGE);
         }
         if !rewritten.is_empty() {
             eprintln!(
@@ -132,7 +144,7 @@ pub fn run(args: &CheckArgs) -> u8 {
                     Ok(source) => sources.push(source),
                     Err(error) => {
                         eprintln!("error: {error}");
-                        return EXIT_USAGE;
+                        return Ok(EXIT_USAGE);
                     }
                 }
             }
@@ -161,10 +173,14 @@ pub fn run(args: &CheckArgs) -> u8 {
             output::human(&report, colour)
         }
     };
-    // A closed pipe (`| head`) is not an error of the check: stop writing quietly.
-    let _ = std::io::stdout().lock().write_all(text.as_bytes());
+    out.write_all(text.as_bytes())?;
+    Ok(status(&report, args.deny_warnings))
+}
+
+/// 1 when the report has errors (or warnings, with `--deny-warnings`), else 0.
+fn status(report: &couplet::check::Report, deny_warnings: bool) -> u8 {
     let failing = report.findings.iter().any(|f| {
-        f.severity() == Severity::Error || (args.deny_warnings && f.severity() == Severity::Warning)
+        f.severity() == Severity::Error || (deny_warnings && f.severity() == Severity::Warning)
     });
     if failing { EXIT_FINDINGS } else { EXIT_OK }
 }

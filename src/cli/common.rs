@@ -1,5 +1,6 @@
 //! Pieces the table, cell and derive commands share: loading tables, naming couples, scales.
 
+use super::failure::Failure;
 use super::{EXIT_FINDINGS, EXIT_USAGE};
 use couplet::scale::Scale;
 use couplet::table::{Couple, CoupleFile, LookupError, Medium, Origin, Table};
@@ -14,12 +15,14 @@ pub struct TableArgs {
     /// already present replaces the earlier couple
     #[arg(long = "table", value_name = "FILE")]
     pub tables: Vec<PathBuf>,
-    /// Print potentials against this reference: she, rhe (with --ph), sce, ag-agcl-sat-kcl,
-    /// ag-agcl-3m-kcl, hg-hgo-1m-koh, hg-hg2so4-sat-k2so4, li-li+, … (see docs)
+    /// Reference scale of the electrode potentials printed and of those typed with
+    /// --cathode-e0, --anode-e0 or --e0: she, rhe (with --ph), sce, ag-agcl-sat-kcl,
+    /// ag-agcl-3m-kcl, hg-hgo-1m-koh, hg-hg2so4-sat-k2so4, li-li+, … (see docs); E°cell does not
+    /// depend on it
     #[arg(long, value_name = "SCALE", default_value = "she")]
     pub scale: String,
-    /// pH of the solution, for --scale rhe
-    #[arg(long)]
+    /// pH of the solution (−2 to 16), for --scale rhe and for a(H+) in Q
+    #[arg(long, value_parser = super::units::ph, allow_hyphen_values = true)]
     pub ph: Option<f64>,
     /// Also read formation data (the CSV layout of data/formation.csv); repeatable; a row for
     /// a species and phase already present replaces it. Used for couples no table lists
@@ -37,113 +40,108 @@ pub fn formation_data() -> &'static FormationData {
 }
 
 /// Built-in formation data plus the user's files; notes about replaced rows to standard error.
-pub fn load_formation(paths: &[PathBuf]) -> Result<&'static FormationData, u8> {
+pub fn load_formation(paths: &[PathBuf]) -> Result<&'static FormationData, Failure> {
     if paths.is_empty() {
         return Ok(formation_data());
     }
     let mut data = FormationData::builtin().clone();
     for path in paths {
         let origin = couplet::thermo::DataOrigin::File(path.clone());
-        let added = std::fs::read_to_string(path)
+        std::fs::read_to_string(path)
             .map_err(|e| format!("{}: cannot read: {e}", path.display()))
-            .and_then(|text| data.add_csv(&text, origin).map_err(|e| e.to_string()));
-        if let Err(error) = added {
-            eprintln!("error: formation data {error}");
-            return Err(EXIT_USAGE);
-        }
+            .and_then(|text| data.add_csv(&text, origin).map_err(|e| e.to_string()))
+            .map_err(|message| {
+                Failure::new("file", EXIT_USAGE, format!("formation data {message}"))
+            })?;
     }
     for note in data.replaced() {
-        eprintln!("note: {note}");
+        say!("note: {note}");
     }
     Ok(FORMATION.get_or_init(|| data))
 }
 
 /// Built-in table plus the user's files; notes about replaced ids go to standard error.
-pub fn load_table(args: &TableArgs) -> Result<Table, u8> {
+pub fn load_table(args: &TableArgs) -> Result<Table, Failure> {
     load_formation(&args.formation)?;
     let mut table = Table::builtin();
     for path in &args.tables {
-        let file = match CoupleFile::read(path) {
-            Ok(file) => file,
-            Err(error) => {
-                eprintln!("error: cannot read {}: {error}", path.display());
-                return Err(EXIT_USAGE);
-            }
-        };
+        let file = CoupleFile::read(path).map_err(|error| {
+            Failure::new(
+                "file",
+                EXIT_USAGE,
+                format!("cannot read {}: {error}", path.display()),
+            )
+        })?;
         if let Err(error) = table.add_file(&file, Origin::File(path.clone())) {
-            eprintln!("{}", error.render());
-            return Err(EXIT_FINDINGS);
+            return Err(
+                Failure::new("table", EXIT_FINDINGS, error.to_string()).shown_as(error.render())
+            );
         }
     }
     for replaced in table.overrides() {
-        eprintln!(
+        say!(
             "note: couple '{}' from {} replaces the one from {}",
-            replaced.id, replaced.by, replaced.replaced
+            replaced.id,
+            replaced.by,
+            replaced.replaced
         );
     }
     Ok(table)
 }
 
-/// The scale asked for, or an error printed.
-pub fn scale(args: &TableArgs) -> Result<Scale, u8> {
-    Scale::from_name(&args.scale, args.ph).map_err(|error| {
-        eprintln!("error: {error}");
-        EXIT_USAGE
-    })
+/// The scale asked for.
+pub fn scale(args: &TableArgs) -> Result<Scale, Failure> {
+    Scale::from_name(&args.scale, args.ph).map_err(|error| Failure::usage(error.to_string()))
 }
 
-/// Prints why a lookup failed and returns the exit status.
-pub fn report_lookup(error: &LookupError) -> u8 {
-    match error {
-        LookupError::Notation(e) => {
-            eprintln!("{}", e.render());
-            super::parse::error_status(e)
+/// The scale of a command whose only use of `--ph` is the RHE: a pH given with another scale
+/// would be ignored, so it is refused.
+pub fn scale_without_quotient(args: &TableArgs) -> Result<Scale, Failure> {
+    let scale = scale(args)?;
+    if args.ph.is_some() && !matches!(scale, Scale::Rhe { .. }) {
+        return Err(Failure::usage(
+            "--ph is used here only by --scale rhe: give --scale rhe or leave out --ph",
+        ));
+    }
+    Ok(scale)
+}
+
+/// What a potential on RHE means, for the line that names the scale (empty on other scales).
+pub fn rhe_meaning(scale: &Scale) -> &'static str {
+    match scale {
+        Scale::Rhe { .. } => {
+            ": each couple in the solution of that pH (other species at unit activity) against the RHE in the same solution"
         }
-        LookupError::Ambiguous { candidates, .. } => {
-            eprintln!("error: {error}");
-            for c in candidates {
-                eprintln!(
-                    "  {:<24} {:>8.4} V  {:<7}  {}",
-                    c.id.as_deref().unwrap_or("(no id)"),
-                    c.e0_volts,
-                    c.medium.name(),
-                    c.reaction
-                );
-            }
-            EXIT_FINDINGS
-        }
-        _ => {
-            eprintln!("error: {error}");
-            EXIT_FINDINGS
-        }
+        _ => "",
     }
 }
 
 /// A couple named by id, `Ox/Red` or half-reaction; a typed half-reaction with its own E°
-/// (`e0`) need not be in the table.
+/// (`e0`, read on `scale`) need not be in the table.
 pub fn resolve(
     table: &Table,
     query: &str,
-    e0_volts: Option<f64>,
+    e0: Option<(f64, &Scale)>,
     medium: Option<Medium>,
-) -> Result<Couple, u8> {
-    if let Some(e0) = e0_volts {
+) -> Result<Couple, Failure> {
+    if let Some((e0, scale)) = e0 {
         if !couplet::table::is_reaction_text(query) {
-            eprintln!(
-                "error: a potential given on the command line needs a typed half-reaction, not '{query}'"
-            );
-            return Err(EXIT_USAGE);
+            return Err(Failure::usage(format!(
+                "a potential given on the command line needs a typed half-reaction, not '{query}'"
+            )));
         }
-        return Couple::new(query, e0).map_err(|error| {
-            match &error {
-                couplet::table::CoupleError::Notation(e) => eprintln!("{}", e.render()),
-                _ => eprintln!("error: {error}"),
+        let typed = Couple::new(query, e0).map(|mut couple| {
+            if *scale != Scale::She {
+                couple.e0_volts = scale.couple_e0_vs_she(&couple.reaction, e0);
+                say!(
+                    "note: the E° typed for '{query}' is read vs {}: {e0} V there is {} V vs SHE",
+                    scale.label(),
+                    couplet::figures::significant(couple.e0_volts, 5)
+                );
             }
-            match error {
-                couplet::table::CoupleError::Notation(e) => super::parse::error_status(&e),
-                _ => EXIT_FINDINGS,
-            }
+            couple
         });
+        return typed.map_err(|error| Failure::from(&error));
     }
     match table.find(query, medium) {
         Ok(couple) => Ok(couple.clone()),
@@ -151,21 +149,18 @@ pub fn resolve(
         Err(not_found @ LookupError::NotFound { .. }) => {
             match couple_from_data(query, medium, formation_data()) {
                 Ok(found) => {
-                    eprintln!(
-                        "note: no table lists '{query}'; its E° ({:+.4} V vs SHE) is computed from formation data: {}",
-                        found.couple.e0_volts,
+                    say!(
+                        "note: no table lists '{query}'; its E° ({} V vs SHE) is computed from formation data: {}",
+                        couplet::figures::significant(found.couple.e0_volts, 5),
                         found.thermo.rows_used().join("; ")
                     );
                     Ok(found.couple)
                 }
-                Err(why) => {
-                    let status = report_lookup(&not_found);
-                    eprintln!("  nor from formation data: {why}");
-                    Err(status)
-                }
+                Err(why) => Err(Failure::from(&not_found)
+                    .with_detail(&format!("  nor from formation data: {why}"))),
             }
         }
-        Err(error) => Err(report_lookup(&error)),
+        Err(error) => Err(Failure::from(&error)),
     }
 }
 
@@ -179,11 +174,12 @@ pub fn medium_arg(text: &str) -> Result<Medium, String> {
 /// the medium both halves are written for.
 #[derive(clap::Args)]
 pub struct ElectrodeArgs {
-    /// E° (V vs SHE) of a typed cathode half-reaction that is not in the table
-    #[arg(long = "cathode-e0", allow_hyphen_values = true)]
+    /// E° in V of a typed cathode half-reaction that is not in the table, on the --scale
+    /// (vs SHE unless --scale says otherwise)
+    #[arg(long = "cathode-e0", allow_hyphen_values = true, value_parser = super::units::volts)]
     pub cathode_e0: Option<f64>,
-    /// E° (V vs SHE) of a typed anode half-reaction that is not in the table
-    #[arg(long = "anode-e0", allow_hyphen_values = true)]
+    /// E° in V of a typed anode half-reaction that is not in the table, on the --scale
+    #[arg(long = "anode-e0", allow_hyphen_values = true, value_parser = super::units::volts)]
     pub anode_e0: Option<f64>,
     /// Write both halves for this solution: acid or base (converts with Kw)
     #[arg(long, value_parser = medium_arg)]
@@ -197,6 +193,7 @@ impl ElectrodeArgs {
         cathode: &'a str,
         anode: &'a str,
         temperature_kelvin: f64,
+        scale: &'a Scale,
     ) -> CellRequest<'a> {
         CellRequest {
             cathode,
@@ -205,6 +202,7 @@ impl ElectrodeArgs {
             anode_e0: self.anode_e0,
             medium: self.medium,
             temperature_kelvin,
+            scale,
         }
     }
 }
@@ -217,19 +215,31 @@ pub struct CellRequest<'a> {
     pub anode_e0: Option<f64>,
     pub medium: Option<Medium>,
     pub temperature_kelvin: f64,
+    /// The scale typed potentials are on.
+    pub scale: &'a Scale,
 }
 
-/// Looks both electrodes up and combines them into a cell; on failure the error has been
-/// reported and the exit status is returned.
-pub fn build_cell(table: &Table, request: &CellRequest<'_>) -> Result<couplet::cell::Cell, u8> {
-    let cathode = resolve(table, request.cathode, request.cathode_e0, request.medium)?;
-    let anode = resolve(table, request.anode, request.anode_e0, request.medium)?;
+/// Looks both electrodes up and combines them into a cell.
+pub fn build_cell(
+    table: &Table,
+    request: &CellRequest<'_>,
+) -> Result<couplet::cell::Cell, Failure> {
+    let typed = |e0: Option<f64>| e0.map(|e0| (e0, request.scale));
+    let cathode = resolve(
+        table,
+        request.cathode,
+        typed(request.cathode_e0),
+        request.medium,
+    )?;
+    let anode = resolve(
+        table,
+        request.anode,
+        typed(request.anode_e0),
+        request.medium,
+    )?;
     let options = couplet::cell::CellOptions {
         temperature_kelvin: request.temperature_kelvin,
         medium: request.medium,
     };
-    couplet::cell::combine(&cathode, &anode, options).map_err(|error| {
-        eprintln!("error: {error}");
-        EXIT_FINDINGS
-    })
+    couplet::cell::combine(&cathode, &anode, options).map_err(|error| Failure::from(&error))
 }

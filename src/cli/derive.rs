@@ -1,10 +1,12 @@
 //! `couplet derive`: a new couple from couples that share species, by adding free energies.
 
-use super::common::{TableArgs, load_table, resolve, scale};
-use super::{EXIT_FINDINGS, EXIT_OK, print_json};
+use super::common::{TableArgs, load_table, resolve, scale_without_quotient};
+use super::failure::Failure;
+use super::{EXIT_OK, print_json};
 use couplet::cell::derive;
 use couplet::table::Couple;
 use serde_json::json;
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct DeriveArgs {
@@ -18,69 +20,69 @@ pub struct DeriveArgs {
     json: bool,
 }
 
-fn n_of(couple: &Couple) -> i64 {
-    couple
-        .electrons()
-        .to_integer()
-        .to_string()
-        .parse()
-        .unwrap_or(0)
+/// Electrons of a couple, exact (a derived couple may have a fractional count).
+fn n_of(couple: &Couple) -> serde_json::Value {
+    super::exact_json(&couple.electrons())
 }
 
-pub fn run(args: &DeriveArgs) -> u8 {
+pub fn run(args: &DeriveArgs, out: &mut dyn Write) -> io::Result<u8> {
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
-    let scale = match scale(&args.table) {
+    let scale = match scale_without_quotient(&args.table) {
         Ok(scale) => scale,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
     let mut couples = Vec::new();
     for query in &args.couples {
         match resolve(&table, query, None, None) {
             Ok(c) => couples.push(c),
-            Err(status) => return status,
+            Err(failure) => return failure.report(out, args.json),
         }
     }
     let derived = match derive(&couples) {
         Ok(d) => d,
         Err(error) => {
-            eprintln!("error: {error}");
-            return EXIT_FINDINGS;
+            return Failure::from(&error).report(out, args.json);
         }
     };
     let couple = &derived.couple;
     if args.json {
-        print_json(&json!({
-            "reaction": couple.reaction.to_string(),
-            "n": n_of(couple),
-            "e0_V": scale.from_she(couple.e0_volts),
-            "from": derived.from.iter().map(|(c, _)| json!({
-                "reaction": c.reaction.to_string(),
-                "n": n_of(c),
-                "e0_V": scale.from_she(c.e0_volts),
-            })).collect::<Vec<_>>(),
-        }));
-        return EXIT_OK;
+        print_json(
+            out,
+            &json!({
+                "reaction": couple.reaction.to_string(),
+                "n": n_of(couple),
+                "e0_V": scale.couple_potential(&couple.reaction, couple.e0_volts),
+                "from": derived.from.iter().map(|(c, _)| json!({
+                    "reaction": c.reaction.to_string(),
+                    "n": n_of(c),
+                    "e0_V": scale.couple_potential(&c.reaction, c.e0_volts),
+                })).collect::<Vec<_>>(),
+            }),
+        )?;
+        return Ok(EXIT_OK);
     }
-    println!(
+    writeln!(
+        out,
         "{}   E° = {:+.4} V vs {} (n = {})",
         couple.reaction,
-        scale.from_she(couple.e0_volts),
+        scale.couple_potential(&couple.reaction, couple.e0_volts),
         scale.label(),
-        n_of(couple)
-    );
-    println!("from free energies, E° = Σ(k·n·E°)/n:");
+        couple.electrons()
+    )?;
+    writeln!(out, "from free energies, E° = Σ(k·n·E°)/n:")?;
     for (c, multiple) in &derived.from {
-        println!(
+        writeln!(
+            out,
             "  {:>5} × ({})   n = {}, E° = {:+.4} V  [{}]",
             multiple.to_string(),
             c.reaction,
-            n_of(c),
-            c.e0_volts,
+            c.electrons(),
+            scale.couple_potential(&c.reaction, c.e0_volts),
             c.label()
-        );
+        )?;
     }
-    EXIT_OK
+    Ok(EXIT_OK)
 }

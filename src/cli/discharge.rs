@@ -1,16 +1,19 @@
 //! `couplet discharge`: open-circuit voltage of a cell along its discharge, from initial
 //! amounts, with CSV and SVG output written atomically.
 
-use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table};
-use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale_without_quotient};
+use super::failure::Failure;
+use super::units::{refuse_repeats, species_numbers, species_value};
+use super::{EXIT_OK, EXIT_USAGE, print_json};
 use couplet::activity::{ActivityModel, GammaModel};
 use couplet::cell::caution;
-use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
 use couplet::discharge::{Amount, Discharge, DischargeSpec, discharge};
-use couplet::notation::{Arrow, Species, Style, parse_species};
+use couplet::figures::significant;
+use couplet::notation::{Arrow, Species, Style};
 use couplet::output::svg::{DischargeAxis, discharge_plot, render};
 use couplet::output::{csv::discharge_csv, write_atomically};
 use serde_json::json;
+use std::io::{self, Write};
 use std::path::PathBuf;
 
 #[derive(clap::Args)]
@@ -39,11 +42,12 @@ pub struct DischargeArgs {
     /// Pressure of a gas in bar, GAS=BAR (air: O2=0.21); gases not given are at 1 bar
     #[arg(long = "pressure", value_name = "GAS=BAR")]
     pressures: Vec<String>,
-    /// Temperature in K
-    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    /// Temperature with its unit: 25C, 25°C, 298.15K; a bare number is kelvin and must be at
+    /// least 200; a warning outside 0–100 °C
+    #[arg(long, default_value = "298.15K", value_parser = super::units::temperature)]
     temperature: f64,
-    /// Steps from charged to the end (points = steps + 1)
-    #[arg(long, default_value_t = 100)]
+    /// Steps from charged to the end (points = steps + 1), 1 to 10000
+    #[arg(long, default_value_t = 100, value_parser = super::units::steps)]
     steps: usize,
     /// Write the curve as CSV (columns soc, charge_Ah, e_V, …)
     #[arg(long)]
@@ -61,43 +65,37 @@ pub struct DischargeArgs {
     json: bool,
 }
 
-fn split_pair<'a>(option: &str, item: &'a str) -> Result<(Species, &'a str), u8> {
-    let Some((name, value)) = item.rsplit_once('=') else {
-        eprintln!("error: {option} '{item}': expected SPECIES=VALUE");
-        return Err(EXIT_USAGE);
-    };
-    match parse_species(name.trim()) {
-        Ok(s) => Ok((s, value.trim())),
-        Err(e) => {
-            eprintln!("error: {option} '{item}': {}", e.message);
-            Err(EXIT_USAGE)
-        }
-    }
-}
-
-fn number(option: &str, item: &str, text: &str) -> Result<f64, u8> {
-    text.parse::<f64>().map_err(|_| {
-        eprintln!("error: {option} '{item}': '{text}' is not a number");
-        EXIT_USAGE
-    })
-}
-
-fn amounts(items: &[String]) -> Result<Vec<(Species, Amount)>, u8> {
+fn amounts(items: &[String]) -> Result<Vec<(Species, Amount)>, String> {
     let mut out = Vec::new();
     for item in items {
-        let (species, value) = split_pair("--amount", item)?;
-        let amount = if let Some(grams) = value.strip_suffix('g') {
-            Amount::Grams(number("--amount", item, grams.trim())?)
-        } else {
-            let mol = value.strip_suffix("mol").unwrap_or(value).trim();
-            Amount::Moles(number("--amount", item, mol)?)
+        let (species, value) = species_value("--amount", item)?;
+        let (digits, grams) = match value.strip_suffix('g') {
+            Some(digits) => (digits, true),
+            None => (value.strip_suffix("mol").unwrap_or(value), false),
         };
-        out.push((species, amount));
+        let number: f64 = digits
+            .trim()
+            .parse()
+            .map_err(|_| format!("--amount {item}: '{value}' is not a number of mol or grams"))?;
+        out.push((
+            species,
+            if grams {
+                Amount::Grams(number)
+            } else {
+                Amount::Moles(number)
+            },
+        ));
     }
+    refuse_repeats(out.iter().map(|(s, _)| ("--amount", s)))?;
     Ok(out)
 }
 
-fn json_of(curve: &Discharge) -> serde_json::Value {
+/// The charge the energy integral covers: the last point computed.
+fn energy_charge_amp_hours(curve: &Discharge) -> f64 {
+    curve.points.last().map_or(0.0, |p| p.charge_amp_hours)
+}
+
+fn json_of(curve: &Discharge, caution: Option<String>) -> serde_json::Value {
     json!({
         "reaction": curve.reaction,
         "n": curve.electrons,
@@ -109,7 +107,10 @@ fn json_of(curve: &Discharge) -> serde_json::Value {
         "capacity_Ah": curve.capacity_amp_hours,
         "energy_Wh": curve.energy_watt_hours,
         "stopped": curve.stopped,
+        // The charge the energy covers: capacity_Ah unless the curve stopped early.
+        "energy_charge_Ah": energy_charge_amp_hours(curve),
         "assumptions": curve.assumptions,
+        "caution": caution,
         "solutes": curve.solutes.iter().map(|s| s.ascii()).collect::<Vec<_>>(),
         "points": curve.points.iter().map(|p| json!({
             "soc": p.state_of_charge,
@@ -124,19 +125,25 @@ fn json_of(curve: &Discharge) -> serde_json::Value {
     })
 }
 
-fn print_text(curve: &Discharge) {
-    println!("net       {}", curve.reaction);
-    println!(
+fn print_text(out: &mut dyn Write, curve: &Discharge) -> io::Result<()> {
+    writeln!(out, "net       {}", curve.reaction)?;
+    writeln!(
+        out,
         "n         {}    E° {:+.4} V at {} K    γ model {}",
-        curve.electrons, curve.e0_volts, curve.temperature_kelvin, curve.gamma_model
-    );
-    println!(
+        curve.electrons,
+        curve.e0_volts,
+        significant(curve.temperature_kelvin, 6),
+        curve.gamma_model
+    )?;
+    writeln!(
+        out,
         "limiting  {} (runs out after {:.4} mol of reaction)",
         curve.limiting.ascii(),
         curve.extent_end_mol
-    );
+    )?;
     if !curve.excess.is_empty() {
-        println!(
+        writeln!(
+            out,
             "excess    {}",
             curve
                 .excess
@@ -144,71 +151,85 @@ fn print_text(curve: &Discharge) {
                 .map(|s| s.ascii())
                 .collect::<Vec<_>>()
                 .join(", ")
-        );
+        )?;
     }
-    println!("{:>6} {:>12} {:>10}", "soc", "charge Ah", "E V");
+    writeln!(out, "{:>6} {:>12} {:>10}", "soc", "charge Ah", "E V")?;
     let every = (curve.points.len() / 10).max(1);
     for (i, p) in curve.points.iter().enumerate() {
         if i % every == 0 || i + 1 == curve.points.len() {
-            println!(
+            writeln!(
+                out,
                 "{:>6.3} {:>12.4} {:>10.4}",
                 p.state_of_charge, p.charge_amp_hours, p.e_volts
-            );
+            )?;
         }
     }
-    let mean = if curve.capacity_amp_hours > 0.0 {
-        curve.energy_watt_hours / curve.points.last().map_or(1.0, |p| p.charge_amp_hours)
+    let covered = energy_charge_amp_hours(curve);
+    let mean = if covered > 0.0 {
+        curve.energy_watt_hours / covered
     } else {
         f64::NAN
     };
-    println!(
-        "capacity  {:.4} Ah    energy {:.4} Wh    mean E {:.4} V",
-        curve.capacity_amp_hours, curve.energy_watt_hours, mean
-    );
+    let figure = |x: f64| significant(x, 5);
+    writeln!(
+        out,
+        "capacity  {} Ah    energy {} Wh    mean E {} V",
+        figure(curve.capacity_amp_hours),
+        figure(curve.energy_watt_hours),
+        figure(mean)
+    )?;
+    if curve.stopped.is_some() {
+        writeln!(
+            out,
+            "note: energy and mean E cover the computed curve only, the first {} Ah of {} Ah: the rest has no voltage (below)",
+            figure(covered),
+            figure(curve.capacity_amp_hours)
+        )?;
+    }
     if let Some(reason) = &curve.stopped {
-        println!("note: {reason}");
+        writeln!(out, "note: {reason}")?;
     }
     for a in &curve.assumptions {
-        println!("assumed: {a}");
+        writeln!(out, "assumed: {a}")?;
     }
-    println!("open-circuit (equilibrium) voltages: no overpotential, resistance or self-discharge");
+    writeln!(
+        out,
+        "open-circuit (equilibrium) voltages: no overpotential, resistance or self-discharge"
+    )
 }
 
-pub fn run(args: &DischargeArgs) -> u8 {
+pub fn run(args: &DischargeArgs, out: &mut dyn Write) -> io::Result<u8> {
     let Some(model) = GammaModel::from_name(&args.gamma) else {
-        eprintln!(
-            "error: --gamma must be ideal, debye-huckel, extended, davies or table, not '{}'",
+        return Failure::usage(format!(
+            "--gamma must be ideal, debye-huckel, extended, davies or table, not '{}'",
             args.gamma
-        );
-        return EXIT_USAGE;
+        ))
+        .report(out, args.json);
     };
-    let amounts = match amounts(&args.amounts) {
-        Ok(a) => a,
-        Err(status) => return status,
-    };
-    let mut pressures = Vec::new();
-    for item in &args.pressures {
-        let (gas, value) = match split_pair("--pressure", item) {
-            Ok(p) => p,
-            Err(status) => return status,
-        };
-        match number("--pressure", item, value) {
-            Ok(bar) => pressures.push((gas, bar)),
-            Err(status) => return status,
+    let given = amounts(&args.amounts)
+        .and_then(|amounts| Ok((amounts, species_numbers("--pressure", &args.pressures)?)));
+    let (amounts, pressures) = match given {
+        Ok(given) => given,
+        Err(message) => {
+            return Failure::usage(message).report(out, args.json);
         }
-    }
+    };
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
+    };
+    let scale = match scale_without_quotient(&args.table) {
+        Ok(scale) => scale,
+        Err(failure) => return failure.report(out, args.json),
     };
     let cell = match build_cell(
         &table,
         &args
             .electrodes
-            .cell_request(&args.cathode, &args.anode, args.temperature),
+            .cell_request(&args.cathode, &args.anode, args.temperature, &scale),
     ) {
         Ok(cell) => cell,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
     let spec = DischargeSpec {
         amounts,
@@ -223,8 +244,7 @@ pub fn run(args: &DischargeArgs) -> u8 {
     let curve = match discharge(&cell, &spec) {
         Ok(curve) => curve,
         Err(error) => {
-            eprintln!("error: {error}");
-            return EXIT_FINDINGS;
+            return Failure::from(&error).report(out, args.json);
         }
     };
     // Render everything before writing anything, so a rendering fault writes no file.
@@ -247,8 +267,7 @@ pub fn run(args: &DischargeArgs) -> u8 {
             )) {
                 Ok(text) => Some(text),
                 Err(error) => {
-                    eprintln!("error: {error}");
-                    return EXIT_FINDINGS;
+                    return Failure::chemistry(error.to_string()).report(out, args.json);
                 }
             }
         }
@@ -264,17 +283,21 @@ pub fn run(args: &DischargeArgs) -> u8 {
         if let (Some(path), Some(text)) = (path, text)
             && let Err(error) = write_atomically(path, text.as_bytes())
         {
-            eprintln!("error: cannot write {}: {error}", path.display());
-            return EXIT_USAGE;
+            return Failure::new(
+                "file",
+                EXIT_USAGE,
+                format!("cannot write {}: {error}", path.display()),
+            )
+            .report(out, args.json);
         }
     }
     if args.json {
-        print_json(&json_of(&curve));
+        print_json(out, &json_of(&curve, caution(&cell.net)))?;
     } else {
-        print_text(&curve);
+        print_text(out, &curve)?;
         if let Some(line) = caution(&cell.net) {
-            println!("{line}");
+            writeln!(out, "{line}")?;
         }
     }
-    EXIT_OK
+    Ok(EXIT_OK)
 }

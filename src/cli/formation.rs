@@ -2,11 +2,13 @@
 //! a species as written would take and its source.
 
 use super::common::load_formation;
+use super::failure::Failure;
 use super::{EXIT_FINDINGS, EXIT_OK, print_json};
 use couplet::notation::parse_species;
 use couplet::thermo::{FormationData, FormationRow};
 use serde_json::{Value, json};
-use std::fmt::Write;
+use std::fmt::Write as _;
+use std::io::{self, Write};
 use std::path::PathBuf;
 
 #[derive(clap::Args)]
@@ -44,10 +46,10 @@ fn row_json(row: &FormationRow, used: bool) -> Value {
     })
 }
 
-pub fn run(args: &FormationArgs) -> u8 {
+pub fn run(args: &FormationArgs, out_stream: &mut dyn Write) -> io::Result<u8> {
     let data = match load_formation(&args.formation) {
         Ok(data) => data,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out_stream, args.json),
     };
     let mut status = EXIT_OK;
     let mut out = String::new();
@@ -55,10 +57,7 @@ pub fn run(args: &FormationArgs) -> u8 {
     for text in &args.species {
         let species = match parse_species(text) {
             Ok(species) => species,
-            Err(error) => {
-                eprintln!("{}", error.render());
-                return super::parse::error_status(&error);
-            }
+            Err(error) => return Failure::from(&error).report(out_stream, args.json),
         };
         let rows = data.rows_for(&species);
         let resolved = data.resolve(&species);
@@ -78,11 +77,11 @@ pub fn run(args: &FormationArgs) -> u8 {
         human(&mut out, text, &rows, &resolved, data);
     }
     if args.json {
-        print_json(&json!({"species": results}));
+        print_json(out_stream, &json!({"species": results}))?;
     } else {
-        print!("{out}");
+        out_stream.write_all(out.as_bytes())?;
     }
-    status
+    Ok(status)
 }
 
 fn human(

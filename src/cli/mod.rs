@@ -1,6 +1,15 @@
 //! Command-line front end: argument definitions and dispatch. Each command lives in its own
 //! file and only calls the library and renders what it returns.
 
+/// Writes a line to standard error. Unlike `eprintln!`, a failed write (`2> /dev/full`) is
+/// ignored instead of a panic: there is nowhere left to report it.
+macro_rules! say {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stderr(), $($arg)*);
+    }};
+}
+
 mod balance;
 mod capacity;
 mod cell;
@@ -8,15 +17,17 @@ mod check;
 mod common;
 mod derive;
 mod discharge;
+mod failure;
 mod formation;
 mod nernst;
 mod oxidation;
 mod parse;
 mod table;
 mod thermo;
+mod units;
 
 use clap::{Parser, Subcommand};
-use std::io::Read;
+use std::io::{self, Read, Write};
 use std::process::ExitCode;
 
 /// Exit status: everything went as asked.
@@ -25,6 +36,10 @@ pub const EXIT_OK: u8 = 0;
 pub const EXIT_FINDINGS: u8 = 1;
 /// Exit status: usage error, unreadable input, or a syntax error.
 pub const EXIT_USAGE: u8 = 2;
+
+/// `--scale` of the commands that print no electrode potential: there it only says what the
+/// typed ones are on.
+const TYPED_SCALE_HELP: &str = "Reference scale of the potentials typed with --cathode-e0 and --anode-e0 (she, rhe with --ph, sce, li-li+, …; see docs); the cell voltage does not depend on it";
 
 #[derive(Parser)]
 #[command(
@@ -65,7 +80,7 @@ enum Command {
     Table(table::TableCommandArgs),
     /// Combine a cathode and an anode couple: net reaction, n, E°cell, ΔG°, K, temperature
     #[command(
-        after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --activity Cu2+=0.1 --activity Zn2+=0.001\n  couplet cell --cathode O2/OH- --anode ZnO/Zn --medium base --temperature 310 --json\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --emit python"
+        after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --activity Cu2+=0.1 --activity Zn2+=0.001\n  couplet cell --cathode O2/OH- --anode ZnO/Zn --medium base --temperature 37C --json\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --emit python"
     )]
     Cell(cell::CellArgs),
     /// A new couple from couples that share species, by adding free energies
@@ -81,11 +96,15 @@ enum Command {
     #[command(
         after_help = "Examples:\n  couplet capacity Zn2+/Zn\n  couplet capacity --cathode PbO2/PbSO4 --anode PbSO4/Pb --basis with-electrolyte"
     )]
+    #[command(mut_arg("scale", |arg| arg.help(TYPED_SCALE_HELP)))]
+    #[command(mut_arg("ph", |arg| arg.help("pH of the solution (−2 to 16), for --scale rhe")))]
     Capacity(capacity::CapacityArgs),
     /// Open-circuit voltage along a discharge from initial amounts, with CSV and SVG output
     #[command(
         after_help = "Examples:\n  couplet discharge --cathode PbO2/PbSO4 --anode PbSO4/Pb --amount PbO2=1 --amount Pb=1 --amount H2SO4=4 --solvent-kg 0.8 --gamma table --csv lead.csv --svg lead.svg"
     )]
+    #[command(mut_arg("scale", |arg| arg.help(TYPED_SCALE_HELP)))]
+    #[command(mut_arg("ph", |arg| arg.help("pH of the solution (−2 to 16), for --scale rhe")))]
     Discharge(discharge::DischargeArgs),
     /// Validate couple files (TOML or CSV) for CI: syntax, chemistry, numbers, table consistency
     #[command(
@@ -99,7 +118,7 @@ enum Command {
     Formation(formation::FormationArgs),
     /// ΔrG°, ΔrH°, ΔrS°, E°, dE°/dT and E°(T) of any reaction or half-reaction from formation data
     #[command(
-        after_help = "Examples:\n  couplet thermo 'PbO2 + Pb + 4 H+ + 2 SO4^2- -> 2 PbSO4 + 2 H2O'\n  couplet thermo SnO2/Sn\n  couplet thermo --medium base 'Ag2O + Zn -> Ag + ZnO' --temperature 318.15\n  couplet thermo --json 'S + 2 H+ + 2 e- -> H2S(g)'"
+        after_help = "Examples:\n  couplet thermo 'PbO2 + Pb + 4 H+ + 2 SO4^2- -> 2 PbSO4 + 2 H2O'\n  couplet thermo SnO2/Sn\n  couplet thermo --medium base 'Ag2O + Zn -> Ag + ZnO' --temperature 45C\n  couplet thermo --json 'S + 2 H+ + 2 e- -> H2S(g)'"
     )]
     Thermo(thermo::ThermoArgs),
 }
@@ -109,29 +128,96 @@ pub fn run() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(cli) => cli,
         Err(error) => {
-            let _ = error.print();
-            return ExitCode::from(if error.use_stderr() {
+            // Help and version go to standard output: a failed write of them is an error too,
+            // a closed pipe is not.
+            let printed = error.print();
+            let failed = match printed {
+                Err(e) if e.kind() != io::ErrorKind::BrokenPipe => {
+                    let _ = writeln!(io::stderr(), "error: cannot write the help: {e}");
+                    true
+                }
+                _ => false,
+            };
+            return ExitCode::from(if error.use_stderr() || failed {
                 EXIT_USAGE
             } else {
                 EXIT_OK
             });
         }
     };
-    let status = match cli.command {
-        Command::Parse(args) => parse::run(&args),
-        Command::Balance(args) => balance::run(&args),
-        Command::Table(args) => table::run(&args),
-        Command::Cell(args) => cell::run(&args),
-        Command::Derive(args) => derive::run(&args),
-        Command::Oxidation(args) => oxidation::run(&args),
-        Command::Capacity(args) => capacity::run(&args),
-        Command::Discharge(args) => discharge::run(&args),
-        Command::PhLine(args) => nernst::run_ph_line(&args),
-        Command::Check(args) => check::run(&args),
-        Command::Formation(args) => formation::run(&args),
-        Command::Thermo(args) => thermo::run(&args),
-    };
-    ExitCode::from(status)
+    let mut out = io::BufWriter::new(Stdout::default());
+    let result = dispatch(cli.command, &mut out).and_then(|status| {
+        out.flush()?;
+        Ok(status)
+    });
+    match result {
+        Ok(status) => ExitCode::from(status),
+        Err(error) => {
+            // Whatever was buffered cannot be written either; drop it without a second error.
+            let _ = out.into_parts();
+            let _ = writeln!(
+                io::stderr(),
+                "error: cannot write to standard output: {error}"
+            );
+            ExitCode::from(EXIT_USAGE)
+        }
+    }
+}
+
+/// Runs one command, writing its output to `out`.
+fn dispatch(command: Command, out: &mut dyn Write) -> io::Result<u8> {
+    match command {
+        Command::Parse(args) => parse::run(&args, out),
+        Command::Balance(args) => balance::run(&args, out),
+        Command::Table(args) => table::run(&args, out),
+        Command::Cell(args) => cell::run(&args, out),
+        Command::Derive(args) => derive::run(&args, out),
+        Command::Oxidation(args) => oxidation::run(&args, out),
+        Command::Capacity(args) => capacity::run(&args, out),
+        Command::Discharge(args) => discharge::run(&args, out),
+        Command::PhLine(args) => nernst::run_ph_line(&args, out),
+        Command::Check(args) => check::run(&args, out),
+        Command::Formation(args) => formation::run(&args, out),
+        Command::Thermo(args) => thermo::run(&args, out),
+    }
+}
+
+/// Standard output as every command writes it. When the reader has gone (`| head`), the rest of
+/// the output is dropped quietly and the command still ends with its own exit status; every other
+/// write error (a full disk, `> /dev/full`) is returned, reported once and gives exit status 2.
+#[derive(Default)]
+struct Stdout {
+    closed: bool,
+}
+
+impl Stdout {
+    fn absorb<T>(&mut self, result: io::Result<T>, done: T) -> io::Result<T> {
+        match result {
+            Err(error) if error.kind() == io::ErrorKind::BrokenPipe => {
+                self.closed = true;
+                Ok(done)
+            }
+            other => other,
+        }
+    }
+}
+
+impl Write for Stdout {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        if self.closed {
+            return Ok(buf.len());
+        }
+        let result = io::stdout().lock().write(buf);
+        self.absorb(result, buf.len())
+    }
+
+    fn flush(&mut self) -> io::Result<()> {
+        if self.closed {
+            return Ok(());
+        }
+        let result = io::stdout().lock().flush();
+        self.absorb(result, ())
+    }
 }
 
 /// The text of an argument, or all of standard input when the argument is `-`.
@@ -146,10 +232,26 @@ pub fn argument_or_stdin(argument: &str) -> Result<String, String> {
     Ok(text)
 }
 
-/// Prints a JSON value on one line.
-pub fn print_json(value: &serde_json::Value) {
-    println!(
-        "{}",
-        serde_json::to_string(value).expect("JSON values always serialise")
-    );
+/// Writes a JSON value on one line.
+pub fn print_json(out: &mut dyn Write, value: &serde_json::Value) -> io::Result<()> {
+    serde_json::to_writer(&mut *out, value)?;
+    writeln!(out)
+}
+
+/// An exact number as every JSON output writes it: a JSON integer when whole, a string `"a/b"`
+/// otherwise (integers beyond 64 bits, which ordinary input never reaches, as a string of digits;
+/// `couplet balance` writes those as bare JSON integers).
+pub fn exact_json(value: &num_rational::BigRational) -> serde_json::Value {
+    if !value.is_integer() {
+        return serde_json::Value::String(value.to_string());
+    }
+    i64::try_from(value.numer()).map_or_else(
+        |_| serde_json::Value::String(value.numer().to_string()),
+        serde_json::Value::from,
+    )
+}
+
+/// [`exact_json`] of an integer.
+pub fn exact_integer_json(value: &num_bigint::BigInt) -> serde_json::Value {
+    exact_json(&num_rational::BigRational::from_integer(value.clone()))
 }

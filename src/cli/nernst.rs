@@ -2,16 +2,19 @@
 //! `couplet ph-line` command: reading `SPECIES=VALUE` arguments, rendering Q and E, and the
 //! JSON fields `quotient`, `e_V`, `gamma_model`, `assumptions`.
 
-use super::common::{TableArgs, load_table, medium_arg, resolve};
-use super::{EXIT_OK, EXIT_USAGE};
+use super::EXIT_OK;
+use super::common::{TableArgs, load_table, medium_arg, resolve, scale};
+use super::failure::Failure;
+use super::units::species_numbers;
 use couplet::activity::{ActivityModel, GammaModel, Solution};
-use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
 use couplet::export::{Emit, Export, ExportError, MolalityForm};
+use couplet::figures::{SIGNIFICANT, significant};
 use couplet::nernst::{CellModel, Conditions, Nernst, Standard, evaluate, ph_line};
-use couplet::notation::{Species, parse_species};
 use couplet::quotient::Basis;
+use couplet::scale::Scale;
 use couplet::table::Medium;
 use serde_json::{Value, json};
+use std::io::{self, Write};
 
 /// Composition, γ model and export options.
 #[derive(clap::Args, Clone, Debug, Default)]
@@ -43,23 +46,6 @@ pub struct NernstArgs {
     pub emit: Option<String>,
 }
 
-fn pairs(list: &[String], what: &str) -> Result<Vec<(Species, f64)>, String> {
-    list.iter()
-        .map(|item| {
-            let (name, value) = item
-                .rsplit_once('=')
-                .ok_or_else(|| format!("--{what} {item}: expected SPECIES=VALUE"))?;
-            let species = parse_species(name.trim())
-                .map_err(|e| format!("--{what} {item}: {}", e.message))?;
-            let value: f64 = value
-                .trim()
-                .parse()
-                .map_err(|_| format!("--{what} {item}: '{value}' is not a number"))?;
-            Ok((species, value))
-        })
-        .collect()
-}
-
 impl NernstArgs {
     /// The conditions these options describe.
     pub fn conditions(
@@ -74,15 +60,35 @@ impl NernstArgs {
             )
         })?;
         let (amounts, basis) = if self.molarities.is_empty() {
-            (pairs(&self.molalities, "molality")?, Basis::Molal)
+            (
+                species_numbers("--molality", &self.molalities)?,
+                Basis::Molal,
+            )
         } else {
-            (pairs(&self.molarities, "molarity")?, Basis::Molar)
+            (
+                species_numbers("--molarity", &self.molarities)?,
+                Basis::Molar,
+            )
         };
+        let activities = species_numbers("--activity", &self.activities)?;
+        let pressures = species_numbers("--pressure", &self.pressures)?;
+        let amount_option = if basis == Basis::Molal {
+            "--molality"
+        } else {
+            "--molarity"
+        };
+        super::units::refuse_repeats(
+            activities
+                .iter()
+                .map(|(s, _)| ("--activity", s))
+                .chain(amounts.iter().map(|(s, _)| (amount_option, s)))
+                .chain(pressures.iter().map(|(s, _)| ("--pressure", s))),
+        )?;
         Ok(Conditions {
             temperature_kelvin,
-            activities: pairs(&self.activities, "activity")?,
+            activities,
             amounts,
-            pressures_bar: pairs(&self.pressures, "pressure")?,
+            pressures_bar: pressures,
             ph,
             basis,
             model: ActivityModel {
@@ -156,7 +162,10 @@ pub fn text(result: &Nernst, temperature_kelvin: f64) -> String {
     match (result.q, result.e_volts) {
         (Some(q), Some(e)) => {
             out.push_str(&format!("Q        {q:.6e}\n"));
-            out.push_str(&format!("E        {e:+.4} V at {temperature_kelvin} K  (E = E° − (RT/nF)·ln Q)\n"));
+            out.push_str(&format!(
+                "E        {e:+.4} V at {} K  (E = E° − (RT/nF)·ln Q)\n",
+                significant(temperature_kelvin, 6)
+            ));
         }
         _ => out.push_str("E        needs a value for every species of Q (--activity, --molality, --pressure, --ph)\n"),
     }
@@ -198,7 +207,7 @@ pub fn emit(
     let molality = match MolalityForm::new(&result.quotient, conditions.model, solution.as_ref()) {
         Ok(form) => Some(form),
         Err(ExportError::NoClosedForm) => {
-            eprintln!("note: {}", ExportError::NoClosedForm);
+            say!("note: {}", ExportError::NoClosedForm);
             None
         }
         Err(error) => return Err(error.to_string()),
@@ -225,23 +234,25 @@ pub fn emit(
 pub struct PhLineArgs {
     /// A couple (id, Ox/Red) or a typed reduction half-reaction with --e0
     couple: String,
-    /// E° (V vs SHE) of a typed half-reaction that is not in the table
-    #[arg(long, allow_hyphen_values = true)]
+    /// E° in V of a typed half-reaction that is not in the table, on the --scale (vs SHE
+    /// unless --scale says otherwise; on rhe, the potential at pH 0)
+    #[arg(long, allow_hyphen_values = true, value_parser = super::units::volts)]
     e0: Option<f64>,
     /// Pick the acid or base form when the table has both
     #[arg(long, value_parser = medium_arg)]
     medium: Option<Medium>,
     /// First pH
-    #[arg(long, default_value_t = 0.0, allow_hyphen_values = true)]
+    #[arg(long, default_value_t = 0.0, allow_hyphen_values = true, value_parser = super::units::ph)]
     from: f64,
     /// Last pH
-    #[arg(long, default_value_t = 14.0, allow_hyphen_values = true)]
+    #[arg(long, default_value_t = 14.0, allow_hyphen_values = true, value_parser = super::units::ph)]
     to: f64,
     /// pH step
     #[arg(long, default_value_t = 1.0)]
     step: f64,
-    /// Temperature in K
-    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    /// Temperature with its unit: 25C, 25°C, 298.15K; a bare number is kelvin and must be at
+    /// least 200; a warning outside 0–100 °C
+    #[arg(long, default_value = "298.15K", value_parser = super::units::temperature)]
     temperature: f64,
     /// Other species: activities, molalities, pressures (unit activity when not given)
     #[command(flatten)]
@@ -250,15 +261,37 @@ pub struct PhLineArgs {
     table: TableArgs,
 }
 
-/// Prints `pH,E_V` rows (CSV) for the couple; assumptions go to standard error.
-pub fn run_ph_line(args: &PhLineArgs) -> u8 {
+/// Prints `pH,E_V` rows (CSV; `pH,E_V_vs_<scale>` on another scale) for the couple;
+/// assumptions go to standard error.
+pub fn run_ph_line(args: &PhLineArgs, out: &mut dyn Write) -> io::Result<u8> {
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, false),
     };
-    let couple = match resolve(&table, &args.couple, args.e0, args.medium) {
+    // On RHE each row is read against the hydrogen electrode at that row's pH.
+    let rhe = args.table.scale.trim().eq_ignore_ascii_case("rhe");
+    if args.table.ph.is_some() {
+        return Failure::usage(
+            "ph-line sweeps the pH with --from, --to and --step (and --scale rhe reads each row against the RHE at its own pH): leave out --ph",
+        )
+        .report(out, false);
+    }
+    let scale = if rhe {
+        Scale::Rhe { ph: 0.0 }
+    } else {
+        match scale(&args.table) {
+            Ok(scale) => scale,
+            Err(failure) => return failure.report(out, false),
+        }
+    };
+    let couple = match resolve(
+        &table,
+        &args.couple,
+        args.e0.map(|e0| (e0, &scale)),
+        args.medium,
+    ) {
         Ok(c) => c,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, false),
     };
     let standard = Standard {
         reaction: &couple.reaction,
@@ -269,30 +302,49 @@ pub fn run_ph_line(args: &PhLineArgs) -> u8 {
     let conditions = match args.nernst.conditions(None, args.temperature) {
         Ok(c) => c,
         Err(message) => {
-            eprintln!("error: {message}");
-            return EXIT_USAGE;
+            return Failure::usage(message).report(out, false);
         }
     };
     match ph_line(&standard, &conditions, args.from, args.to, args.step) {
         Ok((points, assumptions)) => {
-            println!("pH,E_V");
-            for p in points {
-                println!("{},{:.6}", p.ph, p.e_volts);
+            let label = if rhe { "RHE".to_owned() } else { scale.label() };
+            if scale == Scale::She {
+                writeln!(out, "pH,E_V")?;
+            } else {
+                writeln!(out, "pH,E_V_vs_{label}")?;
             }
-            eprintln!(
-                "couple: {} (E° {} V, {})",
+            for p in points {
+                let row_scale = if rhe {
+                    Scale::Rhe { ph: p.ph }
+                } else {
+                    scale.clone()
+                };
+                // pH steps are sums of floats: 0.1 + 0.2 is written 0.3.
+                writeln!(
+                    out,
+                    "{},{:.6}",
+                    significant(p.ph, 9),
+                    row_scale.from_she_at(p.e_volts, args.temperature)
+                )?;
+            }
+            say!(
+                "couple: {} (E° {} V vs SHE, {})",
                 couple.reaction,
-                couple.e0_volts,
+                significant(couple.e0_volts, SIGNIFICANT),
                 couple.source.as_deref().unwrap_or("given")
             );
-            for a in assumptions {
-                eprintln!("assumed: {a}");
+            if scale != Scale::She {
+                say!(
+                    "potentials vs {}{}",
+                    label,
+                    if rhe { " at each row's pH" } else { "" }
+                );
             }
-            EXIT_OK
+            for a in assumptions {
+                say!("assumed: {a}");
+            }
+            Ok(EXIT_OK)
         }
-        Err(error) => {
-            eprintln!("error: {error}");
-            EXIT_USAGE
-        }
+        Err(error) => Failure::usage(error.to_string()).report(out, false),
     }
 }

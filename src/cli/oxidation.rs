@@ -1,7 +1,7 @@
 //! `couplet oxidation`: the oxidation number of every element of a species, or the redox
 //! analysis of a balanced reaction or half-reaction.
 
-use super::parse::report_error;
+use super::failure::Failure;
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, argument_or_stdin, print_json};
 use couplet::notation::{Equation, Input, parse_input, parse_species};
 use couplet::oxidation::{
@@ -12,6 +12,7 @@ use couplet::reaction::Reaction;
 use num_rational::BigRational;
 use num_traits::{One, Zero};
 use serde_json::{Value, json};
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct OxidationArgs {
@@ -27,48 +28,49 @@ pub struct OxidationArgs {
     assume: Vec<String>,
 }
 
-pub fn run(args: &OxidationArgs) -> u8 {
+pub fn run(args: &OxidationArgs, out: &mut dyn Write) -> io::Result<u8> {
     let text = match argument_or_stdin(&args.formula) {
         Ok(text) => text,
-        Err(message) => return usage(&message, args.json),
+        Err(message) => return usage(out, &message, args.json),
     };
     let text = text.trim_end_matches(['\n', '\r']);
     if let Ok(Input::Equation(equation)) = parse_input(text) {
-        return run_reaction(&equation, args);
+        return run_reaction(out, &equation, args);
     }
     let mut pins = Vec::new();
     for given in &args.assume {
         match given.parse::<Pin>() {
             Ok(pin) => pins.push(pin),
-            Err(error) => return usage(&error.to_string(), args.json),
+            Err(error) => return usage(out, &error.to_string(), args.json),
         }
     }
     let species = match parse_species(text) {
         Ok(species) => species,
-        Err(error) => return report_error(&error, args.json),
+        Err(error) => return Failure::from(&error).report(out, args.json),
     };
     let table = match IonTable::builtin() {
         Ok(table) => table,
-        Err(error) => return failure(&OxidationError::IonTable(error), args.json),
+        Err(error) => return failure(out, &OxidationError::IonTable(error), args.json),
     };
     match table.oxidation_numbers(&species, &Options { pins }) {
         Ok(result) => {
             if args.json {
-                print_json(&result_json(&result));
+                print_json(out, &result_json(&result))?;
             } else {
-                print!("{}", result_table(&result));
+                write!(out, "{}", result_table(&result))?;
             }
-            EXIT_OK
+            Ok(EXIT_OK)
         }
-        Err(error) => failure(&error, args.json),
+        Err(error) => failure(out, &error, args.json),
     }
 }
 
-fn run_reaction(equation: &Equation, args: &OxidationArgs) -> u8 {
+fn run_reaction(out: &mut dyn Write, equation: &Equation, args: &OxidationArgs) -> io::Result<u8> {
     let mut pins = Vec::new();
     for given in &args.assume {
         let Some((formula, pin)) = given.split_once(':') else {
             return usage(
+                out,
                 &format!(
                     "cannot read pin '{given}': in a reaction, name the species, such as FeS2:Fe=+2"
                 ),
@@ -77,58 +79,50 @@ fn run_reaction(equation: &Equation, args: &OxidationArgs) -> u8 {
         };
         let species = match parse_species(formula.trim()) {
             Ok(species) => species,
-            Err(error) => return usage(&format!("cannot read pin '{given}': {error}"), args.json),
+            Err(error) => {
+                return usage(
+                    out,
+                    &format!("cannot read pin '{given}': {error}"),
+                    args.json,
+                );
+            }
         };
         match pin.parse::<Pin>() {
             Ok(pin) => pins.push(SpeciesPin { species, pin }),
-            Err(error) => return usage(&error.to_string(), args.json),
+            Err(error) => return usage(out, &error.to_string(), args.json),
         }
     }
     let reaction = Reaction::from_equation(equation);
     match analyse_with(&reaction, &pins) {
         Ok(analysis) => {
             if args.json {
-                print_json(&json!({
-                    "reaction": equation.ascii(),
-                    "redox": redox_json(&analysis),
-                }));
+                print_json(
+                    out,
+                    &json!({
+                        "reaction": equation.ascii(),
+                        "redox": redox_json(&analysis),
+                    }),
+                )?;
             } else {
-                print!("{}", redox_table(equation, &analysis));
+                write!(out, "{}", redox_table(equation, &analysis))?;
             }
-            EXIT_OK
+            Ok(EXIT_OK)
         }
         Err(error) => {
-            if args.json {
-                print_json(&json!({"error": {
-                    "kind": error.kind_name(),
-                    "message": error.to_string(),
-                    "line": 1,
-                    "column": 1,
-                }}));
-            } else {
-                eprintln!("error ({}): {error}", error.kind_name());
-            }
-            match error {
+            let status = match error {
                 RedoxError::Oxidation { .. }
                 | RedoxError::NotBalanced { .. }
                 | RedoxError::ElectronMismatch { .. } => EXIT_FINDINGS,
                 _ => EXIT_USAGE,
-            }
+            };
+            Failure::new(error.kind_name(), status, error.to_string()).report(out, args.json)
         }
     }
 }
 
-/// A count as a JSON integer when whole, else as an exact fraction string.
+/// A count as every JSON output writes exact numbers.
 fn count_json(value: &BigRational) -> Value {
-    if value.is_integer() {
-        value
-            .numer()
-            .to_string()
-            .parse::<i64>()
-            .map_or_else(|_| Value::String(value.to_string()), Value::from)
-    } else {
-        Value::String(value.to_string())
-    }
+    super::exact_json(value)
 }
 
 fn changes_json(changes: &[ElementChange]) -> Value {
@@ -217,30 +211,13 @@ fn redox_table(equation: &Equation, analysis: &RedoxAnalysis) -> String {
     out
 }
 
-fn usage(message: &str, json: bool) -> u8 {
-    if json {
-        print_json(
-            &json!({"error": {"kind": "usage", "message": message, "line": 1, "column": 1}}),
-        );
-    } else {
-        eprintln!("error: {message}");
-    }
-    EXIT_USAGE
+fn usage(out: &mut dyn Write, message: &str, json: bool) -> io::Result<u8> {
+    Failure::usage(message).report(out, json)
 }
 
 /// The formula was read but cannot be given oxidation numbers: exit 1 with the reason.
-fn failure(error: &OxidationError, json: bool) -> u8 {
-    if json {
-        print_json(&json!({"error": {
-            "kind": error.kind_name(),
-            "message": error.to_string(),
-            "line": 1,
-            "column": 1,
-        }}));
-    } else {
-        eprintln!("error ({}): {error}", error.kind_name());
-    }
-    EXIT_FINDINGS
+fn failure(out: &mut dyn Write, error: &OxidationError, json: bool) -> io::Result<u8> {
+    Failure::new(error.kind_name(), EXIT_FINDINGS, error.to_string()).report(out, json)
 }
 
 /// The JSON schema of issue 4 (documented in the README).

@@ -1,10 +1,12 @@
 //! `couplet parse`: how an input was read.
 
-use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, argument_or_stdin, print_json};
+use super::failure::Failure;
+use super::{EXIT_OK, argument_or_stdin, print_json};
 use couplet::composition::Composition;
-use couplet::notation::{Input, NotationError, NotationErrorKind, Species, Term, parse_input};
+use couplet::notation::{Input, Species, Term, parse_input};
 use num_rational::Ratio;
 use serde_json::{Value, json};
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct ParseArgs {
@@ -15,55 +17,23 @@ pub struct ParseArgs {
     json: bool,
 }
 
-pub fn run(args: &ParseArgs) -> u8 {
+pub fn run(args: &ParseArgs, out: &mut dyn Write) -> io::Result<u8> {
     let text = match argument_or_stdin(&args.input) {
         Ok(text) => text,
-        Err(message) => {
-            eprintln!("error: {message}");
-            return EXIT_USAGE;
-        }
+        Err(message) => return Failure::usage(message).report(out, args.json),
     };
     let text = text.trim_end_matches(['\n', '\r']);
     match parse_input(text) {
         Ok(input) => {
             if args.json {
-                print_json(&input_json(&input, text));
+                print_json(out, &input_json(&input, text))?;
             } else {
-                print!("{}", input_table(&input));
+                write!(out, "{}", input_table(&input))?;
             }
-            EXIT_OK
+            Ok(EXIT_OK)
         }
-        Err(error) => report_error(&error, args.json),
+        Err(error) => Failure::from(&error).report(out, args.json),
     }
-}
-
-/// Prints a notation error (JSON on stdout, or a caret rendering on stderr) and returns its exit
-/// status.
-pub fn report_error(error: &NotationError, json: bool) -> u8 {
-    if json {
-        print_json(&error_json(error));
-    } else {
-        eprintln!("{}", error.render());
-    }
-    error_status(error)
-}
-
-/// The exit status of a notation error.
-pub fn error_status(error: &NotationError) -> u8 {
-    match error.kind {
-        NotationErrorKind::Chemistry => EXIT_FINDINGS,
-        _ => EXIT_USAGE,
-    }
-}
-
-/// `{"error": {"kind", "message", "line", "column"}}`
-pub fn error_json(error: &NotationError) -> Value {
-    json!({"error": {
-        "kind": error.kind.name(),
-        "message": error.message,
-        "line": error.line(),
-        "column": error.column(),
-    }})
 }
 
 fn coefficient_text(c: &Ratio<u64>) -> String {
@@ -85,7 +55,10 @@ pub fn species_json(species: &Species, coefficient: &Ratio<u64>, input_text: &st
     json!({
         "input": input_text,
         "canonical": species.ascii(),
-        "coefficient": coefficient_text(coefficient),
+        "coefficient": super::exact_json(&num_rational::BigRational::new(
+            (*coefficient.numer()).into(),
+            (*coefficient.denom()).into(),
+        )),
         "elements": elements,
         "charge": species.charge(),
         "state": species.state.map(|s| s.label()),

@@ -1,10 +1,13 @@
 //! `couplet table`: list, search and show couples of the potential table.
 
-use super::common::{TableArgs, load_table, scale};
-use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
+use super::common::{TableArgs, load_table, scale_without_quotient};
+use super::failure::Failure;
+use super::{EXIT_FINDINGS, EXIT_OK, print_json};
+use couplet::scale::Scale;
 use couplet::table::{Couple, element_named};
 use serde_json::json;
 use std::fmt::Write as _;
+use std::io::{self, Write};
 
 #[derive(clap::Args)]
 pub struct TableCommandArgs {
@@ -21,14 +24,14 @@ pub struct TableCommandArgs {
     json: bool,
 }
 
-pub fn run(args: &TableCommandArgs) -> u8 {
+pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
     let table = match load_table(&args.table) {
         Ok(table) => table,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
-    let scale = match scale(&args.table) {
+    let scale = match scale_without_quotient(&args.table) {
         Ok(scale) => scale,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
     let mut found: Vec<&Couple> = match &args.query {
         Some(query) => table.matching(query),
@@ -36,8 +39,7 @@ pub fn run(args: &TableCommandArgs) -> u8 {
     };
     if let Some(name) = &args.element {
         let Some(element) = element_named(name) else {
-            eprintln!("error: no element is called '{name}'");
-            return EXIT_USAGE;
+            return Failure::usage(format!("no element is called '{name}'")).report(out, args.json);
         };
         found.retain(|c| c.contains_element(element));
     }
@@ -54,58 +56,85 @@ pub fn run(args: &TableCommandArgs) -> u8 {
                 })
             })
             .collect();
-        print_json(&serde_json::Value::Array(rows));
-        return if found.is_empty() {
+        print_json(out, &serde_json::Value::Array(rows))?;
+        return Ok(if found.is_empty() {
             EXIT_FINDINGS
         } else {
             EXIT_OK
-        };
+        });
     }
     if found.is_empty() {
-        eprintln!("no couple fits; try an element name or symbol, or `couplet table` for all");
-        return EXIT_FINDINGS;
+        say!("no couple fits; try an element name or symbol, or `couplet table` for all");
+        return Ok(EXIT_FINDINGS);
     }
-    let mut out = String::new();
+    let mut text = String::new();
     let _ = writeln!(
-        out,
+        text,
         "{:<26} {:>9}  {:>8}  {:<7}  reaction",
-        "id", "E°/V", "dE/dT", "medium"
+        "id",
+        // On RHE the column is each couple's potential at the scale's pH, not a standard one.
+        if matches!(scale, Scale::Rhe { .. }) {
+            "E(pH)/V"
+        } else {
+            "E°/V"
+        },
+        "dE/dT",
+        "medium"
     );
     for c in &found {
         let _ = writeln!(
-            out,
+            text,
             "{:<26} {:>9.4}  {:>8}  {:<7}  {}",
             c.id.as_deref().unwrap_or("(no id)"),
-            scale.from_she(c.e0_volts),
+            scale.couple_potential(&c.reaction, c.e0_volts),
             c.dedt_millivolts_per_kelvin
-                .map_or("—".to_owned(), |d| format!("{d:.3}")),
+                .map_or("—".to_owned(), |d| format!(
+                    "{:.3}",
+                    scale.dedt_millivolts_per_kelvin(d).unwrap_or(d)
+                )),
             c.medium.name(),
             c.reaction
         );
     }
     if found.len() <= 3 {
         for c in &found {
-            let _ = writeln!(out, "\n{}", c.label());
+            let _ = writeln!(text, "\n{}", c.label());
             let source = c.source.as_deref().unwrap_or("none given");
-            let _ = writeln!(out, "  source: {source}");
+            let _ = writeln!(text, "  source: {source}");
             if let Some(note) = &c.note {
-                let _ = writeln!(out, "  note:   {note}");
+                let _ = writeln!(text, "  note:   {note}");
             }
-            let _ = writeln!(out, "  from:   {}", c.origin);
+            let _ = writeln!(text, "  from:   {}", c.origin);
         }
     }
     let _ = writeln!(
-        out,
-        "\n{} couple(s); E° in V vs {} at 298.15 K, dE/dT in mV/K",
+        text,
+        "\n{} couple(s); {} in V vs {} at 298.15 K{}, dE/dT in mV/K {}",
         found.len(),
-        scale.label()
+        if matches!(scale, Scale::Rhe { .. }) {
+            "E(pH)"
+        } else {
+            "E°"
+        },
+        scale.label(),
+        super::common::rhe_meaning(&scale),
+        dedt_basis(&scale)
     );
-    print_quietly(&out);
-    EXIT_OK
+    out.write_all(text.as_bytes())?;
+    Ok(EXIT_OK)
 }
 
-/// Writes to standard output; a closed pipe (`| head`) ends the output quietly.
-fn print_quietly(text: &str) {
-    use std::io::Write;
-    let _ = std::io::stdout().lock().write_all(text.as_bytes());
+/// Which scale the dE/dT column is on.
+fn dedt_basis(scale: &Scale) -> String {
+    match (scale, scale.dedt_millivolts_per_kelvin(0.0)) {
+        (Scale::She, _) => "vs SHE".to_owned(),
+        (_, Some(_)) => format!("vs {} (its own published dE/dT subtracted)", scale.label()),
+        (Scale::Rhe { .. }, None) => {
+            "still vs SHE (the RHE's coefficient depends on the solution)".to_owned()
+        }
+        (_, None) => format!(
+            "still vs SHE (data/reference_electrodes.toml gives no dE/dT for {})",
+            scale.label()
+        ),
+    }
 }

@@ -2,13 +2,15 @@
 //! formation data, with the row used for every species.
 
 use super::common::{load_formation, medium_arg};
+use super::failure::Failure;
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::constants::{GAS_CONSTANT_JOULES_PER_MOL_KELVIN, STANDARD_TEMPERATURE_KELVIN};
 use couplet::notation::{Arrow, Style};
 use couplet::table::Medium;
 use couplet::thermo::{FromDataError, ReactionThermo, TextReaction, reaction_from_text};
 use serde_json::{Value, json};
-use std::fmt::Write;
+use std::fmt::Write as _;
+use std::io::{self, Write};
 use std::path::PathBuf;
 
 #[derive(clap::Args)]
@@ -19,8 +21,8 @@ pub struct ThermoArgs {
     /// Balance in this solution when couplet balances: acid (default), base or neutral
     #[arg(long, value_parser = medium_arg)]
     medium: Option<Medium>,
-    /// Temperature in K for ΔrG°(T) and E°(T)
-    #[arg(long, default_value_t = STANDARD_TEMPERATURE_KELVIN)]
+    /// Temperature for ΔrG°(T) and E°(T), with its unit: 25C, 298.15K
+    #[arg(long, default_value = "298.15K", value_parser = super::units::temperature)]
     temperature: f64,
     /// Also read formation data (the CSV layout of data/formation.csv); repeatable
     #[arg(long = "formation", value_name = "FILE")]
@@ -30,47 +32,32 @@ pub struct ThermoArgs {
     json: bool,
 }
 
-pub fn run(args: &ThermoArgs) -> u8 {
+pub fn run(args: &ThermoArgs, out: &mut dyn Write) -> io::Result<u8> {
     let data = match load_formation(&args.formation) {
         Ok(data) => data,
-        Err(status) => return status,
+        Err(failure) => return failure.report(out, args.json),
     };
-    if !(args.temperature.is_finite() && args.temperature > 0.0) {
-        eprintln!(
-            "error: the temperature must be a positive number of kelvin, not {}",
-            args.temperature
-        );
-        return EXIT_USAGE;
-    }
     let found = match reaction_from_text(&args.reaction, args.medium, data) {
         Ok(found) => found,
-        Err(error) => return report(&error, args.json),
+        Err(error) => return failure(&error).report(out, args.json),
     };
     if args.json {
-        print_json(&as_json(&found, args.temperature, data));
+        print_json(out, &as_json(&found, args.temperature, data))?;
     } else {
-        print!("{}", human(&found, args.temperature, data));
+        out.write_all(human(&found, args.temperature, data).as_bytes())?;
     }
-    EXIT_OK
+    Ok(EXIT_OK)
 }
 
-fn report(error: &FromDataError, json: bool) -> u8 {
-    let (kind, status) = match error {
-        FromDataError::Notation(e) => ("syntax", super::parse::error_status(e)),
-        FromDataError::NotACouple(_) => ("syntax", EXIT_USAGE),
-        FromDataError::Balance(_) => ("balance", EXIT_FINDINGS),
-        FromDataError::Couple(_) => ("not_a_reduction", EXIT_FINDINGS),
-        FromDataError::Thermo(_) => ("no_data", EXIT_FINDINGS),
-        _ => ("error", EXIT_FINDINGS),
-    };
-    if json {
-        print_json(&json!({"error": {"kind": kind, "message": error.to_string()}}));
-    } else if let FromDataError::Notation(e) = error {
-        eprintln!("{}", e.render());
-    } else {
-        eprintln!("error: {error}");
+/// The one mapping of this command's errors to a kind and an exit status.
+fn failure(error: &FromDataError) -> Failure {
+    match error {
+        FromDataError::Notation(e) => e.into(),
+        FromDataError::NotACouple(_) => Failure::new("syntax", EXIT_USAGE, error.to_string()),
+        FromDataError::Balance(e) => Failure::new(e.kind(), EXIT_FINDINGS, error.to_string()),
+        FromDataError::Couple(e) => e.into(),
+        _ => Failure::new("no_data", EXIT_FINDINGS, error.to_string()),
     }
-    status
 }
 
 fn kilo(joules: f64) -> f64 {

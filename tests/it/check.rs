@@ -378,7 +378,8 @@ fn fix_dry_run_prints_a_diff_and_writes_nothing() {
     let path = dir.path().join("t.toml");
     std::fs::write(&path, FIX_INPUT).unwrap();
     let (stdout, _, status) = run(&["--fix", "--dry-run", path.to_str().unwrap()]);
-    assert_eq!(status, 0);
+    // The oxidation written as a reduction (CPL203) is never fixed: errors would remain.
+    assert_eq!(status, 1);
     assert_eq!(std::fs::read_to_string(&path).unwrap(), FIX_INPUT);
     assert!(
         stdout.contains("-reaction   =   \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O(l)\""),

@@ -7,6 +7,7 @@ mod balance;
 mod capacity;
 mod cell;
 mod check;
+mod cli;
 mod discharge;
 mod elements;
 mod export;

@@ -274,7 +274,8 @@ mod command {
         let s = &v["species"][0];
         assert_eq!(s["input"], "SO₄²⁻");
         assert_eq!(s["canonical"], "SO4^2-");
-        assert_eq!(s["coefficient"], "1");
+        // Exact numbers: an integer when whole, "a/b" otherwise (README, JSON conventions).
+        assert_eq!(s["coefficient"], 1);
         assert_eq!(s["elements"]["S"], 1);
         assert_eq!(s["elements"]["O"], 4);
         assert_eq!(s["charge"], -2);
