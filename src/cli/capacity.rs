@@ -220,9 +220,11 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
                 Err(e) => return Failure::from(&e).report(out, args.json),
             }
         } else {
-            match table.find(query, args.electrodes.medium) {
-                Ok(c) => c.reaction.clone(),
-                Err(e) => return Failure::from(&e).report(out, args.json),
+            // Through the one lookup every command uses, so a couple no table lists is made
+            // from formation data.
+            match super::common::resolve(&table, query, None, args.electrodes.medium) {
+                Ok(c) => c.reaction,
+                Err(failure) => return failure.report(out, args.json),
             }
         };
         // An unbalanced half-reaction would give a wrong n, so a wrong capacity.

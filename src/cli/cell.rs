@@ -1,15 +1,16 @@
 //! `couplet cell`: a cathode and an anode couple combined into the net reaction and its figures.
 
-use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale};
+use super::common::{ElectrodeArgs, TableArgs, build_cell, formation_data, load_table, scale};
 use super::failure::Failure;
 use super::nernst::{NernstArgs, emit, json_fields, run_nernst, text};
 use super::{EXIT_OK, exact_integer_json, exact_json, print_json};
 use couplet::cell::caution;
 use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
+use couplet::figures::significant;
 use couplet::nernst::Standard;
 use couplet::notation::{Arrow, Style};
 use couplet::scale::Scale;
-use couplet::table::Couple;
+use couplet::table::{Couple, Origin};
 use num_traits::ToPrimitive;
 use serde_json::{Value, json};
 use std::io::{self, Write};
@@ -39,12 +40,69 @@ pub struct CellArgs {
 }
 
 fn half_json(couple: &Couple, scale: &Scale) -> Value {
-    json!({
+    let mut value = json!({
         "id": couple.id,
         "reaction": couple.reaction.to_string(),
         "e0_V": scale.couple_potential(&couple.reaction, couple.e0_volts),
         "n": exact_json(&couple.electrons()),
         "source": couple.source,
+        "e0_source": e0_source(couple),
+    });
+    // Beside a tabulated value, what formation data give for the same half-reaction.
+    if couple.origin != Origin::FormationData
+        && let Some(from_data) = formation_e0(couple)
+    {
+        let object = value.as_object_mut().expect("built as an object");
+        object.insert(
+            "e0_formation_data_V".into(),
+            json!(scale.couple_potential(&couple.reaction, from_data)),
+        );
+        object.insert(
+            "formation_data_minus_e0_mV".into(),
+            json!((from_data - couple.e0_volts) * 1000.0),
+        );
+    }
+    value
+}
+
+/// `table`, `file`, `given` or `formation data`: where a couple's E° came from.
+fn e0_source(couple: &Couple) -> &'static str {
+    match couple.origin {
+        Origin::BuiltIn => "table",
+        Origin::File(_) => "file",
+        Origin::FormationData => "formation data",
+        _ => "given",
+    }
+}
+
+/// E° (V vs SHE) of a couple's half-reaction from formation data, when every species has data.
+fn formation_e0(couple: &Couple) -> Option<f64> {
+    couplet::thermo::e0_from_data(couple, formation_data())?.e0_volts()
+}
+
+/// One line comparing each tabulated electrode with formation data, when they have data.
+fn formation_line(cell: &couplet::cell::Cell) -> Option<String> {
+    let side = |word: &str, couple: &Couple| {
+        if couple.origin == Origin::FormationData {
+            return None;
+        }
+        formation_e0(couple).map(|e| {
+            format!(
+                "{word} {} V ({:+.1} mV from the value used)",
+                significant(e, 4),
+                (e - couple.e0_volts) * 1000.0
+            )
+        })
+    };
+    let parts: Vec<String> = [side("cathode", &cell.cathode), side("anode", &cell.anode)]
+        .into_iter()
+        .flatten()
+        .collect();
+    (!parts.is_empty()).then(|| {
+        format!(
+            "formation data (CRC, E° = −ΔrG°/nF vs SHE): {}",
+            parts.join("; ")
+        )
     })
 }
 
@@ -249,6 +307,9 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
         cell.cathode.source.as_deref().unwrap_or("given"),
         cell.anode.source.as_deref().unwrap_or("given")
     )?;
+    if let Some(line) = formation_line(&cell) {
+        writeln!(out, "{line}")?;
+    }
     if let Some(line) = caution(&cell.net) {
         writeln!(out, "{line}")?;
     }

@@ -65,6 +65,16 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
     }
     if found.is_empty() {
         say!("no couple fits; try an element name or symbol, or `couplet table` for all");
+        if let Some(query) = args.query.as_deref()
+            && let Ok(found) =
+                couplet::thermo::couple_from_data(query, None, super::common::formation_data())
+        {
+            say!(
+                "formation data give {}: E° {} V vs SHE (couplet thermo '{query}' shows how)",
+                found.couple.reaction,
+                couplet::figures::significant(found.couple.e0_volts, 4)
+            );
+        }
         return Ok(EXIT_FINDINGS);
     }
     let mut text = String::new();
