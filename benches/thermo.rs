@@ -17,7 +17,12 @@ fn half_reactions(data: &FormationData) -> Vec<Reaction> {
         .filter(|c| reaction_thermo(&c.reaction, data, None).is_ok())
         .map(|c| c.reaction.clone())
         .collect();
-    with_data.iter().cycle().take(HALF_REACTIONS).cloned().collect()
+    with_data
+        .iter()
+        .cycle()
+        .take(HALF_REACTIONS)
+        .cloned()
+        .collect()
 }
 
 fn bench(c: &mut Criterion) {
@@ -31,7 +36,8 @@ fn bench(c: &mut Criterion) {
             let mut sum = 0.0;
             for reaction in &reactions {
                 let thermo = reaction_thermo(black_box(reaction), data, None).unwrap();
-                sum += thermo.e0_volts().unwrap() + thermo.dedt_millivolts_per_kelvin().unwrap_or(0.0);
+                sum +=
+                    thermo.e0_volts().unwrap() + thermo.dedt_millivolts_per_kelvin().unwrap_or(0.0);
             }
             black_box(sum)
         })

@@ -7,8 +7,7 @@
 
 use super::entry::JudgedEntry;
 use super::{Finding, Rule};
-use crate::table::Couple;
-use crate::thermo::{FormationData, e0_from_data};
+use crate::thermo::{FormationData, reaction_thermo};
 
 /// Default threshold of rule CPL306, in volts.
 pub const DEFAULT_FORMATION_THRESHOLD_VOLTS: f64 = 0.020;
@@ -38,10 +37,8 @@ pub fn check_entries(judged: &[JudgedEntry], check: &FormationCheck) -> Vec<Find
         let (Some(reaction), Some((e0, span))) = (&entry.reduction, entry.e0_volts) else {
             continue;
         };
-        let Ok(couple) = Couple::from_reaction(reaction.clone(), e0) else {
-            continue;
-        };
-        let Some(thermo) = e0_from_data(&couple, check.data) else {
+        // `reduction` is set only for balanced reductions, so this is a half-reaction vs SHE.
+        let Ok(thermo) = reaction_thermo(reaction, check.data, None) else {
             continue;
         };
         let Some(computed) = thermo.e0_volts() else {

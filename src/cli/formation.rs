@@ -4,8 +4,9 @@
 use super::common::load_formation;
 use super::failure::Failure;
 use super::{EXIT_FINDINGS, EXIT_OK, print_json};
+use couplet::notation::Species;
 use couplet::notation::parse_species;
-use couplet::thermo::{FormationData, FormationRow};
+use couplet::thermo::{DataPhase, FormationData, FormationRow};
 use serde_json::{Value, json};
 use std::fmt::Write as _;
 use std::io::{self, Write};
@@ -69,12 +70,12 @@ pub fn run(args: &FormationArgs, out_stream: &mut dyn Write) -> io::Result<u8> {
             results.push(json!({
                 "species": text,
                 "rows": rows.iter().map(|r| row_json(r, used.is_some_and(|u| std::ptr::eq(u, *r)))).collect::<Vec<_>>(),
-                "phase_assumed": resolved.as_ref().ok().and_then(|r| r.phase_assumed.clone()),
+                "phase_assumed": couplet::thermo::DataPhase::assumption(&species),
                 "error": resolved.as_ref().err().map(|e| e.to_string()),
             }));
             continue;
         }
-        human(&mut out, text, &rows, &resolved, data);
+        human(&mut out, text, &species, &rows, &resolved, data);
     }
     if args.json {
         print_json(out_stream, &json!({"species": results}))?;
@@ -87,6 +88,7 @@ pub fn run(args: &FormationArgs, out_stream: &mut dyn Write) -> io::Result<u8> {
 fn human(
     out: &mut String,
     text: &str,
+    species: &Species,
     rows: &[&FormationRow],
     resolved: &Result<couplet::thermo::Resolved<'_>, couplet::thermo::MissingData>,
     data: &FormationData,
@@ -128,8 +130,8 @@ fn human(
         }
     }
     match resolved {
-        Ok(r) => {
-            if let Some(assumed) = &r.phase_assumed {
+        Ok(_) => {
+            if let Some(assumed) = DataPhase::assumption(species) {
                 let _ = writeln!(out, "  as written: {assumed}");
             }
         }

@@ -215,7 +215,7 @@ fn as_json(
                     "s_J_per_mol_K": r.entropy_joules_per_mol_kelvin,
                     "cp_J_per_mol_K": r.cp_joules_per_mol_kelvin,
                 })),
-                "phase_assumed": term.phase_assumed,
+                "phase_assumed": term.phase_by_default.then(|| couplet::thermo::DataPhase::assumption(&term.species)).flatten(),
                 "alternatives": term.alternatives.iter().map(|r| r.name.clone()).collect::<Vec<_>>(),
             })
         })

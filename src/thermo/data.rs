@@ -49,22 +49,27 @@ impl DataPhase {
     }
 
     /// The data phase of a species: its state label, or the project's one rule of state
-    /// defaults ([`phase_of`]) when it has none. Returns the assumption made, if any.
-    pub fn of_species(species: &Species) -> (DataPhase, Option<String>) {
-        let (phase, assumed) = phase_of(species);
-        let data_phase = match species.state {
+    /// defaults ([`phase_of`]) when it has none (a charged species is dissolved; the sentence
+    /// saying what was assumed comes from [`DataPhase::assumption`]).
+    pub fn of_species(species: &Species) -> DataPhase {
+        match species.state {
             Some(State::Solid | State::Crystal) => DataPhase::Solid,
             Some(State::Liquid) => DataPhase::Liquid,
             Some(State::Gas) => DataPhase::Gas,
             Some(State::Aqueous) => DataPhase::Aqueous,
-            None => match phase {
+            None if species.charge() != 0 => DataPhase::Aqueous,
+            None => match phase_of(species).0 {
                 Phase::Solid => DataPhase::Solid,
                 Phase::PureLiquid | Phase::Solvent => DataPhase::Liquid,
                 Phase::Gas => DataPhase::Gas,
                 Phase::Solute => DataPhase::Aqueous,
             },
-        };
-        (data_phase, assumed)
+        }
+    }
+
+    /// What was assumed about the phase of a species written without a state label.
+    pub fn assumption(species: &Species) -> Option<String> {
+        phase_of(species).1
     }
 }
 
@@ -164,9 +169,11 @@ pub enum DataError {
 pub struct Resolved<'a> {
     /// The row used.
     pub row: &'a FormationRow,
-    /// What was assumed about the phase, when the species had no state label.
-    pub phase_assumed: Option<String>,
-    /// Other rows of the same species and phase (polymorphs, isomers) that were not chosen.
+    /// True when the species had no state label and its phase came from the defaults
+    /// ([`DataPhase::assumption`] says which).
+    pub phase_by_default: bool,
+    /// Other rows of the same species and phase (polymorphs, isomers) that were not chosen,
+    /// most stable first.
     pub alternatives: Vec<&'a FormationRow>,
 }
 
@@ -213,21 +220,38 @@ fn assumed_text(assumed: &Option<String>) -> String {
 #[derive(Clone, Debug, Default)]
 pub struct FormationData {
     rows: Vec<FormationRow>,
-    by_composition: HashMap<String, Vec<usize>>,
+    by_composition: HashMap<u64, Vec<usize>>,
     tables: Vec<(String, String)>,
     replaced: Vec<String>,
+    hydrogen_gas: Option<usize>,
 }
 
-/// The key two formulas share when they hold the same atoms and charge, whatever order or
-/// grouping they were written in (`PbSO4`, `O4PbS`).
-pub fn composition_key(composition: &Composition) -> String {
-    let mut parts: Vec<String> = composition
-        .counts()
-        .iter()
-        .map(|(element, count)| format!("{}{}", element.symbol(), count))
-        .collect();
-    parts.sort();
-    format!("{}|{}", parts.join(""), composition.charge())
+/// A hash that two formulas share when they hold the same atoms and charge, whatever order or
+/// grouping they were written in (`PbSO4`, `O4PbS`); rows under one hash are told apart by
+/// [`same_composition`]. Computed without allocating.
+pub fn composition_key(composition: &Composition) -> u64 {
+    use std::hash::{Hash, Hasher};
+    let mut hasher = std::collections::hash_map::DefaultHasher::new();
+    // Order-independent: a sum and a xor of per-element hashes.
+    let (mut sum, mut xor) = (0u64, 0u64);
+    for (element, count) in composition.counts() {
+        let mut one = std::collections::hash_map::DefaultHasher::new();
+        (element, count).hash(&mut one);
+        let h = one.finish();
+        sum = sum.wrapping_add(h);
+        xor ^= h;
+    }
+    (sum, xor, composition.counts().len(), composition.charge()).hash(&mut hasher);
+    hasher.finish()
+}
+
+/// True when two compositions hold the same atoms and charge in any order.
+pub fn same_composition(a: &Composition, b: &Composition) -> bool {
+    a.charge() == b.charge()
+        && a.counts().len() == b.counts().len()
+        && a.counts()
+            .iter()
+            .all(|(element, count)| b.count(*element) == *count)
 }
 
 static BUILTIN: LazyLock<FormationData> = LazyLock::new(|| {
@@ -330,6 +354,11 @@ impl FormationData {
                 old.phase == row.phase && old.origin != row.origin && old.species == row.species
             })
         });
+        let is_hydrogen_gas = row.phase == DataPhase::Gas
+            && row.species.charge() == 0
+            && row.species.composition.counts().len() == 1
+            && row.species.composition.counts()[0].0.symbol() == "H"
+            && row.species.composition.counts()[0].1 == 2;
         if let Some(i) = same {
             self.replaced.push(format!(
                 "{} from {} replaces the row from {}",
@@ -338,13 +367,25 @@ impl FormationData {
                 self.rows[i].origin
             ));
             self.rows[i] = row;
+            if is_hydrogen_gas {
+                self.hydrogen_gas = Some(i);
+            }
             return;
+        }
+        if is_hydrogen_gas && self.hydrogen_gas.is_none() {
+            self.hydrogen_gas = Some(self.rows.len());
         }
         self.by_composition
             .entry(key)
             .or_default()
             .push(self.rows.len());
         self.rows.push(row);
+    }
+
+    /// The row of H2(g), whose entropy and heat capacity the electron shares under the SHE
+    /// convention.
+    pub fn hydrogen_gas(&self) -> Option<&FormationRow> {
+        self.hydrogen_gas.map(|i| &self.rows[i])
     }
 
     /// Every row, in file order.
@@ -372,47 +413,74 @@ impl FormationData {
 
     /// Every row with the atoms and charge of `species`, any phase.
     pub fn rows_for(&self, species: &Species) -> Vec<&FormationRow> {
+        self.candidates(species).collect()
+    }
+
+    fn candidates<'s, 'q>(
+        &'s self,
+        species: &'q Species,
+    ) -> impl Iterator<Item = &'s FormationRow> + use<'s, 'q> {
+        let composition = &species.composition;
         self.by_composition
-            .get(&composition_key(&species.composition))
-            .map(|indices| indices.iter().map(|&i| &self.rows[i]).collect())
-            .unwrap_or_default()
+            .get(&composition_key(composition))
+            .into_iter()
+            .flatten()
+            .map(|&i| &self.rows[i])
+            .filter(move |row| same_composition(&row.species.composition, composition))
     }
 
     /// The row a written species means. Its phase is its state label or the documented
     /// default; among several rows of that phase (polymorphs, isomers) the one with the lowest
     /// ΔfG°, the stable form at 298.15 K, is taken and the others are listed.
     pub fn resolve(&self, species: &Species) -> Result<Resolved<'_>, MissingData> {
-        let (phase, phase_assumed) = DataPhase::of_species(species);
-        let all = self.rows_for(species);
-        let mut fits: Vec<&FormationRow> =
-            all.iter().copied().filter(|r| r.phase == phase).collect();
-        if fits.is_empty() {
-            let written = species.ascii();
-            if all.is_empty() {
-                return Err(MissingData::Absent {
-                    species: written,
-                    assumed: phase_assumed,
-                });
+        let phase = DataPhase::of_species(species);
+        let mut best: Option<&FormationRow> = None;
+        let mut others = 0;
+        for row in self.candidates(species).filter(|r| r.phase == phase) {
+            match best {
+                Some(b) if b.dfg_joules_per_mol <= row.dfg_joules_per_mol => others += 1,
+                Some(_) => {
+                    others += 1;
+                    best = Some(row);
+                }
+                None => best = Some(row),
             }
-            let mut available: Vec<DataPhase> = all.iter().map(|r| r.phase).collect();
-            available.sort();
-            available.dedup();
-            return Err(MissingData::OtherPhase {
-                species: match species.state {
-                    Some(_) => written,
-                    None => format!("{written} ({})", phase_assumed.unwrap_or_default()),
-                },
-                phase,
-                available,
+        }
+        if let Some(row) = best {
+            let alternatives = if others == 0 {
+                Vec::new()
+            } else {
+                let mut rest: Vec<&FormationRow> = self
+                    .candidates(species)
+                    .filter(|r| r.phase == phase && !std::ptr::eq(*r, row))
+                    .collect();
+                rest.sort_by(|a, b| a.dfg_joules_per_mol.total_cmp(&b.dfg_joules_per_mol));
+                rest
+            };
+            return Ok(Resolved {
+                row,
+                phase_by_default: species.state.is_none(),
+                alternatives,
             });
         }
-        // User rows come after built-in ones; a user's row for the same formula wins above.
-        fits.sort_by(|a, b| a.dfg_joules_per_mol.total_cmp(&b.dfg_joules_per_mol));
-        let row = fits.remove(0);
-        Ok(Resolved {
-            row,
-            phase_assumed,
-            alternatives: fits,
+        let written = species.ascii();
+        let assumed = DataPhase::assumption(species);
+        let mut available: Vec<DataPhase> = self.candidates(species).map(|r| r.phase).collect();
+        if available.is_empty() {
+            return Err(MissingData::Absent {
+                species: written,
+                assumed,
+            });
+        }
+        available.sort();
+        available.dedup();
+        Err(MissingData::OtherPhase {
+            species: match species.state {
+                Some(_) => written,
+                None => format!("{written} ({})", assumed.unwrap_or_default()),
+            },
+            phase,
+            available,
         })
     }
 }
@@ -533,5 +601,8 @@ mod tests {
             composition_key(&a.composition),
             composition_key(&b.composition)
         );
+        assert!(same_composition(&a.composition, &b.composition));
+        let c = parse_species("PbSO3").unwrap();
+        assert!(!same_composition(&a.composition, &c.composition));
     }
 }

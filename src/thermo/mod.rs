@@ -23,7 +23,7 @@ pub use data::{
 };
 
 use crate::constants::{FARADAY_COULOMBS_PER_MOL, STANDARD_TEMPERATURE_KELVIN};
-use crate::notation::{Species, parse_species};
+use crate::notation::Species;
 use crate::reaction::Reaction;
 use num_traits::{ToPrimitive, Zero};
 
@@ -77,8 +77,9 @@ pub struct Term<'a> {
     pub nu: f64,
     /// The row used; `None` for the electron, which follows the SHE convention.
     pub row: Option<&'a FormationRow>,
-    /// What was assumed about its phase.
-    pub phase_assumed: Option<String>,
+    /// True when no state label chose its phase ([`DataPhase::assumption`] says what was
+    /// assumed).
+    pub phase_by_default: bool,
     /// Rows of the same species and phase that were not chosen.
     pub alternatives: Vec<&'a FormationRow>,
 }
@@ -165,7 +166,7 @@ impl<'a> ReactionThermo<'a> {
             .iter()
             .map(|t| match t.row {
                 Some(row) => {
-                    let how = if t.phase_assumed.is_some() {
+                    let how = if t.phase_by_default {
                         " by default"
                     } else {
                         ""
@@ -234,7 +235,7 @@ pub fn reaction_thermo<'a>(
                 species: entry.species.clone(),
                 nu,
                 row: None,
-                phase_assumed: None,
+                phase_by_default: false,
                 alternatives: Vec::new(),
             });
             continue;
@@ -244,7 +245,7 @@ pub fn reaction_thermo<'a>(
                 species: entry.species.clone(),
                 nu,
                 row: Some(resolved.row),
-                phase_assumed: resolved.phase_assumed,
+                phase_by_default: resolved.phase_by_default,
                 alternatives: resolved.alternatives,
             }),
             Err(m) => missing.push(m),
@@ -262,7 +263,7 @@ pub fn reaction_thermo<'a>(
         (-electron_nu).to_f64()
     };
     // The electron's share under the SHE convention: half an H2 molecule.
-    let hydrogen = hydrogen_gas(data);
+    let hydrogen = data.hydrogen_gas();
     let electron_entropy = hydrogen.and_then(|h| h.entropy_joules_per_mol_kelvin.map(|s| s / 2.0));
     let electron_cp = hydrogen.and_then(|h| h.cp_joules_per_mol_kelvin.map(|c| c / 2.0));
     let pick = |term: &Term<'_>, f: fn(&FormationRow) -> Option<f64>, electron: Option<f64>| {
@@ -298,12 +299,6 @@ pub fn reaction_thermo<'a>(
         delta_cp_joules_per_kelvin: delta_cp,
         electrons,
     })
-}
-
-fn hydrogen_gas(data: &FormationData) -> Option<&FormationRow> {
-    let mut h2 = parse_species("H2(g)").ok()?;
-    h2.state = Some(crate::notation::State::Gas);
-    data.resolve(&h2).ok().map(|r| r.row)
 }
 
 #[cfg(test)]
