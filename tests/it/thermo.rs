@@ -335,3 +335,138 @@ fn built_in_couples_agree_with_formation_data_or_are_listed() {
     assert_eq!(differ, listed);
     assert!(both >= 120, "{both} couples computed both ways");
 }
+
+mod cli {
+    use assert_cmd::Command;
+    use serde_json::Value;
+
+    fn couplet(args: &[&str]) -> (Value, String, i32) {
+        let output = Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+            .args(args)
+            .output()
+            .unwrap();
+        let stdout = String::from_utf8(output.stdout).unwrap();
+        let json = serde_json::from_str(&stdout).unwrap_or(Value::Null);
+        (
+            json,
+            String::from_utf8(output.stderr).unwrap(),
+            output.status.code().unwrap(),
+        )
+    }
+
+    #[test]
+    fn thermo_json_gives_the_figures_and_the_rows() {
+        // Lead–acid 2.041 V from the CRC rows (the species-thermodynamics issue).
+        let (json, _, status) = couplet(&[
+            "thermo",
+            "--json",
+            "PbO2 + Pb + 4 H+ + 2 SO4^2- -> 2 PbSO4 + 2 H2O",
+        ]);
+        assert_eq!(status, 0);
+        assert_eq!(json["n"], 2.0);
+        assert!((json["e0_V"].as_f64().unwrap() - 2.041).abs() < 0.0005);
+        assert_eq!(json["e0_source"], "formation data");
+        assert_eq!(json["rows"].as_array().unwrap().len(), 6);
+        assert_eq!(json["rows"][0]["row"]["name"], "Lead(IV) oxide");
+        assert!(
+            json["tables"]["crc-ions"]
+                .as_str()
+                .unwrap()
+                .contains("95th ed.")
+        );
+        assert!(json["caution"].as_str().unwrap().contains("lead"));
+    }
+
+    #[test]
+    fn thermo_refuses_what_has_no_data_and_names_it() {
+        let (json, _, status) = couplet(&["thermo", "--json", "S + 2 H+ + 2 e- -> H2S(aq)"]);
+        assert_eq!(status, 1);
+        assert_eq!(json["error"]["kind"], "no_data");
+        assert!(
+            json["error"]["message"]
+                .as_str()
+                .unwrap()
+                .contains("the data have it as (g)")
+        );
+        let (_, stderr, status) = couplet(&["thermo", "Zn + Qq2+ -> Zn2+"]);
+        assert_eq!(status, 2, "{stderr}");
+        assert!(stderr.contains("Qq"));
+        let (_, stderr, status) = couplet(&["thermo", "SnO2/Sn", "--temperature", "25"]);
+        assert_eq!(status, 2, "{stderr}");
+    }
+
+    #[test]
+    fn formation_marks_the_row_used() {
+        let (json, _, status) = couplet(&["formation", "--json", "Sn", "H2S(aq)"]);
+        assert_eq!(status, 1, "H2S(aq) has no row in its phase");
+        let tin = &json["species"][0]["rows"];
+        let used: Vec<&Value> = tin
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter(|r| r["used_as_written"] == true)
+            .collect();
+        assert_eq!(used.len(), 1);
+        assert_eq!(used[0]["name"], "Tin (white)");
+        assert!(
+            json["species"][1]["error"]
+                .as_str()
+                .unwrap()
+                .contains("H2S(aq)")
+        );
+    }
+
+    #[test]
+    fn a_cell_with_a_couple_no_table_lists_says_where_its_e0_came_from() {
+        let (json, stderr, status) = couplet(&[
+            "cell",
+            "--json",
+            "--cathode",
+            "SnO2/Sn",
+            "--anode",
+            "Zn2+/Zn",
+        ]);
+        assert_eq!(status, 0, "{stderr}");
+        assert_eq!(json["cathode"]["e0_source"], "formation data");
+        assert_eq!(json["anode"]["e0_source"], "table");
+        // Zn2+/Zn: −0.762 V (Harris) against −0.7623 V from the CRC rows.
+        assert!(
+            json["anode"]["formation_data_minus_e0_mV"]
+                .as_f64()
+                .unwrap()
+                .abs()
+                < 1.0
+        );
+        assert!(stderr.contains("computed from formation data"));
+    }
+
+    #[test]
+    fn user_formation_rows_reach_the_cell() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("ours.csv");
+        // Invented row for this test only: a made-up ΔfG° for Sn2+(aq).
+        std::fs::write(
+            &path,
+            "# ours: invented for a test\nformula,state,name,cas,table,dfh_j,dfg_j,s_j_k,cp_j_k,mw,note\nSn^2+,aq,tin ion (invented),,ours,,-20000,,,,\n",
+        )
+        .unwrap();
+        let path = path.to_str().unwrap();
+        let (json, stderr, status) = couplet(&[
+            "thermo",
+            "--json",
+            "--formation",
+            path,
+            "Sn2+ + 2 e- -> Sn(s)",
+        ]);
+        assert_eq!(status, 0, "{stderr}");
+        let expected = -20000.0 / (2.0 * couplet::constants::FARADAY_COULOMBS_PER_MOL);
+        assert!((json["e0_V"].as_f64().unwrap() - expected).abs() < 1e-12);
+        assert!(stderr.contains("replaces"), "{stderr}");
+        std::fs::write(dir.path().join("bad.csv"), "formula,state\n").unwrap();
+        let bad = dir.path().join("bad.csv");
+        let (_, stderr, status) =
+            couplet(&["thermo", "--formation", bad.to_str().unwrap(), "SnO2/Sn"]);
+        assert_eq!(status, 2);
+        assert!(stderr.contains("bad.csv:1"), "{stderr}");
+    }
+}
