@@ -290,13 +290,53 @@ impl CellModel {
             }
             return Ok(());
         }
-        for (i, ((row, &t), e)) in activities
-            .chunks_exact(width)
+        // The usual widths get a loop the compiler unrolls (a row of known length); the
+        // arithmetic is the same as for any width.
+        match width {
+            1 => self.batch_of::<1>(activities, temperatures_kelvin, out),
+            2 => self.batch_of::<2>(activities, temperatures_kelvin, out),
+            3 => self.batch_of::<3>(activities, temperatures_kelvin, out),
+            4 => self.batch_of::<4>(activities, temperatures_kelvin, out),
+            5 => self.batch_of::<5>(activities, temperatures_kelvin, out),
+            6 => self.batch_of::<6>(activities, temperatures_kelvin, out),
+            _ => {
+                for (i, ((row, &t), e)) in activities
+                    .chunks_exact(width)
+                    .zip(temperatures_kelvin)
+                    .zip(out.iter_mut())
+                    .enumerate()
+                {
+                    self.check(i, row, t)?;
+                    *e = self.potential_unchecked(row, t);
+                }
+                Ok(())
+            }
+        }
+    }
+
+    /// [`Self::evaluate_batch`] for rows of `W` species: one validity test per state (a
+    /// branch-free fold), the detailed check only to name a state that fails it.
+    #[inline(always)]
+    fn batch_of<const W: usize>(
+        &self,
+        activities: &[f64],
+        temperatures_kelvin: &[f64],
+        out: &mut [f64],
+    ) -> Result<(), ModelError> {
+        let (rows, _) = activities.as_chunks::<W>();
+        for (i, ((row, &t), e)) in rows
+            .iter()
             .zip(temperatures_kelvin)
             .zip(out.iter_mut())
             .enumerate()
         {
-            self.check(i, row, t)?;
+            // `a > 0` is false for NaN; `a < inf` rejects infinity.
+            let valid = row.iter().fold(t > 0.0 && t < f64::INFINITY, |ok, &a| {
+                ok & (a > 0.0) & (a < f64::INFINITY)
+            });
+            if !valid {
+                self.check(i, row, t)?;
+            }
             *e = self.potential_unchecked(row, t);
         }
         Ok(())
