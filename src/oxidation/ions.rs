@@ -43,6 +43,9 @@ pub struct KnownIon {
     counts: Vec<(Element, u64)>,
     /// The written units, with one outer bracket pair removed (`[Fe(CN)6]4-`).
     body: Vec<Unit>,
+    /// For an ion of one element: metals whose binary compound with it is usually read as a
+    /// salt of this ion (FeS2 as iron(II) disulfide).
+    pub usual_with: Vec<Element>,
 }
 
 impl KnownIon {
@@ -81,6 +84,8 @@ struct IonEntry {
     formula: String,
     name: String,
     oxidation: toml::Table,
+    #[serde(default)]
+    usual_with: Vec<String>,
 }
 
 impl IonTable {
@@ -194,6 +199,15 @@ fn check_entry(index: usize, entry: &IonEntry) -> Result<KnownIon, IonTableError
             species.charge()
         )));
     }
+    let mut usual_with = Vec::with_capacity(entry.usual_with.len());
+    for symbol in &entry.usual_with {
+        if counts.len() != 1 {
+            return Err(at("usual_with is only for ions of one element".into()));
+        }
+        let metal = Element::from_symbol(symbol)
+            .ok_or_else(|| at(format!("usual_with: no element has the symbol '{symbol}'")))?;
+        usual_with.push(metal);
+    }
     Ok(KnownIon {
         formula: entry.formula.clone(),
         name: entry.name.clone(),
@@ -201,6 +215,7 @@ fn check_entry(index: usize, entry: &IonEntry) -> Result<KnownIon, IonTableError
         oxidation,
         counts,
         body,
+        usual_with,
     })
 }
 
@@ -340,6 +355,10 @@ pub(super) fn assign(
         return Ok(ion_assignments(&table.ions[i], 1));
     }
 
+    if let Some(assignments) = usual_salt(table, composition, pins) {
+        return Ok(assignments);
+    }
+
     let mut scanned = Vec::with_capacity(formula.components.len());
     for (index, component) in formula.components.iter().enumerate() {
         let mut found = Vec::new();
@@ -417,6 +436,63 @@ pub(super) fn assign(
             Ok(chosen)
         }
     }
+}
+
+/// A binary compound of a metal and one element read as a salt of that element's ion, where
+/// the ion table names the metal in `usual_with` (FeS2: Fe +2 and S2^2−). Only when nothing
+/// is pinned and the metal comes out at a whole-number positive state (greigite Fe3S4 is a
+/// sulfide, and stays with the rules). Every value is an assumption.
+fn usual_salt(
+    table: &IonTable,
+    composition: &Composition,
+    pins: &[Pin],
+) -> Option<Vec<Assignment>> {
+    let [(first, first_count), (second, second_count)] = *composition.counts() else {
+        return None;
+    };
+    if !pins.is_empty() {
+        return None;
+    }
+    let reads_as = |metal: Element, other: Element| {
+        table.ions.iter().find(|ion| {
+            matches!(ion.counts.as_slice(), [(e, _)] if *e == other.chemical_element())
+                && ion.usual_with.contains(&metal.chemical_element())
+        })
+    };
+    let (metal, metal_count, other_count, ion) = match reads_as(first, second) {
+        Some(ion) => (first, first_count, second_count, ion),
+        None => (second, second_count, first_count, reads_as(second, first)?),
+    };
+    let other = if metal == first { second } else { first };
+    let per_ion = ion.counts[0].1;
+    if per_ion == 0 || other_count % per_ion != 0 {
+        return None;
+    }
+    let times = BigInt::from(other_count / per_ion);
+    let rest = BigInt::from(composition.charge()) - BigInt::from(ion.charge) * times;
+    let value = BigRational::new(rest, BigInt::from(metal_count));
+    if !value.is_integer() || value <= BigRational::zero() {
+        return None;
+    }
+    let rule = Rule::UsualIon {
+        name: ion.name.clone(),
+    };
+    Some(vec![
+        Assignment {
+            element: metal,
+            count: metal_count,
+            value,
+            status: Status::Assumed,
+            rule: Rule::ChargeBalanceAfterAssumption,
+        },
+        Assignment {
+            element: other,
+            count: other_count,
+            value: ion.oxidation[0].1.clone(),
+            status: Status::Assumed,
+            rule,
+        },
+    ])
 }
 
 fn same_values(a: &[Assignment], b: &[Assignment]) -> bool {

@@ -113,6 +113,12 @@ pub enum Rule {
     ElectronegativityChoice,
     /// Rules left several elements open; this, the least electronegative, took the rest.
     ElectronegativityRest,
+    /// A binary compound read as a salt of a one-element ion by the usual assumption of the
+    /// ion table (`usual_with`): FeS2 as Fe(II) disulfide. The metal follows by charge.
+    UsualIon {
+        /// The ion's name from the table.
+        name: String,
+    },
 }
 
 impl Rule {
@@ -141,6 +147,7 @@ impl Rule {
                 "electronegativity choice: usual negative state".into()
             }
             Rule::ElectronegativityRest => "electronegativity choice: rest by charge".into(),
+            Rule::UsualIon { name } => format!("usual assumption: {name}"),
         }
     }
 }
