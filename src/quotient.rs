@@ -187,7 +187,12 @@ pub fn phase_of(species: &Species) -> (Phase, Option<String>) {
             )),
         );
     }
-    if NEUTRAL_SOLUTES.contains(&name.as_str()) {
+    let bare = Species {
+        state: None,
+        compartment: None,
+        ..species.clone()
+    };
+    if NEUTRAL_SOLUTES.contains(&bare.ascii().as_str()) {
         return (
             Phase::Solute,
             Some(format!("{name} taken as a dissolved neutral molecule")),

@@ -46,10 +46,12 @@ impl Imbalance {
     }
 }
 
-/// Whether two species are the same for cancelling: the same formula and charge, and the same
-/// state label when both carry one (`H2O` and `H2O(l)` are the same species).
+/// Whether two species are the same for cancelling: the same formula and charge, the same
+/// compartment, and the same state label when both carry one (`H2O` and `H2O(l)` are the same
+/// species; `Cu2+(cathode)` and `Cu2+(anode)` are not).
 pub fn same_species(a: &Species, b: &Species) -> bool {
     a.kind == b.kind
+        && a.compartment == b.compartment
         && match (a.state, b.state) {
             (Some(x), Some(y)) => x == y,
             _ => true,

@@ -210,9 +210,10 @@ fn parsed(
     })
 }
 
-/// Two species are the same ion when formula and charge agree (state labels aside).
+/// Two species are the same ion when formula, charge and compartment agree (state labels
+/// aside).
 pub fn same_substance(a: &Species, b: &Species) -> bool {
-    a.kind == b.kind
+    a.kind == b.kind && a.compartment == b.compartment
 }
 
 fn sorted_counts(species: &Species, times: u64) -> Vec<(String, u64)> {

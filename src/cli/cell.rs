@@ -195,6 +195,8 @@ pub fn run(args: &CellArgs) -> u8 {
         "         {}",
         if cell.runs_as_written {
             "runs as written (galvanic)"
+        } else if cell.e0_volts == 0.0 {
+            "at equilibrium in the standard state (E° = 0): the direction follows from E"
         } else {
             "does not run as written: the reverse is spontaneous (an electrolytic cell as written)"
         }

@@ -158,6 +158,11 @@ fn write_species(out: &mut String, species: &Species, style: Style) {
         out.push_str(state.label());
         out.push(')');
     }
+    if let Some(compartment) = species.compartment {
+        out.push('(');
+        out.push_str(compartment.label());
+        out.push(')');
+    }
 }
 
 /// Writes a coefficient: nothing for 1, `2`, `1/2`.

@@ -147,6 +147,36 @@ impl State {
     }
 }
 
+/// Which electrode compartment of a cell a species is in: written `(cathode)` or `(anode)` after
+/// the state label. Only a concentration cell needs it, where the same couple sits on both
+/// sides and the same ion must be told apart by where it is (`Cu2+(cathode)`, `Cu2+(anode)`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Compartment {
+    /// The compartment of the electrode where reduction happens.
+    Cathode,
+    /// The compartment of the electrode where oxidation happens.
+    Anode,
+}
+
+impl Compartment {
+    /// The label as written between the brackets: `cathode`, `anode`.
+    pub fn label(self) -> &'static str {
+        match self {
+            Compartment::Cathode => "cathode",
+            Compartment::Anode => "anode",
+        }
+    }
+
+    /// Reads a label (without brackets).
+    pub fn from_label(label: &str) -> Option<Compartment> {
+        match label {
+            "cathode" => Some(Compartment::Cathode),
+            "anode" => Some(Compartment::Anode),
+            _ => None,
+        }
+    }
+}
+
 /// What a species is: the electron, or a formula.
 #[derive(Clone, Debug, PartialEq, Eq, Hash)]
 pub enum SpeciesKind {
@@ -164,6 +194,8 @@ pub struct Species {
     pub kind: SpeciesKind,
     /// `(s)`, `(aq)`, … when written.
     pub state: Option<State>,
+    /// `(cathode)` or `(anode)` when written (concentration cells).
+    pub compartment: Option<Compartment>,
     /// Element counts and charge, computed when the species was read.
     pub composition: Composition,
     /// Where it was read.
@@ -173,7 +205,9 @@ pub struct Species {
 impl PartialEq for Species {
     fn eq(&self, other: &Species) -> bool {
         // The composition is derived from `kind`, so it need not be compared.
-        self.kind == other.kind && self.state == other.state
+        self.kind == other.kind
+            && self.state == other.state
+            && self.compartment == other.compartment
     }
 }
 impl Eq for Species {}
@@ -181,6 +215,7 @@ impl Hash for Species {
     fn hash<H: Hasher>(&self, state: &mut H) {
         self.kind.hash(state);
         self.state.hash(state);
+        self.compartment.hash(state);
     }
 }
 
@@ -195,7 +230,16 @@ impl Species {
         self.composition.charge()
     }
 
-    /// The same species with no state label, for comparing what a species *is*.
+    /// The same species placed in a compartment of a cell.
+    pub fn in_compartment(&self, compartment: Compartment) -> Species {
+        Species {
+            compartment: Some(compartment),
+            ..self.clone()
+        }
+    }
+
+    /// The same species with no state label, for comparing what a species *is* (the
+    /// compartment, where written, stays: it says which species, not which phase).
     pub fn without_state(&self) -> Species {
         Species {
             state: None,

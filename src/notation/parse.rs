@@ -18,8 +18,8 @@
 //! - `-` followed by `>` is always the arrow, never a charge.
 
 use super::{
-    Arrow, Bracket, Component, Equation, Formula, NotationError, NotationErrorKind, Span, Species,
-    SpeciesKind, State, Term, Unit,
+    Arrow, Bracket, Compartment, Component, Equation, Formula, NotationError, NotationErrorKind,
+    Span, Species, SpeciesKind, State, Term, Unit,
 };
 use crate::composition::Composition;
 use crate::elements::Element;
@@ -404,15 +404,26 @@ impl<'a> Ctx<'a> {
         Ok((rest, (components, last)))
     }
 
-    /// A formula with its charge, or the electron, then an optional state label.
+    /// A formula with its charge, or the electron, then optional state and compartment labels.
     fn species(&self, input: &'a str) -> Res<'a, Species> {
         if let Some((rest, ())) = electron(input)? {
-            let (rest, state) = state_label(rest)?;
+            let (after, (state, compartment)) = labels(rest)?;
+            if compartment.is_some() {
+                let at = rest.trim_start();
+                return fail(
+                    at,
+                    at.len() - after.len(),
+                    NotationErrorKind::Syntax,
+                    "the electron is in no compartment: label the ions instead",
+                );
+            }
+            let rest = after;
             return Ok((
                 rest,
                 Species {
                     kind: SpeciesKind::Electron,
                     state,
+                    compartment: None,
                     composition: Composition::charged(-1),
                     span: self.span(input, rest),
                 },
@@ -483,12 +494,13 @@ impl<'a> Ctx<'a> {
                 ),
             );
         }
-        let (rest, state) = state_label(rest)?;
+        let (rest, (state, compartment)) = labels(rest)?;
         Ok((
             rest,
             Species {
                 kind: SpeciesKind::Formula(formula),
                 state,
+                compartment,
                 composition,
                 span: self.span(input, rest),
             },
@@ -794,8 +806,15 @@ fn electron(input: &str) -> Result<Option<(&str, ())>, nom::Err<PErr<'_>>> {
     }))
 }
 
-/// An optional state label: `(s)`, `(l)`, `(g)`, `(aq)`, `(cr)`, after optional spaces.
-fn state_label(input: &str) -> Res<'_, Option<State>> {
+/// A label read after a species.
+enum Label {
+    State(State),
+    Compartment(Compartment),
+}
+
+/// An optional label after optional spaces: a state `(s)`, `(l)`, `(g)`, `(aq)`, `(cr)` or a
+/// compartment `(cathode)`, `(anode)`.
+fn label(input: &str) -> Res<'_, Option<Label>> {
     let trimmed = input.trim_start();
     let Some(inner) = trimmed.strip_prefix('(') else {
         return Ok((input, None));
@@ -808,14 +827,45 @@ fn state_label(input: &str) -> Res<'_, Option<State>> {
         .unwrap_or(inner.len());
     let label = &inner[..label_len];
     let after = &inner[label_len..];
-    match (State::from_label(label), after.strip_prefix(')')) {
-        (Some(state), Some(rest)) => Ok((rest, Some(state))),
+    let read = State::from_label(label)
+        .map(Label::State)
+        .or_else(|| Compartment::from_label(label).map(Label::Compartment));
+    match (read, after.strip_prefix(')')) {
+        (Some(read), Some(rest)) => Ok((rest, Some(read))),
         _ => fail(
             trimmed,
             label_len + 1 + usize::from(after.starts_with(')')),
             NotationErrorKind::Syntax,
-            format!("unknown state label '({label})': use (s), (l), (g), (aq) or (cr)"),
+            format!(
+                "unknown state label '({label})': use (s), (l), (g), (aq) or (cr), or a compartment (cathode) or (anode)"
+            ),
         ),
+    }
+}
+
+/// An optional state label, then an optional compartment label: `Cu2+(aq)(anode)`.
+fn labels(input: &str) -> Res<'_, (Option<State>, Option<Compartment>)> {
+    let (rest, first) = label(input)?;
+    match first {
+        None => Ok((rest, (None, None))),
+        Some(Label::Compartment(c)) => Ok((rest, (None, Some(c)))),
+        Some(Label::State(state)) => {
+            let (after, second) = label(rest)?;
+            match second {
+                None => Ok((rest, (Some(state), None))),
+                Some(Label::Compartment(c)) => Ok((after, (Some(state), Some(c)))),
+                Some(Label::State(_)) => {
+                    let at = rest.trim_start();
+                    let len = at.find(')').map_or(at.len(), |i| i + 1);
+                    fail(
+                        at,
+                        len,
+                        NotationErrorKind::Syntax,
+                        "a second state label: a species has one state",
+                    )
+                }
+            }
+        }
     }
 }
 

@@ -85,8 +85,9 @@ mod properties {
     //! parse(display(x)) == x for generated species and equations, and no input panics.
     use couplet::elements::Element;
     use couplet::notation::{
-        Arrow, Bracket, Component, Equation, Formula, Species, SpeciesKind, State, Style, Term,
-        Unit, equation_to_string, parse_equation, parse_input, parse_species, species_to_string,
+        Arrow, Bracket, Compartment, Component, Equation, Formula, Species, SpeciesKind, State,
+        Style, Term, Unit, equation_to_string, parse_equation, parse_input, parse_species,
+        species_to_string,
     };
     use num_rational::Ratio;
     use proptest::prelude::*;
@@ -137,6 +138,14 @@ mod properties {
             })
     }
 
+    fn compartment() -> impl Strategy<Value = Option<Compartment>> {
+        prop_oneof![
+            8 => Just(None),
+            1 => Just(Some(Compartment::Cathode)),
+            1 => Just(Some(Compartment::Anode)),
+        ]
+    }
+
     fn state() -> impl Strategy<Value = Option<State>> {
         prop_oneof![
             Just(None),
@@ -157,10 +166,11 @@ mod properties {
                 e.state = state;
                 e
             }),
-            9 => (formula(), state()).prop_filter_map("charge beyond the protons", |(f, state)| {
+            9 => (formula(), state(), compartment()).prop_filter_map("charge beyond the protons", |(f, state, compartment)| {
                 let shell = Species {
                     kind: SpeciesKind::Formula(f),
                     state,
+                    compartment,
                     composition: Default::default(),
                     span: Default::default(),
                 };
@@ -198,10 +208,11 @@ mod properties {
         #![proptest_config(ProptestConfig::with_cases(2000))]
 
         #[test]
-        fn generated_formulas_read_back_as_generated(f in formula(), state in state()) {
+        fn generated_formulas_read_back_as_generated(f in formula(), state in state(), compartment in compartment()) {
             let shell = Species {
                 kind: SpeciesKind::Formula(f),
                 state,
+                compartment,
                 composition: Default::default(),
                 span: Default::default(),
             };
@@ -334,5 +345,23 @@ mod command {
             .unwrap();
         let text = String::from_utf8(output.stdout).unwrap();
         assert!(text.contains("as written: not balanced"), "{text}");
+    }
+}
+
+#[test]
+fn compartment_labels_follow_the_state_label() {
+    let s = parse_species("Cu2+(aq)(anode)").unwrap();
+    assert_eq!(s.ascii(), "Cu2+(aq)(anode)");
+    assert_eq!(
+        parse_species("Cu2+(cathode)").unwrap().ascii(),
+        "Cu2+(cathode)"
+    );
+    assert_ne!(
+        parse_species("Cu2+(cathode)").unwrap(),
+        parse_species("Cu2+(anode)").unwrap()
+    );
+    for bad in ["e-(anode)", "Cu2+(aq)(s)", "Cu2+(left)"] {
+        let err = parse_species(bad).unwrap_err();
+        assert_eq!(err.kind, NotationErrorKind::Syntax, "{bad}");
     }
 }
