@@ -62,7 +62,16 @@ pub fn run(args: &TableCommandArgs) -> u8 {
         };
     }
     if found.is_empty() {
-        eprintln!("no couple fits; try an element name or symbol, or `couplet table` for all");
+        let hints = args
+            .query
+            .as_deref()
+            .map(|q| table.suggestions(q))
+            .unwrap_or_default();
+        if !hints.is_empty() {
+            eprintln!("no couple fits; did you mean: {}?", hints.join(", "));
+        } else {
+            eprintln!("no couple fits; try an element name or symbol, or `couplet table` for all");
+        }
         return EXIT_FINDINGS;
     }
     let mut out = String::new();
