@@ -46,6 +46,11 @@ pub fn load_table(args: &TableArgs) -> Result<Table, u8> {
     Ok(table)
 }
 
+/// The loaded table and the scale asked for, or the error printed and the exit status.
+pub fn table_and_scale(args: &TableArgs) -> Result<(Table, Scale), u8> {
+    Ok((load_table(args)?, scale(args)?))
+}
+
 /// The scale asked for, or an error printed.
 pub fn scale(args: &TableArgs) -> Result<Scale, u8> {
     Scale::from_name(&args.scale, args.ph).map_err(|error| {

@@ -8,6 +8,7 @@ mod check;
 mod common;
 mod derive;
 mod discharge;
+mod electrode;
 mod nernst;
 mod oxidation;
 mod parse;
@@ -71,6 +72,11 @@ enum Command {
         after_help = "Examples:\n  couplet derive Fe3+/Fe2+ Fe2+/Fe\n  couplet derive --json Cu2+/Cu+ Cu+/Cu"
     )]
     Derive(derive::DeriveArgs),
+    /// Potential of one electrode at a composition, on the SHE, RHE or a reference-electrode scale
+    #[command(
+        after_help = "Examples:\n  couplet electrode Ag+/Ag --activity Ag+=0.01 --scale sce\n  couplet electrode O2/H2O --ph 7 --pressure O2=0.21 --scale rhe\n  couplet electrode Fe3+/Fe2+ --activity Fe3+=0.1 --activity Fe2+=0.01 --json"
+    )]
+    Electrode(electrode::ElectrodeCommandArgs),
     /// E against pH for a half-reaction (CSV: pH,E_V), other species at unit activity unless given
     #[command(name = "ph-line")]
     #[command(after_help = "Examples:\n  couplet ph-line MnO4-/Mn2+ --from 0 --to 14 --step 0.5")]
@@ -114,6 +120,7 @@ pub fn run() -> ExitCode {
         Command::Oxidation(args) => oxidation::run(&args),
         Command::Capacity(args) => capacity::run(&args),
         Command::Discharge(args) => discharge::run(&args),
+        Command::Electrode(args) => electrode::run(&args),
         Command::PhLine(args) => nernst::run_ph_line(&args),
         Command::Check(args) => check::run(&args),
     };

@@ -8,6 +8,7 @@ mod capacity;
 mod cell;
 mod check;
 mod discharge;
+mod electrode;
 mod elements;
 mod export;
 mod nernst;
