@@ -4,8 +4,8 @@
 use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, report_lookup};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, print_json};
 use couplet::capacity::{
-    Basis, CapacityError, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
-    half_reaction_materials,
+    Basis, CapacityError, CellCapacity, Densities, ElectrolyteCapacity, MaterialCapacity,
+    cell_capacity, cell_materials, electrolyte_capacity, half_reaction_materials,
 };
 use couplet::cell::caution;
 use couplet::constants::STANDARD_TEMPERATURE_KELVIN;
@@ -39,9 +39,13 @@ pub struct CapacityArgs {
     /// value from data/densities.toml
     #[arg(long = "density", value_name = "SPECIES=G_PER_CM3")]
     densities: Vec<String>,
+    /// Flow cells: concentration of a side's active species in its electrolyte
+    /// (SPECIES=MOL_PER_L, e.g. VO2+=1.6), repeatable, one per side; gives Ah/L and Wh/L
+    #[arg(long = "electrolyte", value_name = "SPECIES=MOL_PER_L")]
+    electrolytes: Vec<String>,
     #[command(flatten)]
     table: TableArgs,
-    /// Print JSON: {"materials": [...], "cell": {...} | null}
+    /// Print JSON: {"materials": [...], "cell": {...} | null, "electrolyte": {...} | null}
     #[arg(long)]
     json: bool,
 }
@@ -77,6 +81,69 @@ fn densities(given: &[String]) -> Result<Densities, u8> {
         }
     }
     Ok(densities)
+}
+
+/// Reads `SPECIES=MOL_PER_L` pairs.
+fn electrolytes(given: &[String]) -> Result<Vec<(couplet::notation::Species, f64)>, u8> {
+    given
+        .iter()
+        .map(|item| {
+            let parsed = item.rsplit_once('=').and_then(|(name, value)| {
+                Some((parse_species(name.trim()).ok()?, value.trim().parse().ok()?))
+            });
+            parsed.ok_or_else(|| {
+                eprintln!(
+                    "error: --electrolyte '{item}': expected SPECIES=MOL_PER_L, e.g. VO2+=1.6"
+                );
+                EXIT_USAGE
+            })
+        })
+        .collect()
+}
+
+fn electrolyte_json(e: &ElectrolyteCapacity) -> Value {
+    json!({
+        "sides": e.sides.iter().map(|s| json!({
+            "species": s.species.ascii(),
+            "half_reaction": s.half.to_string(),
+            "mol_per_L": s.concentration_mol_per_litre,
+            "electrons_per_mol": s.electrons_per_mol.to_string(),
+            "Ah_per_L": s.amp_hours_per_litre,
+            "Wh_per_L": s.watt_hours_per_litre,
+        })).collect::<Vec<_>>(),
+        "e_V": e.e_volts,
+        "Ah_per_L_both_tanks": e.amp_hours_per_litre_both,
+        "Wh_per_L_both_tanks": e.watt_hours_per_litre_both,
+    })
+}
+
+fn print_electrolyte(e: &ElectrolyteCapacity) {
+    for s in &e.sides {
+        let energy = s
+            .watt_hours_per_litre
+            .map_or(String::new(), |wh| format!(", {wh:.1} Wh/L"));
+        println!(
+            "electrolyte {} at {} mol/L: {:.1} Ah/L{energy} of this side's electrolyte ({} e- per {}; q = c·n·F/3600)",
+            s.species.unicode(),
+            s.concentration_mol_per_litre,
+            s.amp_hours_per_litre,
+            s.electrons_per_mol,
+            s.species.ascii()
+        );
+    }
+    println!(
+        "theoretical: every active species converted between its charged and discharged form; no crossover, side reactions or unused electrolyte"
+    );
+    if let Some(ah) = e.amp_hours_per_litre_both {
+        let energy = e
+            .watt_hours_per_litre_both
+            .map_or(String::new(), |wh| format!(", {wh:.1} Wh/L"));
+        println!(
+            "both tanks  {ah:.1} Ah/L{energy} of the two electrolytes together (tanks sized to equal charge{})",
+            e.e_volts
+                .map_or(String::new(), |v| format!("; at E = {v:.4} V"))
+        );
+    }
 }
 
 fn small_int(value: &num_bigint::BigInt) -> i64 {
@@ -198,6 +265,20 @@ fn print_cell(c: &CellCapacity) {
     println!("theoretical figures: no separator, case, current collector or unused electrolyte");
 }
 
+/// The electrolyte figures when concentrations were given.
+fn electrolyte_figures(
+    given: &[(couplet::notation::Species, f64)],
+    halves: &[&Reaction],
+    e_volts: Option<f64>,
+) -> Result<Option<ElectrolyteCapacity>, u8> {
+    if given.is_empty() {
+        return Ok(None);
+    }
+    electrolyte_capacity(halves, given, e_volts)
+        .map(Some)
+        .map_err(|e| report(&e))
+}
+
 fn report(error: &CapacityError) -> u8 {
     eprintln!("error: {error}");
     EXIT_FINDINGS
@@ -210,6 +291,10 @@ pub fn run(args: &CapacityArgs) -> u8 {
     };
     let table = match load_table(&args.table) {
         Ok(table) => table,
+        Err(status) => return status,
+    };
+    let given = match electrolytes(&args.electrolytes) {
+        Ok(given) => given,
         Err(status) => return status,
     };
     if let Some(query) = &args.couple {
@@ -229,18 +314,30 @@ pub fn run(args: &CapacityArgs) -> u8 {
                 Err(e) => return report_lookup(&e),
             }
         };
-        let materials = match half_reaction_materials(&half, &densities) {
-            Ok(m) => m,
-            Err(e) => return report(&e),
+        let flow = match electrolyte_figures(&given, &[&half], None) {
+            Ok(flow) => flow,
+            Err(status) => return status,
+        };
+        // A flow electrode has no solid material: with a concentration, that is no error.
+        let materials = match (half_reaction_materials(&half, &densities), &flow) {
+            (Ok(m), _) => m,
+            (Err(CapacityError::NoMaterials(_)), Some(_)) => Vec::new(),
+            (Err(e), _) => return report(&e),
         };
         if args.json {
             print_json(&json!({
                 "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
                 "cell": Value::Null,
+                "electrolyte": flow.as_ref().map(electrolyte_json),
             }));
         } else {
             println!("half     {}", half.to_text(Style::Unicode, Arrow::Forward));
-            print_materials(&materials);
+            if !materials.is_empty() {
+                print_materials(&materials);
+            }
+            if let Some(flow) = &flow {
+                print_electrolyte(flow);
+            }
         }
         return EXIT_OK;
     }
@@ -268,15 +365,27 @@ pub fn run(args: &CapacityArgs) -> u8 {
         .at_temperature
         .as_ref()
         .map_or(cell.e0_volts, |t| t.e0_volts);
+    let flow = match electrolyte_figures(
+        &given,
+        &[&cell.cathode.reaction, &cell.anode.reaction],
+        Some(e_volts),
+    ) {
+        Ok(flow) => flow,
+        Err(status) => return status,
+    };
+    // A flow cell has nothing to weigh on the active basis: with concentrations given, the
+    // volumetric figures stand on their own.
     let figures = match cell_capacity(&cell.net, &cell.electrons, e_volts, args.basis, &densities) {
-        Ok(f) => f,
+        Ok(f) => Some(f),
+        Err(CapacityError::NothingOnBasis { .. }) if flow.is_some() => None,
         Err(e) => return report(&e),
     };
     let materials = cell_materials(&cell.net, &cell.electrons, &densities);
     if args.json {
         print_json(&json!({
             "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
-            "cell": cell_json(&figures),
+            "cell": figures.as_ref().map(cell_json),
+            "electrolyte": flow.as_ref().map(electrolyte_json),
         }));
         return EXIT_OK;
     }
@@ -291,7 +400,12 @@ pub fn run(args: &CapacityArgs) -> u8 {
     if !materials.is_empty() {
         print_materials(&materials);
     }
-    print_cell(&figures);
+    if let Some(figures) = &figures {
+        print_cell(figures);
+    }
+    if let Some(flow) = &flow {
+        print_electrolyte(flow);
+    }
     if let Some(line) = caution(&cell.net) {
         println!("{line}");
     }
