@@ -181,7 +181,8 @@ impl Reaction {
         let mut elements: Vec<(Element, i128)> = Vec::new();
         let mut charge: i128 = 0;
         for e in &self.entries {
-            if !e.nu.is_integer() {
+            // Non-integer stoichiometry takes the rational recount.
+            if !e.nu.is_integer() || !e.species.composition.is_integral() {
                 return None;
             }
             let nu = i128::try_from(e.nu.numer()).ok()?;
@@ -210,8 +211,8 @@ impl Reaction {
         let mut charge = BigRational::zero();
         for e in &self.entries {
             charge += &e.nu * BigRational::from_integer(BigInt::from(e.species.charge()));
-            for &(element, count) in e.species.composition.counts() {
-                let change = &e.nu * BigRational::from_integer(BigInt::from(count));
+            for (element, count) in e.species.composition.exact_counts() {
+                let change = &e.nu * ratio_u64(&count);
                 match elements.iter_mut().find(|(el, _)| *el == element) {
                     Some((_, total)) => *total += change,
                     None => elements.push((element, change)),

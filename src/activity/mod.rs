@@ -244,7 +244,7 @@ fn merge(a: Vec<(String, u64)>, b: Vec<(String, u64)>) -> Vec<(String, u64)> {
 pub fn split_electrolyte(species: &Species) -> Option<(Species, u32, Species, u32)> {
     static C: OnceLock<Vec<Species>> = OnceLock::new();
     static A: OnceLock<Vec<Species>> = OnceLock::new();
-    if species.charge() != 0 || species.is_electron() {
+    if species.charge() != 0 || species.is_electron() || !species.composition.is_integral() {
         return None;
     }
     let target = sorted_counts(species, 1);

@@ -3,6 +3,7 @@
 
 use super::parse::report_error;
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, argument_or_stdin, print_json};
+use couplet::composition::decimal_text;
 use couplet::notation::{Equation, Input, parse_input, parse_species};
 use couplet::oxidation::{
     ElementChange, IonTable, Options, OxidationError, Pin, RedoxAnalysis, RedoxError,
@@ -243,6 +244,18 @@ fn failure(error: &OxidationError, json: bool) -> u8 {
     EXIT_FINDINGS
 }
 
+/// Atoms per formula unit: a JSON integer, or the decimal of a non-integer subscript.
+fn atoms_json(result: &SpeciesOxidation, count: u64) -> Value {
+    let atoms = result.per_formula_unit(count);
+    if atoms.is_integer() {
+        json!(atoms.numer())
+    } else {
+        decimal_text(&atoms)
+            .parse::<serde_json::Number>()
+            .map_or(Value::Null, Value::Number)
+    }
+}
+
 /// The JSON schema of issue 4 (documented in the README).
 pub fn result_json(result: &SpeciesOxidation) -> Value {
     let elements: Vec<Value> = result
@@ -251,7 +264,7 @@ pub fn result_json(result: &SpeciesOxidation) -> Value {
         .map(|e| {
             let mut object = json!({
                 "element": e.element.symbol(),
-                "count": e.count,
+                "count": atoms_json(result, e.count),
                 "oxidation_number": signed_text(&e.oxidation_number),
                 "status": e.status.name(),
                 "rule": e.rule.text(),
@@ -263,7 +276,7 @@ pub fn result_json(result: &SpeciesOxidation) -> Value {
                         .map(|s| {
                             json!({
                                 "oxidation_number": signed_text(&s.oxidation_number),
-                                "count": s.count,
+                                "count": atoms_json(result, s.count),
                             })
                         })
                         .collect(),
@@ -286,7 +299,7 @@ fn result_table(result: &SpeciesOxidation) -> String {
             "  {:<7} {:>9} {:>6}  {:<10}  {}\n",
             e.element.symbol(),
             signed_text(&e.oxidation_number),
-            e.count,
+            decimal_text(&result.per_formula_unit(e.count)),
             e.status.name(),
             e.rule.text()
         ));
@@ -296,7 +309,7 @@ fn result_table(result: &SpeciesOxidation) -> String {
                     "  {:<7} {:>9} {:>6}  {:<10}  {}\n",
                     "  site",
                     signed_text(&s.oxidation_number),
-                    s.count,
+                    decimal_text(&result.per_formula_unit(s.count)),
                     s.status.name(),
                     s.rule.text()
                 ));

@@ -59,6 +59,10 @@ pub enum Bracket {
     Square,
 }
 
+/// A subscript: a whole number, or an exact decimal for non-integer stoichiometry (`0.8` in
+/// `LiNi0.8Mn0.1Co0.1O2`, kept as the rational 4/5).
+pub type Count = Ratio<u64>;
+
 /// One piece of a formula body: an element with its count, or a bracketed group with its count.
 #[derive(Clone, Debug, PartialEq, Eq, Hash)]
 pub enum Unit {
@@ -67,7 +71,7 @@ pub enum Unit {
         /// The element (or isotope label).
         element: Element,
         /// The subscript, 1 when none was written.
-        count: u32,
+        count: Count,
         /// Where it was read.
         span: Span,
     },
@@ -78,7 +82,7 @@ pub enum Unit {
         /// What is inside.
         body: Vec<Unit>,
         /// The subscript after the closing bracket, 1 when none was written.
-        count: u32,
+        count: Count,
         /// Where it was read, brackets and count included.
         span: Span,
     },

@@ -18,8 +18,8 @@
 //! - `-` followed by `>` is always the arrow, never a charge.
 
 use super::{
-    Arrow, Bracket, Compartment, Component, Equation, Formula, NotationError, NotationErrorKind,
-    Span, Species, SpeciesKind, State, Term, Unit,
+    Arrow, Bracket, Compartment, Component, Count, Equation, Formula, NotationError,
+    NotationErrorKind, Span, Species, SpeciesKind, State, Term, Unit,
 };
 use crate::composition::Composition;
 use crate::elements::Element;
@@ -134,6 +134,14 @@ fn digit_value(c: char, digits: &[char; 10]) -> Option<u64> {
     digits.iter().position(|&d| d == c).map(|v| v as u64)
 }
 
+/// The value of a digit in `script` (ASCII when `None`).
+fn digit_in(c: char, script: Option<&[char; 10]>) -> Option<u64> {
+    match script {
+        None => c.to_digit(10).filter(|_| c.is_ascii_digit()).map(u64::from),
+        Some(set) => digit_value(c, set),
+    }
+}
+
 /// Digits in one script (ASCII, subscript or superscript) as a number, with their length in
 /// bytes; `None` when there are no such digits. Fails past `limit`.
 fn number_in<'a>(
@@ -145,13 +153,8 @@ fn number_in<'a>(
     let mut value: u64 = 0;
     let mut taken = 0;
     for c in input.chars() {
-        let digit = match script {
-            None if c.is_ascii_digit() => (c as u8 - b'0') as u64,
-            Some(set) => match digit_value(c, set) {
-                Some(d) => d,
-                None => break,
-            },
-            None => break,
+        let Some(digit) = digit_in(c, script) else {
+            break;
         };
         value = match value.checked_mul(10).and_then(|v| v.checked_add(digit)) {
             Some(v) if v <= limit => v,
@@ -177,29 +180,126 @@ fn number_in<'a>(
     }
 }
 
-/// A subscript after an element or group, in ASCII or Unicode subscript digits.
-/// Returns the count and whether ASCII digits were written (only those can turn out to be a
-/// charge, as in `Fe3+`).
-fn count(input: &str) -> Res<'_, (u32, bool)> {
-    let max = super::LIMITS.max_count as u64;
-    let (rest, ascii) = number_in(input, None, max, "a count")?;
-    let (rest, value, written_ascii) = match ascii {
-        Some(v) => (rest, Some(v), true),
-        None => {
-            let (rest, sub) = number_in(input, Some(&SUBSCRIPTS), max, "a count")?;
-            (rest, sub, false)
+/// Most decimal places a subscript may have.
+const MAX_DECIMAL_PLACES: u32 = 6;
+
+/// The digits after a decimal point, in `script` (ASCII when `None`): value and places.
+fn decimals<'a>(input: &'a str, script: Option<&[char; 10]>) -> Res<'a, (u64, u32)> {
+    let mut value = 0u64;
+    let mut places = 0u32;
+    let mut taken = 0;
+    for c in input.chars() {
+        let Some(digit) = digit_in(c, script) else {
+            break;
+        };
+        places += 1;
+        if places > MAX_DECIMAL_PLACES {
+            return fail(
+                input,
+                taken + c.len_utf8(),
+                NotationErrorKind::Limit,
+                format!("a subscript with more than {MAX_DECIMAL_PLACES} decimal places"),
+            );
         }
-    };
-    match value {
-        None => Ok((input, (1, false))),
-        Some(0) => fail(
+        value = value * 10 + digit;
+        taken += c.len_utf8();
+    }
+    Ok((&input[taken..], (value, places)))
+}
+
+/// `whole.decimals` as an exact count, checked against the limit.
+fn decimal_count<'a>(
+    start: &'a str,
+    rest: &'a str,
+    whole: u64,
+    (decimals, places): (u64, u32),
+) -> Res<'a, Count> {
+    let scale = 10u64.pow(places);
+    let value = Ratio::new(whole * scale + decimals, scale);
+    if value > Ratio::from_integer(super::LIMITS.max_count as u64) {
+        return fail(
+            start,
+            start.len() - rest.len(),
+            NotationErrorKind::Limit,
+            format!(
+                "a count is larger than the limit of {}",
+                super::LIMITS.max_count
+            ),
+        );
+    }
+    Ok((rest, value))
+}
+
+/// A subscript after an element or group: ASCII digits, Unicode subscript digits, or a decimal
+/// (`0.8`, `1.25`, `₀.₅`, `_{2.5}`). Returns the count and whether ASCII digits of a whole
+/// number were written (only those can turn out to be a charge, as in `Fe3+`).
+///
+/// A decimal point after ASCII digits is read as such only after `0` or `1` (`Li0.5CoO2`,
+/// `Li1.2Mn0.6Ni0.2O2`): after larger digits it stays the adduct dot of `CuSO4.5H2O`. A
+/// larger decimal is written in braces, `_{2.5}` (as mhchem does), or in subscript digits.
+fn count(input: &str) -> Res<'_, (Count, bool)> {
+    let max = super::LIMITS.max_count as u64;
+    let zero = |rest: &str| {
+        fail(
             input,
             input.len() - rest.len(),
             NotationErrorKind::Syntax,
             "a count of zero: leave the element out instead",
-        ),
-        Some(v) => Ok((rest, (v as u32, written_ascii))),
+        )
+    };
+    if let Some(inner) = input.strip_prefix("_{") {
+        let (rest, whole) = number_in(inner, None, max, "a count")?;
+        let Some(whole) = whole else {
+            return syntax(inner, "expected digits of a subscript after '_{'");
+        };
+        let (rest, value) = match rest.strip_prefix('.') {
+            Some(after) => {
+                let (after, digits) = decimals(after, None)?;
+                if digits.1 == 0 {
+                    return syntax(after, "expected digits after the decimal point");
+                }
+                decimal_count(input, after, whole, digits)?
+            }
+            None => (rest, Ratio::from_integer(whole)),
+        };
+        let Some(rest) = rest.strip_prefix('}') else {
+            return syntax(rest, "expected '}' to close the subscript");
+        };
+        if value == Ratio::from_integer(0) {
+            return zero(rest);
+        }
+        return Ok((rest, (value, false)));
     }
+    let (rest, ascii) = number_in(input, None, max, "a count")?;
+    let (rest, value, written_ascii, script) = match ascii {
+        Some(v) => (rest, Some(v), true, None),
+        None => {
+            let (rest, sub) = number_in(input, Some(&SUBSCRIPTS), max, "a count")?;
+            (rest, sub, false, Some(&SUBSCRIPTS))
+        }
+    };
+    let Some(whole) = value else {
+        return Ok((input, (Ratio::from_integer(1), false)));
+    };
+    // A decimal point: before subscript digits always, before ASCII digits after 0 or 1.
+    if let Some(after) = rest.strip_prefix('.') {
+        let next_is_digit = match script {
+            None => after.starts_with(|c: char| c.is_ascii_digit()) && whole <= 1,
+            Some(set) => after.chars().next().is_some_and(|c| set.contains(&c)),
+        };
+        if next_is_digit {
+            let (after, digits) = decimals(after, script)?;
+            let (after, value) = decimal_count(input, after, whole, digits)?;
+            if value == Ratio::from_integer(0) {
+                return zero(after);
+            }
+            return Ok((after, (value, false)));
+        }
+    }
+    if whole == 0 {
+        return zero(rest);
+    }
+    Ok((rest, (Ratio::from_integer(whole), written_ascii)))
 }
 
 // ---------------------------------------------------------------- formulas
@@ -250,6 +350,21 @@ struct LastCount {
     value: u32,
 }
 
+impl LastCount {
+    /// Only whole ASCII digits can be lent to a charge.
+    fn of(count: Count, ascii_written: bool) -> LastCount {
+        let whole = count.is_integer();
+        LastCount {
+            ascii_written: ascii_written && whole,
+            value: if whole {
+                u32::try_from(*count.numer()).unwrap_or(u32::MAX)
+            } else {
+                0
+            },
+        }
+    }
+}
+
 /// Parsing context: the whole text (for spans) and the bracket depth.
 #[derive(Clone, Copy)]
 struct Ctx<'a> {
@@ -278,16 +393,7 @@ impl<'a> Ctx<'a> {
                     count,
                     span: self.span(input, rest),
                 };
-                return Ok((
-                    rest,
-                    (
-                        unit,
-                        LastCount {
-                            ascii_written,
-                            value: count,
-                        },
-                    ),
-                ));
+                return Ok((rest, (unit, LastCount::of(count, ascii_written))));
             }
         };
         // `(` before a small letter starts a state label, not a group.
@@ -328,16 +434,7 @@ impl<'a> Ctx<'a> {
             count,
             span: self.span(input, rest),
         };
-        Ok((
-            rest,
-            (
-                unit,
-                LastCount {
-                    ascii_written,
-                    value: count,
-                },
-            ),
-        ))
+        Ok((rest, (unit, LastCount::of(count, ascii_written))))
     }
 
     /// One or more units, and how the last one's count was written.
@@ -448,7 +545,9 @@ impl<'a> Ctx<'a> {
         let (rest, charge) = charge(after_body, lendable)?;
         if let Charge::Borrowed(_) = charge {
             match components[0].body.last_mut() {
-                Some(Unit::Atom { count, .. }) | Some(Unit::Group { count, .. }) => *count = 1,
+                Some(Unit::Atom { count, .. }) | Some(Unit::Group { count, .. }) => {
+                    *count = Ratio::from_integer(1)
+                }
                 None => {}
             }
         }
@@ -479,12 +578,15 @@ impl<'a> Ctx<'a> {
                 );
             }
         };
+        // Protons per `denominator` formula units, like the counts.
         let protons: u64 = composition
             .counts()
             .iter()
-            .map(|&(e, n)| e.atomic_number() as u64 * n)
-            .sum();
-        if charge_value > 0 && charge_value as u64 > protons {
+            .map(|&(e, n)| (e.atomic_number() as u64).saturating_mul(n))
+            .fold(0, u64::saturating_add);
+        let denominator = composition.denominator();
+        if charge_value > 0 && (charge_value as u64).saturating_mul(denominator) > protons {
+            let protons = crate::composition::decimal_text(&Ratio::new(protons, denominator));
             return fail(
                 input,
                 input.len() - rest.len(),
@@ -950,24 +1052,33 @@ fn composition_of(formula: &Formula) -> Option<Composition> {
         add_units(
             &mut composition,
             &component.body,
-            component.multiplier as u64,
+            Ratio::from_integer(component.multiplier as u64),
         )?;
     }
     Some(composition)
 }
 
-fn add_units(composition: &mut Composition, units: &[Unit], multiplier: u64) -> Option<()> {
+fn add_units(composition: &mut Composition, units: &[Unit], multiplier: Count) -> Option<()> {
     for unit in units {
         match unit {
+            // Whole numbers, the usual case, stay in integer arithmetic.
+            Unit::Atom { element, count, .. } if count.is_integer() && multiplier.is_integer() => {
+                composition.add(*element, count.numer().checked_mul(*multiplier.numer())?)?;
+            }
             Unit::Atom { element, count, .. } => {
-                composition.add(*element, (*count as u64).checked_mul(multiplier)?)?;
+                composition.add_exact(*element, checked_product(count, &multiplier)?)?;
             }
             Unit::Group { body, count, .. } => {
-                add_units(composition, body, (*count as u64).checked_mul(multiplier)?)?;
+                add_units(composition, body, checked_product(count, &multiplier)?)?;
             }
         }
     }
     Some(())
+}
+
+fn checked_product(a: &Count, b: &Count) -> Option<Count> {
+    use num_traits::CheckedMul;
+    a.checked_mul(b)
 }
 
 // ---------------------------------------------------------------- entry points

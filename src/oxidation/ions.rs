@@ -13,7 +13,7 @@ use super::rules::{Fragment, assign_fragment};
 use super::{Assignment, OxidationError, Pin, Rule, Status, parse_signed_rational};
 use crate::composition::Composition;
 use crate::elements::Element;
-use crate::notation::{Formula, SpeciesKind, Unit, parse_species};
+use crate::notation::{Count, Formula, SpeciesKind, Unit, parse_species};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
@@ -158,11 +158,10 @@ fn check_entry(index: usize, entry: &IonEntry) -> Result<KnownIon, IonTableError
     let mut body = formula.components[0].body.clone();
     if let [
         Unit::Group {
-            body: inner,
-            count: 1,
-            ..
+            body: inner, count, ..
         },
     ] = body.as_slice()
+        && *count == Count::from(1)
     {
         body = inner.clone();
     }
@@ -223,15 +222,20 @@ fn same_atoms(a: &[(Element, u64)], b: &[(Element, u64)]) -> bool {
     a.len() == b.len() && a.iter().all(|x| b.contains(x))
 }
 
+/// A whole-number subscript; `None` for a decimal one (such formulas are not split into ions).
+fn whole(count: &Count) -> Option<u64> {
+    count.is_integer().then(|| *count.numer())
+}
+
 /// Atom counts of some units, times `factor`; `None` on overflow.
 fn units_composition(units: &[Unit], factor: u64, into: &mut Composition) -> Option<()> {
     for unit in units {
         match unit {
             Unit::Atom { element, count, .. } => {
-                into.add(*element, (*count as u64).checked_mul(factor)?)?
+                into.add(*element, whole(count)?.checked_mul(factor)?)?
             }
             Unit::Group { body, count, .. } => {
-                units_composition(body, factor.checked_mul(*count as u64)?, into)?
+                units_composition(body, factor.checked_mul(whole(count)?)?, into)?
             }
         }
     }
@@ -264,7 +268,7 @@ fn scan(
     while i < units.len() {
         match &units[i] {
             Unit::Group { body, count, .. } => {
-                let times = factor.checked_mul(*count as u64)?;
+                let times = factor.checked_mul(whole(count)?)?;
                 let mut atoms = Composition::default();
                 units_composition(body, 1, &mut atoms)?;
                 // A bracketed group may be a one-element ion too (azide in Pb(N3)2): the
@@ -295,7 +299,7 @@ fn scan(
                         i += len;
                     }
                     _ => {
-                        rest.add(*element, (*count as u64).checked_mul(factor)?)?;
+                        rest.add(*element, whole(count)?.checked_mul(factor)?)?;
                         i += 1;
                     }
                 }
@@ -328,6 +332,17 @@ pub(super) fn assign(
     pins: &[Pin],
 ) -> Result<Vec<Assignment>, OxidationError> {
     let charge = composition.charge();
+    if !composition.is_integral() {
+        // Non-integer stoichiometry: no ion split; the rules on whole atoms of
+        // `denominator` formula units, whose charge is `denominator` times the species'.
+        let scaled = BigInt::from(charge) * BigInt::from(composition.denominator());
+        return assign_fragment(
+            composition.counts(),
+            &BigRational::from_integer(scaled),
+            pins,
+            Fragment::SharedSites,
+        );
+    }
     let whole = || {
         assign_fragment(
             composition.counts(),

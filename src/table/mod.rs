@@ -771,7 +771,9 @@ fn sorted_counts(s: &Species) -> Vec<(Element, u64)> {
 
 /// The same atoms, whatever the charge.
 fn same_atoms(a: &Species, b: &Species) -> bool {
-    a.is_electron() == b.is_electron() && sorted_counts(a) == sorted_counts(b)
+    a.is_electron() == b.is_electron()
+        && a.composition.denominator() == b.composition.denominator()
+        && sorted_counts(a) == sorted_counts(b)
 }
 
 /// Levenshtein distance in characters, for ids typed nearly right.

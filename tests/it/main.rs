@@ -14,4 +14,5 @@ mod export;
 mod nernst;
 mod notation;
 mod oxidation;
+mod stoichiometry;
 mod table;

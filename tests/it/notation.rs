@@ -97,8 +97,17 @@ mod properties {
         proptest::sample::select(all)
     }
 
+    /// Whole subscripts mostly, and exact decimals (non-integer stoichiometry, up to three
+    /// places, below and above 2, which are written differently).
+    fn subscript(whole: std::ops::Range<u64>) -> impl Strategy<Value = Ratio<u64>> {
+        prop_oneof![
+            4 => whole.prop_map(Ratio::from_integer),
+            1 => (1u64..5000).prop_map(|n| Ratio::new(n, 1000)),
+        ]
+    }
+
     fn unit() -> impl Strategy<Value = Unit> {
-        let atom = (element(), 1u32..30).prop_map(|(element, count)| Unit::Atom {
+        let atom = (element(), subscript(1..30)).prop_map(|(element, count)| Unit::Atom {
             element,
             count,
             span: Default::default(),
@@ -107,7 +116,7 @@ mod properties {
             (
                 prop_oneof![Just(Bracket::Round), Just(Bracket::Square)],
                 proptest::collection::vec(inner, 1..3),
-                1u32..6,
+                subscript(1..6),
             )
                 .prop_map(|(bracket, body, count)| Unit::Group {
                     bracket,
