@@ -64,7 +64,7 @@ enum Command {
     Table(table::TableCommandArgs),
     /// Combine a cathode and an anode couple: net reaction, n, E°cell, ΔG°, K, temperature
     #[command(
-        after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --activity Cu2+=0.1 --activity Zn2+=0.001\n  couplet cell --cathode O2/OH- --anode ZnO/Zn --medium base --temperature 310 --json\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --emit python"
+        after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --activity Cu2+=0.1 --activity Zn2+=0.001\n  couplet cell --cathode O2/OH- --anode ZnO/Zn --medium base --temperature 310 --json\n  couplet cell --cathode Cu2+/Cu --anode Cu2+/Cu --activity 'Cu2+(cathode)=1' --activity 'Cu2+(anode)=0.1'\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --emit python"
     )]
     Cell(cell::CellArgs),
     /// A new couple from couples that share species, by adding free energies
@@ -83,7 +83,7 @@ enum Command {
     PhLine(nernst::PhLineArgs),
     /// Theoretical capacity (mAh/g, Ah/kg) and specific energy (Wh/kg, Wh/L) of materials and cells
     #[command(
-        after_help = "Examples:\n  couplet capacity Zn2+/Zn\n  couplet capacity --cathode PbO2/PbSO4 --anode PbSO4/Pb --basis with-electrolyte"
+        after_help = "Examples:\n  couplet capacity Zn2+/Zn\n  couplet capacity --cathode PbO2/PbSO4 --anode PbSO4/Pb --basis with-electrolyte\n  couplet capacity --cathode VO2+/VO^2+ --anode V3+/V2+ --electrolyte VO2+=1.6 --electrolyte V2+=1.6"
     )]
     Capacity(capacity::CapacityArgs),
     /// Open-circuit voltage along a discharge from initial amounts, with CSV and SVG output
