@@ -380,6 +380,18 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
             .entering()
             .any(|f| is_hydrogen_ion(&f.species) || is_hydroxide(&f.species));
         if !uses {
+            if let Some(f) = quotient.factors().iter().find(|f| {
+                let bare = Species {
+                    compartment: None,
+                    ..f.species.without_state()
+                };
+                f.species.compartment.is_some() && (is_hydrogen_ion(&bare) || is_hydroxide(&bare))
+            }) {
+                return Err(NernstError::NotUsable {
+                    species: f.species.ascii(),
+                    reason: "a concentration cell has a pH in each compartment: give --activity for H+(cathode) and H+(anode) (or OH-) instead of --ph".into(),
+                });
+            }
             return Err(NernstError::PhUnused);
         }
         for f in quotient.entering() {

@@ -459,3 +459,12 @@ fn a_concentration_cell_asks_for_each_compartment() {
         "{stderr}"
     );
 }
+
+#[test]
+fn a_concentration_cell_refuses_one_ph_for_two_compartments() {
+    let args = "cell --cathode H+/H2 --anode H+/H2 --ph 3";
+    let output = couplet().args(args.split(' ')).output().unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(stderr.contains("a pH in each compartment"), "{stderr}");
+}
