@@ -244,15 +244,16 @@ fn failure(error: &OxidationError, json: bool) -> u8 {
     EXIT_FINDINGS
 }
 
-/// Atoms per formula unit: a JSON integer, or the decimal of a non-integer subscript.
+/// Atoms per formula unit: a JSON integer, the decimal of a non-integer subscript, or a string
+/// for a fraction that is no decimal (`"1/3"`).
 fn atoms_json(result: &SpeciesOxidation, count: u64) -> Value {
     let atoms = result.per_formula_unit(count);
     if atoms.is_integer() {
         json!(atoms.numer())
     } else {
-        decimal_text(&atoms)
-            .parse::<serde_json::Number>()
-            .map_or(Value::Null, Value::Number)
+        let text = decimal_text(&atoms);
+        text.parse::<serde_json::Number>()
+            .map_or(json!(text), Value::Number)
     }
 }
 

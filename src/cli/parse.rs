@@ -76,7 +76,8 @@ fn coefficient_text(c: &Ratio<u64>) -> String {
 
 /// The JSON object of one species (schema in the README).
 pub fn species_json(species: &Species, coefficient: &Ratio<u64>, input_text: &str) -> Value {
-    // Whole counts as JSON integers; non-integer ones (Li0.5CoO2) as the decimal they are.
+    // Whole counts as JSON integers; non-integer ones as the decimal they are (Li0.5CoO2), or
+    // as a string when they are no decimal ("1/3").
     let elements: serde_json::Map<String, Value> = species
         .composition
         .exact_counts()
@@ -84,9 +85,9 @@ pub fn species_json(species: &Species, coefficient: &Ratio<u64>, input_text: &st
             let value = if n.is_integer() {
                 json!(n.numer())
             } else {
-                decimal_text(&n)
-                    .parse::<serde_json::Number>()
-                    .map_or(Value::Null, Value::Number)
+                let text = decimal_text(&n);
+                text.parse::<serde_json::Number>()
+                    .map_or(json!(text), Value::Number)
             };
             (e.symbol().to_owned(), value)
         })

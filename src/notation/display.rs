@@ -45,7 +45,9 @@ fn write_count(out: &mut String, count: Count, style: Style) {
     }
     // Decimals: `0.8` and `1.25` plain in ASCII (the parser reads a point after 0 or 1 as a
     // decimal point), larger ones and mhchem in braces, Unicode in subscript digits.
+    // Fractions that are no decimal (`1/3`) plain in ASCII, braced in mhchem.
     let text = decimal_text(&count);
+    let is_fraction = text.contains('/');
     match style {
         Style::Unicode => {
             for c in text.chars() {
@@ -55,7 +57,7 @@ fn write_count(out: &mut String, count: Count, style: Style) {
                 }
             }
         }
-        Style::Ascii if count < Ratio::from_integer(2) => out.push_str(&text),
+        Style::Ascii if is_fraction || count < Ratio::from_integer(2) => out.push_str(&text),
         _ => {
             let _ = write!(out, "_{{{text}}}");
         }

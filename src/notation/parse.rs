@@ -207,6 +207,37 @@ fn decimals<'a>(input: &'a str, script: Option<&[char; 10]>) -> Res<'a, (u64, u3
     Ok((&input[taken..], (value, places)))
 }
 
+/// A fraction bar and denominator after the numerator of a subscript (`1/3` in
+/// `LiNi1/3Mn1/3Co1/3O2`), in `script` (ASCII when `None`); `None` when no fraction follows.
+fn fraction<'a>(
+    start: &'a str,
+    rest: &'a str,
+    numerator: u64,
+    script: Option<&[char; 10]>,
+) -> Res<'a, Option<Count>> {
+    let Some(after) = rest.strip_prefix('/') else {
+        return Ok((rest, None));
+    };
+    if !after
+        .chars()
+        .next()
+        .is_some_and(|c| digit_in(c, script).is_some())
+    {
+        return Ok((rest, None));
+    }
+    let max = super::LIMITS.max_count as u64;
+    let (after, denominator) = number_in(after, script, max, "a subscript's denominator")?;
+    match denominator {
+        Some(0) | None => fail(
+            start,
+            start.len() - after.len(),
+            NotationErrorKind::Syntax,
+            "a subscript with a zero denominator",
+        ),
+        Some(d) => Ok((after, Some(Ratio::new(numerator, d)))),
+    }
+}
+
 /// `whole.decimals` as an exact count, checked against the limit.
 fn decimal_count<'a>(
     start: &'a str,
@@ -230,9 +261,10 @@ fn decimal_count<'a>(
     Ok((rest, value))
 }
 
-/// A subscript after an element or group: ASCII digits, Unicode subscript digits, or a decimal
-/// (`0.8`, `1.25`, `₀.₅`, `_{2.5}`). Returns the count and whether ASCII digits of a whole
-/// number were written (only those can turn out to be a charge, as in `Fe3+`).
+/// A subscript after an element or group: ASCII digits, Unicode subscript digits, a decimal
+/// (`0.8`, `1.25`, `₀.₅`, `_{2.5}`) or a fraction (`1/3`, `₁/₃`, `_{1/3}`). Returns the count
+/// and whether ASCII digits of a whole number were written (only those can turn out to be a
+/// charge, as in `Fe3+`).
 ///
 /// A decimal point after ASCII digits is read as such only after `0` or `1` (`Li0.5CoO2`,
 /// `Li1.2Mn0.6Ni0.2O2`): after larger digits it stays the adduct dot of `CuSO4.5H2O`. A
@@ -260,7 +292,10 @@ fn count(input: &str) -> Res<'_, (Count, bool)> {
                 }
                 decimal_count(input, after, whole, digits)?
             }
-            None => (rest, Ratio::from_integer(whole)),
+            None => match fraction(input, rest, whole, None)? {
+                (after, Some(value)) => (after, value),
+                (after, None) => (after, Ratio::from_integer(whole)),
+            },
         };
         let Some(rest) = rest.strip_prefix('}') else {
             return syntax(rest, "expected '}' to close the subscript");
@@ -295,6 +330,12 @@ fn count(input: &str) -> Res<'_, (Count, bool)> {
             }
             return Ok((after, (value, false)));
         }
+    }
+    if let (after, Some(value)) = fraction(input, rest, whole, script)? {
+        if value == Ratio::from_integer(0) {
+            return zero(after);
+        }
+        return Ok((after, (value, false)));
     }
     if whole == 0 {
         return zero(rest);

@@ -97,12 +97,13 @@ mod properties {
         proptest::sample::select(all)
     }
 
-    /// Whole subscripts mostly, and exact decimals (non-integer stoichiometry, up to three
-    /// places, below and above 2, which are written differently).
+    /// Whole subscripts mostly, exact decimals (non-integer stoichiometry, up to three places,
+    /// below and above 2, which are written differently) and fractions (`1/3`).
     fn subscript(whole: std::ops::Range<u64>) -> impl Strategy<Value = Ratio<u64>> {
         prop_oneof![
             4 => whole.prop_map(Ratio::from_integer),
             1 => (1u64..5000).prop_map(|n| Ratio::new(n, 1000)),
+            1 => (1u64..50, 1u64..12).prop_map(|(n, d)| Ratio::new(n, d)),
         ]
     }
 

@@ -51,6 +51,18 @@ fn decimal_subscripts_are_exact_rationals() {
     );
     check("Fe0.95O", &[("Fe", 19, 20), ("O", 1, 1)]);
     check("Li₀.₅CoO₂", &[("Li", 1, 2), ("Co", 1, 1), ("O", 2, 1)]);
+    // NMC111 written with fractions (common practice): LiNi1/3Mn1/3Co1/3O2.
+    check(
+        "LiNi1/3Mn1/3Co1/3O2",
+        &[
+            ("Li", 1, 1),
+            ("Ni", 1, 3),
+            ("Mn", 1, 3),
+            ("Co", 1, 3),
+            ("O", 2, 1),
+        ],
+    );
+    check("Li_{1/3}O", &[("Li", 1, 3), ("O", 1, 1)]);
     check("Na_{2.5}O", &[("Na", 5, 2), ("O", 1, 1)]);
     // After digits above 1 the dot stays the adduct dot of hydrates.
     check(
@@ -63,6 +75,8 @@ fn decimal_subscripts_are_exact_rationals() {
         "Li0.1234567CoO2",
         "Li_{2.}O",
         "Li_{0.5O",
+        "Ni1/0O",
+        "Ni0/3O",
     ] {
         assert!(parse_species(bad).is_err(), "{bad}");
     }
@@ -88,6 +102,12 @@ fn oxidation_numbers_of_non_integer_formulas() {
         assert_eq!(signed_text(&e.oxidation_number), "+3", "{metal}");
         assert_eq!(e.status, Status::Assumed);
     }
+    // NMC111 likewise: the three metals average +3 (common practice).
+    let nmc111 = oxidation_numbers(&parse_species("LiNi1/3Mn1/3Co1/3O2").unwrap()).unwrap();
+    assert_eq!(
+        signed_text(&nmc111.element("Mn").unwrap().oxidation_number),
+        "+3"
+    );
     // Li0.5CoO2: Co +3.5 by charge balance (common practice for half-delithiated LiCoO2).
     let lco = oxidation_numbers(&parse_species("Li0.5CoO2").unwrap()).unwrap();
     let co = lco.element("Co").unwrap();
