@@ -444,6 +444,52 @@ pub fn species_named(name: &str) -> Option<Species> {
         .and_then(|ion| parse_species(&ion.formula).ok())
 }
 
+/// The known-ion name nearest to `word` when it is one or two typing errors away (names of
+/// eight letters or more; one error for shorter ones) and `word` itself is no name.
+fn ion_name_near(word: &str) -> Option<String> {
+    let key = name_key(word);
+    if key.is_empty() || species_named(word).is_some() {
+        return None;
+    }
+    let allowed = if key.chars().count() >= 8 { 2 } else { 1 };
+    let ions = IonTable::builtin().ok()?;
+    ions.ions()
+        .iter()
+        .flat_map(|ion| {
+            let full = ion.name.as_str();
+            match full.split_once(" (") {
+                Some((main, rest)) => vec![main, rest.trim_end_matches(')')],
+                None => vec![full],
+            }
+        })
+        .map(|name| (edit_distance(&name_key(name), &key), name))
+        .filter(|(d, _)| *d <= allowed)
+        .min_by_key(|(d, _)| *d)
+        .map(|(_, name)| name.to_owned())
+}
+
+/// The query with a mistyped ion name on either side of `/` (or alone) corrected.
+fn query_with_names_fixed(query: &str) -> Option<String> {
+    let parts: Vec<&str> = query.split('/').map(str::trim).collect();
+    let mut changed = false;
+    let fixed: Vec<String> = parts
+        .iter()
+        .map(|part| {
+            if parse_species(part).is_ok() {
+                return (*part).to_owned();
+            }
+            match ion_name_near(part) {
+                Some(name) => {
+                    changed = true;
+                    name
+                }
+                None => (*part).to_owned(),
+            }
+        })
+        .collect();
+    changed.then(|| fixed.join("/"))
+}
+
 /// A species as written, or else the known ion the text names.
 fn species_or_name(text: &str) -> Result<Species, NotationError> {
     parse_species(text).or_else(|error| species_named(text).ok_or(error))
@@ -590,6 +636,9 @@ impl Table {
         for id in self.ids_near(query) {
             push(id);
         }
+        if let Some(fixed) = query_with_names_fixed(query) {
+            push(fixed);
+        }
         for c in self.matching(&query.replace('/', " ")) {
             if let Some(id) = &c.id {
                 push(id.clone());
@@ -675,8 +724,9 @@ impl Table {
             match parse_couple_notation(query) {
                 Some(Ok((ox, red))) => self.by_pair(&ox, &red),
                 Some(Err(error)) => {
-                    // A mistyped id (`cu2+/cuu`) reads as bad notation: offer the ids first.
-                    let near = self.ids_near(query);
+                    // A mistyped id (`cu2+/cuu`) or ion name (`ferricyanid`) reads as bad
+                    // notation: offer the corrections first.
+                    let near = self.suggestions(query);
                     if near.is_empty() {
                         return Err(LookupError::Notation(error));
                     }

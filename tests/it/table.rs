@@ -280,4 +280,12 @@ fn reversed_and_near_queries_get_suggestions() {
         }
     }
     assert!(table.suggestions("Cu/Cu2+").contains(&"cu2+/cu".to_owned()));
+    // A mistyped ion name is corrected.
+    match table.find("ferricyanid/ferrocyanide", None) {
+        Err(LookupError::NotFound { hints, .. }) => {
+            assert_eq!(hints, ["ferricyanide/ferrocyanide"])
+        }
+        other => panic!("expected a corrected name, got {other:?}"),
+    }
+    assert_eq!(table.suggestions("permanganat"), ["permanganate"]);
 }
