@@ -218,7 +218,12 @@ fn fraction<'a>(
     let Some(after) = rest.strip_prefix('/') else {
         return Ok((rest, None));
     };
-    if after.chars().next().and_then(|c| digit_in(c, script)).is_none() {
+    if after
+        .chars()
+        .next()
+        .and_then(|c| digit_in(c, script))
+        .is_none()
+    {
         return Ok((rest, None));
     }
     let max = super::LIMITS.max_count as u64;
