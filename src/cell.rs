@@ -462,6 +462,13 @@ fn hazard_of(species: &Species, is_product: bool) -> Option<&'static str> {
         ("Cd", "cadmium (toxic, carcinogenic)"),
         ("Pb", "lead (toxic)"),
         ("As", "arsenic (toxic)"),
+        (
+            "Li",
+            "lithium (reacts violently with water; lithium cells can run away thermally)",
+        ),
+        ("V", "vanadium compounds (toxic)"),
+        ("Ni", "nickel compounds (carcinogenic)"),
+        ("Co", "cobalt compounds (toxic)"),
     ] {
         if count(symbol) > 0 {
             return Some(hazard);
