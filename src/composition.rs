@@ -62,7 +62,8 @@ impl Composition {
         if count.is_integer() {
             return self.add(element, *count.numer());
         }
-        let common = self.denominator.lcm(count.denom());
+        let common =
+            (self.denominator / self.denominator.gcd(count.denom())).checked_mul(*count.denom())?;
         let factor = common / self.denominator;
         if factor != 1 {
             for (_, n) in &mut self.counts {

@@ -992,7 +992,19 @@ fn labels(input: &str) -> Res<'_, (Option<State>, Option<Compartment>)> {
     let (rest, first) = label(input)?;
     match first {
         None => Ok((rest, (None, None))),
-        Some(Label::Compartment(c)) => Ok((rest, (None, Some(c)))),
+        Some(Label::Compartment(c)) => match label(rest) {
+            Ok((_, Some(Label::State(_)))) => {
+                let at = rest.trim_start();
+                let len = at.find(')').map_or(at.len(), |i| i + 1);
+                fail(
+                    at,
+                    len,
+                    NotationErrorKind::Syntax,
+                    "the state label comes before the compartment: write Cu2+(aq)(anode)",
+                )
+            }
+            _ => Ok((rest, (None, Some(c)))),
+        },
         Some(Label::State(state)) => {
             let (after, second) = label(rest)?;
             match second {

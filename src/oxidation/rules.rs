@@ -211,7 +211,10 @@ pub(crate) fn assign_fragment(
     {
         // Decimal subscripts mean the open metals share sites (Ni, Mn, Co of NMC811 fill one
         // site together): the formula gives only their common average. An assumption.
-        let open_atoms: u64 = open_slots.iter().map(|&i| slots[i].count).sum();
+        let open_atoms = open_slots
+            .iter()
+            .try_fold(0u64, |sum, &i| sum.checked_add(slots[i].count))
+            .ok_or(OxidationError::Overflow)?;
         let average = (charge - fixed_total(&slots)) / atoms(open_atoms);
         let elements: Vec<Element> = open_slots.iter().map(|&i| slots[i].element).collect();
         for &i in &open_slots {
