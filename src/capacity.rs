@@ -166,6 +166,22 @@ pub enum CapacityError {
     /// The densities file does not read.
     #[error("densities file: {0}")]
     DensityFile(String),
+    /// A concentration that is not a positive finite number.
+    #[error("concentration of {species} must be a positive number of mol/L, not {value}")]
+    BadConcentration {
+        /// The species.
+        species: String,
+        /// The value given.
+        value: f64,
+    },
+    /// An electrolyte species that no half-reaction (or both) holds, or a medium species.
+    #[error("{species}: {reason}")]
+    NotAnElectrolyteSpecies {
+        /// The species.
+        species: String,
+        /// Why it cannot carry the capacity.
+        reason: String,
+    },
 }
 
 /// A density and where it comes from.
@@ -526,6 +542,128 @@ pub fn cell_capacity(
         watt_hours_per_litre: amp_hours_per_litre.map(|c| c * e_volts),
         missing_densities: missing,
         notes,
+    })
+}
+
+/// The charge one side of a flow cell's electrolyte stores per litre.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ElectrolyteSide {
+    /// The species whose concentration was given.
+    pub species: Species,
+    /// The half-reaction of that side.
+    pub half: Reaction,
+    /// mol/L of the species.
+    pub concentration_mol_per_litre: f64,
+    /// Electrons per mole of the species: n/|ν| in its half-reaction.
+    pub electrons_per_mol: BigRational,
+    /// c·(n/|ν|)·F/3600: Ah per litre of this side's electrolyte (numerically mAh/mL).
+    pub amp_hours_per_litre: f64,
+    /// Ah/L × the cell voltage: Wh per litre of this side's electrolyte, when a voltage is known.
+    pub watt_hours_per_litre: Option<f64>,
+}
+
+/// Volumetric capacity and energy of a flow cell's electrolytes.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ElectrolyteCapacity {
+    /// Each side given, in the order given.
+    pub sides: Vec<ElectrolyteSide>,
+    /// The cell voltage the energies use (E° or E°(T)), when a cell was given.
+    pub e_volts: Option<f64>,
+    /// Ah per litre of both electrolytes together, the tanks sized to hold equal charge
+    /// (1/Σ(1/q_side)); half a side's figure when both sides store the same per litre.
+    /// Only when two sides are given.
+    pub amp_hours_per_litre_both: Option<f64>,
+    /// Wh per litre of both electrolytes together, when a voltage is known.
+    pub watt_hours_per_litre_both: Option<f64>,
+}
+
+/// Charge and energy per litre of electrolyte from the concentration of the active species of
+/// each side: q = c·(n/|ν|)·F/3600 Ah/L for each `(species, mol/L)` given, the species found
+/// in exactly one of `halves`; energies with `e_volts` (the cell voltage), and with two sides
+/// the figures per litre of both tanks. H+, OH- and water carry no capacity and are refused.
+pub fn electrolyte_capacity(
+    halves: &[&Reaction],
+    given: &[(Species, f64)],
+    e_volts: Option<f64>,
+) -> Result<ElectrolyteCapacity, CapacityError> {
+    let refuse = |species: &Species, reason: &str| CapacityError::NotAnElectrolyteSpecies {
+        species: species.ascii(),
+        reason: reason.to_owned(),
+    };
+    let mut sides = Vec::with_capacity(given.len());
+    for (species, concentration) in given {
+        if !(concentration.is_finite() && *concentration > 0.0) {
+            return Err(CapacityError::BadConcentration {
+                species: species.ascii(),
+                value: *concentration,
+            });
+        }
+        if is_water(species) || ["H+", "OH-"].contains(&species.without_state().ascii().as_str()) {
+            return Err(refuse(
+                species,
+                "the medium carries no capacity: give the redox-active species of a side",
+            ));
+        }
+        let holding: Vec<(&Reaction, BigRational)> = halves
+            .iter()
+            .filter_map(|half| {
+                let nu = half
+                    .entries()
+                    .iter()
+                    .find(|e| same_species(&e.species, species))?
+                    .nu
+                    .clone();
+                Some((*half, nu))
+            })
+            .collect();
+        let (half, nu) = match holding.as_slice() {
+            [one] => one.clone(),
+            [] => return Err(refuse(species, "no half-reaction of the cell holds it")),
+            _ => {
+                return Err(refuse(
+                    species,
+                    "both half-reactions hold it: name a species of one side",
+                ));
+            }
+        };
+        let electrons = half.electron_nu().abs();
+        if electrons.is_zero() {
+            return Err(CapacityError::NoElectrons);
+        }
+        let per_mol = electrons / nu.abs();
+        let q = concentration * to_f64(&per_mol) * AMP_HOURS_PER_MOL_ELECTRONS;
+        sides.push(ElectrolyteSide {
+            species: species.clone(),
+            half: half.clone(),
+            concentration_mol_per_litre: *concentration,
+            electrons_per_mol: per_mol,
+            amp_hours_per_litre: q,
+            watt_hours_per_litre: e_volts.map(|e| e * q),
+        });
+    }
+    let both = match sides.as_slice() {
+        [] | [_] => None,
+        [a, b] if a.half != b.half => {
+            Some(1.0 / (1.0 / a.amp_hours_per_litre + 1.0 / b.amp_hours_per_litre))
+        }
+        [_, b] => {
+            return Err(refuse(
+                &b.species,
+                "a concentration for this side was given already: one species per side",
+            ));
+        }
+        [.., extra] => {
+            return Err(refuse(
+                &extra.species,
+                "a cell has two sides: give at most two concentrations",
+            ));
+        }
+    };
+    Ok(ElectrolyteCapacity {
+        sides,
+        e_volts,
+        amp_hours_per_litre_both: both,
+        watt_hours_per_litre_both: both.and_then(|q| e_volts.map(|e| e * q)),
     })
 }
 

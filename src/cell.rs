@@ -11,7 +11,8 @@ use crate::constants::{
     FARADAY_COULOMBS_PER_MOL, STANDARD_TEMPERATURE_KELVIN, nernst_slope_volts_per_decade,
 };
 use crate::kw::{KW_SOURCE, pkw};
-use crate::notation::{Species, parse_species};
+use crate::notation::{Compartment, Species, parse_species};
+use crate::quotient::{Phase, phase_of};
 use crate::reaction::Reaction;
 use crate::table::{Couple, Medium, Origin, imbalance_text};
 use num_bigint::BigInt;
@@ -45,8 +46,11 @@ impl Default for CellOptions {
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
 #[non_exhaustive]
 pub enum CellError {
-    /// Both halves are the same couple: nothing happens.
-    #[error("cathode and anode are the same couple: the net reaction is empty")]
+    /// Both halves are the same couple and every species of it is a pure phase, so not even a
+    /// concentration cell results.
+    #[error(
+        "cathode and anode are the same couple and it has no dissolved or gaseous species: the net reaction is empty and E = 0 at any composition"
+    )]
     SameCouple,
     /// One half is written with H+ and the other with OH-.
     #[error(
@@ -209,12 +213,26 @@ pub fn combine(cathode: &Couple, anode: &Couple, options: CellOptions) -> Result
     }
     let (n_cathode, n_anode) = (cathode.electrons(), anode.electrons());
     let common = lcm_rational(&n_cathode, &n_anode);
-    let sum = cathode
-        .reaction
-        .scaled(&(&common / &n_cathode))
-        .plus(&anode.reaction.scaled(&(&common / &n_anode)).reversed());
+    let add_halves = |cathode: &Couple, anode: &Couple| {
+        cathode
+            .reaction
+            .scaled(&(&common / &n_cathode))
+            .plus(&anode.reaction.scaled(&(&common / &n_anode)).reversed())
+    };
+    let mut sum = add_halves(&cathode, &anode);
     if sum.is_empty() {
-        return Err(CellError::SameCouple);
+        // The same couple on both sides: a concentration cell. Its dissolved and gaseous
+        // species are told apart by compartment, and E° = 0 follows from the subtraction.
+        cathode.reaction = in_compartment(&cathode.reaction, Compartment::Cathode);
+        anode.reaction = in_compartment(&anode.reaction, Compartment::Anode);
+        sum = add_halves(&cathode, &anode);
+        if sum.is_empty() {
+            return Err(CellError::SameCouple);
+        }
+        notes.push(
+            "concentration cell: the same couple in both compartments, so E° = 0 and E = −(RT/nF)·ln Q comes from the difference in activities; species are labelled (cathode) and (anode)"
+                .to_owned(),
+        );
     }
     let net = sum.in_lowest_integers();
     if let Some(detail) = imbalance_text(&net) {
@@ -280,6 +298,23 @@ pub fn combine(cathode: &Couple, anode: &Couple, options: CellOptions) -> Result
         }
     }
     Ok(cell)
+}
+
+/// The reaction with its dissolved and gaseous species placed in `compartment`; pure phases,
+/// the solvent and electrons stay as they are (they are the same in both compartments, or
+/// have activity 1).
+pub fn in_compartment(reaction: &Reaction, compartment: Compartment) -> Reaction {
+    let mut placed = Reaction::new();
+    for entry in reaction.entries() {
+        let species = match phase_of(&entry.species).0 {
+            Phase::Solute | Phase::Gas if !entry.species.is_electron() => {
+                entry.species.in_compartment(compartment)
+            }
+            _ => entry.species.clone(),
+        };
+        placed.add(&species, entry.nu.clone());
+    }
+    placed
 }
 
 fn lcm_rational(a: &BigRational, b: &BigRational) -> BigRational {
@@ -427,6 +462,13 @@ fn hazard_of(species: &Species, is_product: bool) -> Option<&'static str> {
         ("Cd", "cadmium (toxic, carcinogenic)"),
         ("Pb", "lead (toxic)"),
         ("As", "arsenic (toxic)"),
+        (
+            "Li",
+            "lithium (reacts violently with water; lithium cells can run away thermally)",
+        ),
+        ("V", "vanadium compounds (toxic)"),
+        ("Ni", "nickel compounds (carcinogenic)"),
+        ("Co", "cobalt compounds (toxic)"),
     ] {
         if count(symbol) > 0 {
             return Some(hazard);

@@ -72,6 +72,11 @@ pub enum DischargeError {
     /// The cell does not run as written.
     #[error("E°cell = {0:+.4} V: the reaction does not run as written; swap cathode and anode")]
     NotGalvanic(f64),
+    /// A concentration cell: two compartments, two solutions.
+    #[error(
+        "a concentration cell has a separate solution in each compartment, and the discharge model follows one electrolyte: give each compartment's activities to `couplet cell` instead"
+    )]
+    TwoCompartments,
     /// A species given an amount takes no part and is no electrolyte.
     #[error(
         "{0} takes no part in the net reaction and is no electrolyte of known ions; amounts are for reactants, products or a dissolved electrolyte"
@@ -229,6 +234,14 @@ fn add_amount(tracked: &mut Vec<Tracked>, species: &Species, mol: f64, reacts: b
 
 /// Steps the discharge of `cell` from the amounts of `spec`.
 pub fn discharge(cell: &Cell, spec: &DischargeSpec) -> Result<Discharge, DischargeError> {
+    if cell
+        .net
+        .entries()
+        .iter()
+        .any(|e| e.species.compartment.is_some())
+    {
+        return Err(DischargeError::TwoCompartments);
+    }
     if !cell.runs_as_written {
         return Err(DischargeError::NotGalvanic(cell.e0_volts));
     }

@@ -23,6 +23,7 @@ pub mod check;
 pub mod composition;
 pub mod constants;
 pub mod discharge;
+pub mod electrode;
 pub mod elements;
 pub mod export;
 pub mod figures;

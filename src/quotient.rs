@@ -109,6 +109,7 @@ pub struct Quotient {
 fn is_water(species: &Species) -> bool {
     let counts = species.composition.counts();
     species.charge() == 0
+        && species.composition.is_integral()
         && counts.len() == 2
         && counts
             .iter()
@@ -161,7 +162,7 @@ pub fn phase_of(species: &Species) -> (Phase, Option<String>) {
         );
     }
     let counts = species.composition.counts();
-    if counts.len() == 1 {
+    if counts.len() == 1 && species.composition.is_integral() {
         let (element, count) = counts[0];
         let symbol = element.symbol();
         if GAS_ELEMENTS.contains(&(symbol, count)) {
@@ -187,7 +188,12 @@ pub fn phase_of(species: &Species) -> (Phase, Option<String>) {
             )),
         );
     }
-    if NEUTRAL_SOLUTES.contains(&name.as_str()) {
+    let bare = Species {
+        state: None,
+        compartment: None,
+        ..species.clone()
+    };
+    if NEUTRAL_SOLUTES.contains(&bare.ascii().as_str()) {
         return (
             Phase::Solute,
             Some(format!("{name} taken as a dissolved neutral molecule")),

@@ -46,10 +46,12 @@ impl Imbalance {
     }
 }
 
-/// Whether two species are the same for cancelling: the same formula and charge, and the same
-/// state label when both carry one (`H2O` and `H2O(l)` are the same species).
+/// Whether two species are the same for cancelling: the same formula and charge, the same
+/// compartment, and the same state label when both carry one (`H2O` and `H2O(l)` are the same
+/// species; `Cu2+(cathode)` and `Cu2+(anode)` are not).
 pub fn same_species(a: &Species, b: &Species) -> bool {
     a.kind == b.kind
+        && a.compartment == b.compartment
         && match (a.state, b.state) {
             (Some(x), Some(y)) => x == y,
             _ => true,
@@ -179,7 +181,8 @@ impl Reaction {
         let mut elements: Vec<(Element, i128)> = Vec::new();
         let mut charge: i128 = 0;
         for e in &self.entries {
-            if !e.nu.is_integer() {
+            // Non-integer stoichiometry takes the rational recount.
+            if !e.nu.is_integer() || !e.species.composition.is_integral() {
                 return None;
             }
             let nu = i128::try_from(e.nu.numer()).ok()?;
@@ -208,8 +211,8 @@ impl Reaction {
         let mut charge = BigRational::zero();
         for e in &self.entries {
             charge += &e.nu * BigRational::from_integer(BigInt::from(e.species.charge()));
-            for &(element, count) in e.species.composition.counts() {
-                let change = &e.nu * BigRational::from_integer(BigInt::from(count));
+            for (element, count) in e.species.composition.exact_counts() {
+                let change = &e.nu * ratio_u64(&count);
                 match elements.iter_mut().find(|(el, _)| *el == element) {
                     Some((_, total)) => *total += change,
                     None => elements.push((element, change)),

@@ -213,9 +213,10 @@ fn parsed(
     })
 }
 
-/// Two species are the same ion when formula and charge agree (state labels aside).
+/// Two species are the same ion when formula, charge and compartment agree (state labels
+/// aside).
 pub fn same_substance(a: &Species, b: &Species) -> bool {
-    a.kind == b.kind
+    a.kind == b.kind && a.compartment == b.compartment
 }
 
 fn sorted_counts(species: &Species, times: u64) -> Vec<(String, u64)> {
@@ -246,7 +247,7 @@ fn merge(a: Vec<(String, u64)>, b: Vec<(String, u64)>) -> Vec<(String, u64)> {
 pub fn split_electrolyte(species: &Species) -> Option<(Species, u32, Species, u32)> {
     static C: OnceLock<Vec<Species>> = OnceLock::new();
     static A: OnceLock<Vec<Species>> = OnceLock::new();
-    if species.charge() != 0 || species.is_electron() {
+    if species.charge() != 0 || species.is_electron() || !species.composition.is_integral() {
         return None;
     }
     let target = sorted_counts(species, 1);

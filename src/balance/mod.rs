@@ -490,9 +490,13 @@ fn conservation_matrix(columns: &[Column]) -> (IntegerMatrix, Vec<Conserved>) {
     for (c, column) in columns.iter().enumerate() {
         let composition = &column.species.composition;
         for (r, row) in rows.iter().enumerate() {
+            // A column stands for `denominator` formula units, so that non-integer
+            // stoichiometry (Li0.5CoO2) still gives whole numbers; `reaction_of` scales back.
             let value = match row {
-                Conserved::Element(e) => i128::from(composition.count(*e)),
-                Conserved::Charge => i128::from(composition.charge()),
+                Conserved::Element(e) => i128::from(composition.scaled_count(*e)),
+                Conserved::Charge => {
+                    i128::from(composition.charge()) * i128::from(composition.denominator())
+                }
             };
             matrix.set(r, c, value);
         }
@@ -531,6 +535,21 @@ fn orient(vector: &mut [BigInt], columns: &[Column]) {
 }
 
 fn reaction_of(vector: &[BigInt], columns: &[Column]) -> Reaction {
+    let denominator = |c: &Column| c.species.composition.denominator();
+    let scaled;
+    let vector = if columns.iter().all(|c| denominator(c) == 1) {
+        vector
+    } else {
+        // Columns of non-integer formulas count `denominator` formula units each.
+        scaled = primitive(
+            vector
+                .iter()
+                .zip(columns)
+                .map(|(x, c)| x * BigInt::from(denominator(c)))
+                .collect(),
+        );
+        &scaled
+    };
     let mut reaction = Reaction::new();
     for (x, column) in vector.iter().zip(columns) {
         reaction.add(column.species, BigRational::from_integer(x.clone()));

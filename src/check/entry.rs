@@ -546,6 +546,10 @@ fn conserved_in_integers(equation: &Equation) -> Option<bool> {
     let terms = || equation.reactants.iter().chain(&equation.products);
     let mut denominators_lcm: i128 = 1;
     for term in terms() {
+        // Non-integer stoichiometry (Li0.5CoO2) takes the exact recount.
+        if !term.species.composition.is_integral() {
+            return None;
+        }
         let denominator = i128::from(*term.coefficient.denom());
         let divisor = gcd_i128(denominators_lcm, denominator);
         denominators_lcm = denominators_lcm.checked_mul(denominator / divisor)?;

@@ -5,11 +5,12 @@ use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale_with
 use super::failure::Failure;
 use super::{EXIT_OK, exact_integer_json, print_json};
 use couplet::capacity::{
-    Basis, CellCapacity, Densities, MaterialCapacity, cell_capacity, cell_materials,
-    half_reaction_materials,
+    Basis, CapacityError, CellCapacity, Densities, ElectrolyteCapacity, MaterialCapacity,
+    cell_capacity, cell_materials, electrolyte_capacity, half_reaction_materials,
 };
 use couplet::cell::caution;
-use couplet::notation::{Arrow, Style, parse_equation};
+use couplet::figures::significant;
+use couplet::notation::{Arrow, Style, parse_equation, parse_species};
 use couplet::reaction::Reaction;
 use couplet::table::{imbalance_text, is_reaction_text};
 use serde_json::{Value, json};
@@ -41,9 +42,13 @@ pub struct CapacityArgs {
     /// value from data/densities.toml
     #[arg(long = "density", value_name = "SPECIES=G_PER_CM3")]
     densities: Vec<String>,
+    /// Flow cells: concentration of a side's active species in its electrolyte
+    /// (SPECIES=MOL_PER_L, e.g. VO2+=1.6), repeatable, one per side; gives Ah/L and Wh/L
+    #[arg(long = "electrolyte", value_name = "SPECIES=MOL_PER_L")]
+    electrolytes: Vec<String>,
     #[command(flatten)]
     table: TableArgs,
-    /// Print JSON: {"materials": [...], "cell": {...} | null}
+    /// Print JSON: {"materials": [...], "cell": {...} | null, "electrolyte": {...} | null}
     #[arg(long)]
     json: bool,
 }
@@ -65,6 +70,75 @@ fn densities(given: &[String]) -> Result<Densities, Failure> {
         }
     }
     Ok(densities)
+}
+
+/// Reads `SPECIES=MOL_PER_L` pairs.
+fn electrolytes(given: &[String]) -> Result<Vec<(couplet::notation::Species, f64)>, Failure> {
+    given
+        .iter()
+        .map(|item| {
+            let parsed = item.rsplit_once('=').and_then(|(name, value)| {
+                let value: f64 = value.trim().parse().ok()?;
+                (value.is_finite() && value > 0.0)
+                    .then_some(())
+                    .and_then(|_| Some((parse_species(name.trim()).ok()?, value)))
+            });
+            parsed.ok_or_else(|| {
+                Failure::usage(format!(
+                    "--electrolyte '{item}': expected SPECIES=MOL_PER_L with a positive concentration, e.g. VO2+=1.6"
+                ))
+            })
+        })
+        .collect()
+}
+
+fn electrolyte_json(e: &ElectrolyteCapacity) -> Value {
+    json!({
+        "sides": e.sides.iter().map(|s| json!({
+            "species": s.species.ascii(),
+            "half_reaction": s.half.to_string(),
+            "mol_per_L": s.concentration_mol_per_litre,
+            "electrons_per_mol": s.electrons_per_mol.to_string(),
+            "Ah_per_L": s.amp_hours_per_litre,
+            "Wh_per_L": s.watt_hours_per_litre,
+        })).collect::<Vec<_>>(),
+        "e_V": e.e_volts,
+        "Ah_per_L_both_tanks": e.amp_hours_per_litre_both,
+        "Wh_per_L_both_tanks": e.watt_hours_per_litre_both,
+    })
+}
+
+fn print_electrolyte(out: &mut dyn Write, e: &ElectrolyteCapacity) -> io::Result<()> {
+    for s in &e.sides {
+        let energy = s
+            .watt_hours_per_litre
+            .map_or(String::new(), |wh| format!(", {wh:.1} Wh/L"));
+        writeln!(
+            out,
+            "electrolyte {} at {} mol/L: {:.1} Ah/L{energy} of this side's electrolyte ({} e- per {}; q = c·n·F/3600)",
+            s.species.unicode(),
+            significant(s.concentration_mol_per_litre, 6),
+            s.amp_hours_per_litre,
+            s.electrons_per_mol,
+            s.species.ascii()
+        )?;
+    }
+    writeln!(
+        out,
+        "theoretical: every active species converted between its charged and discharged form; no crossover, side reactions or unused electrolyte"
+    )?;
+    if let Some(ah) = e.amp_hours_per_litre_both {
+        let energy = e
+            .watt_hours_per_litre_both
+            .map_or(String::new(), |wh| format!(", {wh:.1} Wh/L"));
+        writeln!(
+            out,
+            "both tanks  {ah:.1} Ah/L{energy} of the two electrolytes together (tanks sized to equal charge{})",
+            e.e_volts
+                .map_or(String::new(), |v| format!("; at E = {v:.4} V"))
+        )?;
+    }
+    Ok(())
 }
 
 fn material_json(m: &MaterialCapacity) -> Value {
@@ -202,6 +276,20 @@ fn print_cell(out: &mut dyn Write, c: &CellCapacity) -> io::Result<()> {
     )
 }
 
+/// The electrolyte figures when concentrations were given.
+fn electrolyte_figures(
+    given: &[(couplet::notation::Species, f64)],
+    halves: &[&Reaction],
+    e_volts: Option<f64>,
+) -> Result<Option<ElectrolyteCapacity>, Failure> {
+    if given.is_empty() {
+        return Ok(None);
+    }
+    electrolyte_capacity(halves, given, e_volts)
+        .map(Some)
+        .map_err(|e| Failure::from(&e))
+}
+
 pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
     let densities = match densities(&args.densities) {
         Ok(d) => d,
@@ -209,6 +297,10 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
     };
     let table = match load_table(&args.table) {
         Ok(table) => table,
+        Err(failure) => return failure.report(out, args.json),
+    };
+    let given = match electrolytes(&args.electrolytes) {
+        Ok(given) => given,
         Err(failure) => return failure.report(out, args.json),
     };
     if let Some(query) = &args.couple {
@@ -234,9 +326,15 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
             ))
             .report(out, args.json);
         }
-        let materials = match half_reaction_materials(&half, &densities) {
-            Ok(m) => m,
-            Err(e) => return Failure::from(&e).report(out, args.json),
+        let flow = match electrolyte_figures(&given, &[&half], None) {
+            Ok(flow) => flow,
+            Err(failure) => return failure.report(out, args.json),
+        };
+        // A flow electrode has no solid material: with a concentration, that is no error.
+        let materials = match (half_reaction_materials(&half, &densities), &flow) {
+            (Ok(m), _) => m,
+            (Err(CapacityError::NoMaterials(_)), Some(_)) => Vec::new(),
+            (Err(e), _) => return Failure::from(&e).report(out, args.json),
         };
         if args.json {
             print_json(
@@ -244,6 +342,7 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
                 &json!({
                     "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
                     "cell": Value::Null,
+                    "electrolyte": flow.as_ref().map(electrolyte_json),
                 }),
             )?;
         } else {
@@ -252,7 +351,12 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
                 "half     {}",
                 half.to_text(Style::Unicode, Arrow::Forward)
             )?;
-            print_materials(out, &materials)?;
+            if !materials.is_empty() {
+                print_materials(out, &materials)?;
+            }
+            if let Some(flow) = &flow {
+                print_electrolyte(out, flow)?;
+            }
         }
         return Ok(EXIT_OK);
     }
@@ -283,8 +387,19 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
         .at_temperature
         .as_ref()
         .map_or(cell.e0_volts, |t| t.e0_volts);
+    let flow = match electrolyte_figures(
+        &given,
+        &[&cell.cathode.reaction, &cell.anode.reaction],
+        Some(e_volts),
+    ) {
+        Ok(flow) => flow,
+        Err(failure) => return failure.report(out, args.json),
+    };
+    // A flow cell has nothing to weigh on the active basis: with concentrations given, the
+    // volumetric figures stand on their own.
     let figures = match cell_capacity(&cell.net, &cell.electrons, e_volts, args.basis, &densities) {
-        Ok(f) => f,
+        Ok(f) => Some(f),
+        Err(CapacityError::NothingOnBasis { .. }) if flow.is_some() => None,
         Err(e) => return Failure::from(&e).report(out, args.json),
     };
     let materials = cell_materials(&cell.net, &cell.electrons, &densities);
@@ -293,7 +408,8 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
             out,
             &json!({
                 "materials": materials.iter().map(material_json).collect::<Vec<_>>(),
-                "cell": cell_json(&figures),
+                "cell": figures.as_ref().map(cell_json),
+                "electrolyte": flow.as_ref().map(electrolyte_json),
                 "caution": caution(&cell.net),
             }),
         )?;
@@ -311,7 +427,12 @@ pub fn run(args: &CapacityArgs, out: &mut dyn Write) -> io::Result<u8> {
     if !materials.is_empty() {
         print_materials(out, &materials)?;
     }
-    print_cell(out, &figures)?;
+    if let Some(figures) = &figures {
+        print_cell(out, figures)?;
+    }
+    if let Some(flow) = &flow {
+        print_electrolyte(out, flow)?;
+    }
     if let Some(line) = caution(&cell.net) {
         writeln!(out, "{line}")?;
     }

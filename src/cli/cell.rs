@@ -272,6 +272,8 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
         "         {}",
         if cell.runs_as_written {
             "runs as written (galvanic)"
+        } else if cell.e0_volts == 0.0 {
+            "at equilibrium in the standard state (E° = 0): the direction follows from E"
         } else {
             "does not run as written: the reverse is spontaneous (an electrolytic cell as written)"
         }
@@ -318,8 +320,10 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
 
 /// Whether H+ or OH- takes part in a reaction.
 fn has_h_or_oh(reaction: &couplet::reaction::Reaction) -> bool {
-    reaction
-        .entries()
-        .iter()
-        .any(|e| matches!(e.species.without_state().ascii().as_str(), "H+" | "OH-"))
+    // A compartment label (concentration cells) does not make H+ another species here.
+    reaction.entries().iter().any(|e| {
+        let mut bare = e.species.without_state();
+        bare.compartment = None;
+        matches!(bare.ascii().as_str(), "H+" | "OH-")
+    })
 }

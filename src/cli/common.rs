@@ -89,6 +89,11 @@ pub fn load_table(args: &TableArgs) -> Result<Table, Failure> {
     Ok(table)
 }
 
+/// The loaded table and the scale asked for.
+pub fn table_and_scale(args: &TableArgs) -> Result<(Table, Scale), Failure> {
+    Ok((load_table(args)?, scale(args)?))
+}
+
 /// The scale asked for.
 pub fn scale(args: &TableArgs) -> Result<Scale, Failure> {
     Scale::from_name(&args.scale, args.ph).map_err(|error| Failure::usage(error.to_string()))

@@ -17,6 +17,7 @@ mod check;
 mod common;
 mod derive;
 mod discharge;
+mod electrode;
 mod failure;
 mod formation;
 mod nernst;
@@ -80,9 +81,14 @@ enum Command {
     Table(table::TableCommandArgs),
     /// Combine a cathode and an anode couple: net reaction, n, E°cell, ΔG°, K, temperature
     #[command(
-        after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --activity Cu2+=0.1 --activity Zn2+=0.001\n  couplet cell --cathode O2/OH- --anode ZnO/Zn --medium base --temperature 37C --json\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --emit python"
+        after_help = "Examples:\n  couplet cell --cathode PbO2/PbSO4 --anode PbSO4/Pb\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --activity Cu2+=0.1 --activity Zn2+=0.001\n  couplet cell --cathode O2/OH- --anode ZnO/Zn --medium base --temperature 37C --json\n  couplet cell --cathode Cu2+/Cu --anode Cu2+/Cu --activity 'Cu2+(cathode)=1' --activity 'Cu2+(anode)=0.1'\n  couplet cell --cathode Cu2+/Cu --anode Zn2+/Zn --emit python"
     )]
     Cell(cell::CellArgs),
+    /// Potential of one electrode at a composition, on the SHE, RHE or a reference-electrode scale
+    #[command(
+        after_help = "Examples:\n  couplet electrode Ag+/Ag --activity Ag+=0.01 --scale sce\n  couplet electrode O2/H2O --ph 7 --pressure O2=0.21 --scale rhe\n  couplet electrode Fe3+/Fe2+ --activity Fe3+=0.1 --activity Fe2+=0.01 --json"
+    )]
+    Electrode(electrode::ElectrodeCommandArgs),
     /// A new couple from couples that share species, by adding free energies
     #[command(
         after_help = "Examples:\n  couplet derive Fe3+/Fe2+ Fe2+/Fe\n  couplet derive --json Cu2+/Cu+ Cu+/Cu"
@@ -171,6 +177,7 @@ fn dispatch(command: Command, out: &mut dyn Write) -> io::Result<u8> {
         Command::Balance(args) => balance::run(&args, out),
         Command::Table(args) => table::run(&args, out),
         Command::Cell(args) => cell::run(&args, out),
+        Command::Electrode(args) => electrode::run(&args, out),
         Command::Derive(args) => derive::run(&args, out),
         Command::Oxidation(args) => oxidation::run(&args, out),
         Command::Capacity(args) => capacity::run(&args, out),

@@ -3,6 +3,7 @@
 
 use super::failure::Failure;
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE, argument_or_stdin, print_json};
+use couplet::composition::decimal_text;
 use couplet::notation::{Equation, Input, parse_input, parse_species};
 use couplet::oxidation::{
     ElementChange, IonTable, Options, OxidationError, Pin, RedoxAnalysis, RedoxError,
@@ -220,6 +221,19 @@ fn failure(out: &mut dyn Write, error: &OxidationError, json: bool) -> io::Resul
     Failure::new(error.kind_name(), EXIT_FINDINGS, error.to_string()).report(out, json)
 }
 
+/// Atoms per formula unit: a JSON integer, the decimal of a non-integer subscript, or a string
+/// for a fraction that is no decimal (`"1/3"`).
+fn atoms_json(result: &SpeciesOxidation, count: u64) -> Value {
+    let atoms = result.per_formula_unit(count);
+    if atoms.is_integer() {
+        json!(atoms.numer())
+    } else {
+        let text = decimal_text(&atoms);
+        text.parse::<serde_json::Number>()
+            .map_or(json!(text), Value::Number)
+    }
+}
+
 /// The JSON schema of issue 4 (documented in the README).
 pub fn result_json(result: &SpeciesOxidation) -> Value {
     let elements: Vec<Value> = result
@@ -228,7 +242,7 @@ pub fn result_json(result: &SpeciesOxidation) -> Value {
         .map(|e| {
             let mut object = json!({
                 "element": e.element.symbol(),
-                "count": e.count,
+                "count": atoms_json(result, e.count),
                 "oxidation_number": signed_text(&e.oxidation_number),
                 "status": e.status.name(),
                 "rule": e.rule.text(),
@@ -240,7 +254,7 @@ pub fn result_json(result: &SpeciesOxidation) -> Value {
                         .map(|s| {
                             json!({
                                 "oxidation_number": signed_text(&s.oxidation_number),
-                                "count": s.count,
+                                "count": atoms_json(result, s.count),
                             })
                         })
                         .collect(),
@@ -263,7 +277,7 @@ fn result_table(result: &SpeciesOxidation) -> String {
             "  {:<7} {:>9} {:>6}  {:<10}  {}\n",
             e.element.symbol(),
             signed_text(&e.oxidation_number),
-            e.count,
+            decimal_text(&result.per_formula_unit(e.count)),
             e.status.name(),
             e.rule.text()
         ));
@@ -273,7 +287,7 @@ fn result_table(result: &SpeciesOxidation) -> String {
                     "  {:<7} {:>9} {:>6}  {:<10}  {}\n",
                     "  site",
                     signed_text(&s.oxidation_number),
-                    s.count,
+                    decimal_text(&result.per_formula_unit(s.count)),
                     s.status.name(),
                     s.rule.text()
                 ));

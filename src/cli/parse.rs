@@ -2,7 +2,7 @@
 
 use super::failure::Failure;
 use super::{EXIT_OK, argument_or_stdin, print_json};
-use couplet::composition::Composition;
+use couplet::composition::{Composition, decimal_text};
 use couplet::notation::{Input, Species, Term, parse_input};
 use num_rational::Ratio;
 use serde_json::{Value, json};
@@ -46,11 +46,21 @@ fn coefficient_text(c: &Ratio<u64>) -> String {
 
 /// The JSON object of one species (schema in the README).
 pub fn species_json(species: &Species, coefficient: &Ratio<u64>, input_text: &str) -> Value {
+    // Whole counts as JSON integers; non-integer ones as the decimal they are (Li0.5CoO2), or
+    // as a string when they are no decimal ("1/3").
     let elements: serde_json::Map<String, Value> = species
         .composition
-        .counts()
-        .iter()
-        .map(|(e, n)| (e.symbol().to_owned(), json!(n)))
+        .exact_counts()
+        .map(|(e, n)| {
+            let value = if n.is_integer() {
+                json!(n.numer())
+            } else {
+                let text = decimal_text(&n);
+                text.parse::<serde_json::Number>()
+                    .map_or(json!(text), Value::Number)
+            };
+            (e.symbol().to_owned(), value)
+        })
         .collect();
     json!({
         "input": input_text,
@@ -98,8 +108,9 @@ fn totals(terms: &[Term]) -> (Vec<(String, Ratio<i128>)>, Ratio<i128>) {
             *term.coefficient.denom() as i128,
         );
         charge += c * Ratio::from_integer(term.species.charge() as i128);
+        let per = term.species.composition.denominator() as i128;
         for (element, n) in term.species.composition.counts() {
-            let add = c * Ratio::from_integer(*n as i128);
+            let add = c * Ratio::new(*n as i128, per);
             match counts.iter_mut().find(|(s, _)| s == element.symbol()) {
                 Some((_, total)) => *total += add,
                 None => counts.push((element.symbol().to_owned(), add)),
@@ -121,9 +132,8 @@ fn composition_text(c: &Composition) -> String {
     if c.is_empty() {
         return "—".to_owned();
     }
-    c.counts()
-        .iter()
-        .map(|(e, n)| format!("{e} {n}"))
+    c.exact_counts()
+        .map(|(e, n)| format!("{e} {}", decimal_text(&n)))
         .collect::<Vec<_>>()
         .join(", ")
 }

@@ -64,7 +64,16 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
         });
     }
     if found.is_empty() {
-        say!("no couple fits; try an element name or symbol, or `couplet table` for all");
+        let hints = args
+            .query
+            .as_deref()
+            .map(|q| table.suggestions(q))
+            .unwrap_or_default();
+        if hints.is_empty() {
+            say!("no couple fits; try an element name or symbol, or `couplet table` for all");
+        } else {
+            say!("no couple fits; did you mean: {}?", hints.join(", "));
+        }
         if let Some(query) = args.query.as_deref()
             && let Ok(found) =
                 couplet::thermo::couple_from_data(query, None, super::common::formation_data())

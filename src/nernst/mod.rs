@@ -191,6 +191,25 @@ fn find<'a>(list: &'a [(Species, f64)], species: &Species) -> Option<&'a f64> {
         .map(|(_, v)| v)
 }
 
+/// Why a value was refused for a species the reaction does not contain; names the compartments
+/// when the reaction holds the species in both sides of a concentration cell.
+fn not_contained(what: &str, quotient: &Quotient, species: &Species) -> String {
+    let placed: Vec<String> = quotient
+        .factors()
+        .iter()
+        .filter(|f| f.species.kind == species.kind && f.species.compartment.is_some())
+        .map(|f| f.species.without_state().ascii())
+        .collect();
+    if placed.is_empty() || species.compartment.is_some() {
+        format!("{what} was given but the reaction does not contain it")
+    } else {
+        format!(
+            "{what} was given but the reaction holds this species in two compartments: give {}",
+            placed.join(" and ")
+        )
+    }
+}
+
 fn is_hydrogen_ion(species: &Species) -> bool {
     species.ascii() == "H+"
 }
@@ -306,7 +325,7 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
         else {
             return Err(NernstError::NotUsable {
                 species: s.ascii(),
-                reason: "an activity was given but the reaction does not contain it".into(),
+                reason: not_contained("an activity", &quotient, s),
             });
         };
         if f.phase.is_pure() {
@@ -332,12 +351,18 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
             None => {
                 return Err(NernstError::NotUsable {
                     species: s.ascii(),
-                    reason: "a pressure was given but the reaction does not contain it".into(),
+                    reason: not_contained("a pressure", &quotient, s),
                 });
             }
         }
     }
     for (s, _) in &conditions.amounts {
+        if s.compartment.is_some() && conditions.model.model != GammaModel::Ideal {
+            return Err(NernstError::NotUsable {
+                species: s.ascii(),
+                reason: "each compartment has its own ionic strength, and the γ models here describe one solution: give activities (--activity) or use --gamma ideal".into(),
+            });
+        }
         if let Some(f) = quotient
             .factors()
             .iter()
@@ -355,6 +380,18 @@ pub fn evaluate(couple: &Standard, conditions: &Conditions) -> Result<Nernst, Ne
             .entering()
             .any(|f| is_hydrogen_ion(&f.species) || is_hydroxide(&f.species));
         if !uses {
+            if let Some(f) = quotient.factors().iter().find(|f| {
+                let bare = Species {
+                    compartment: None,
+                    ..f.species.without_state()
+                };
+                f.species.compartment.is_some() && (is_hydrogen_ion(&bare) || is_hydroxide(&bare))
+            }) {
+                return Err(NernstError::NotUsable {
+                    species: f.species.ascii(),
+                    reason: "a concentration cell has a pH in each compartment: give --activity for H+(cathode) and H+(anode) (or OH-) instead of --ph".into(),
+                });
+            }
             return Err(NernstError::PhUnused);
         }
         for f in quotient.entering() {

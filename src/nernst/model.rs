@@ -323,9 +323,10 @@ impl CellModel {
         temperatures_kelvin: &[f64],
         out: &mut [f64],
     ) -> Result<(), ModelError> {
-        let (rows, _) = activities.as_chunks::<W>();
+        let rows = activities
+            .chunks_exact(W)
+            .map(|row| <&[f64; W]>::try_from(row).expect("chunks_exact gives rows of W"));
         for (i, ((row, &t), e)) in rows
-            .iter()
             .zip(temperatures_kelvin)
             .zip(out.iter_mut())
             .enumerate()

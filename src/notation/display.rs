@@ -1,7 +1,10 @@
 //! Writing species and equations back out: canonical ASCII (read back by the parser),
 //! Unicode for terminals, and the body of an mhchem `\ce{}` macro for LaTeX.
 
-use super::{Arrow, Bracket, Component, Equation, Formula, Species, SpeciesKind, Term, Unit};
+use super::{
+    Arrow, Bracket, Component, Count, Equation, Formula, Species, SpeciesKind, Term, Unit,
+};
+use crate::composition::decimal_text;
 use num_rational::Ratio;
 use std::fmt::Write;
 
@@ -32,10 +35,32 @@ fn write_number(out: &mut String, value: u64, digits: Option<&[char; 10]>) {
     }
 }
 
-fn write_count(out: &mut String, count: u32, style: Style) {
-    if count != 1 {
-        let digits = (style == Style::Unicode).then_some(&SUBSCRIPTS);
-        write_number(out, count as u64, digits);
+fn write_count(out: &mut String, count: Count, style: Style) {
+    if count.is_integer() {
+        if *count.numer() != 1 {
+            let digits = (style == Style::Unicode).then_some(&SUBSCRIPTS);
+            write_number(out, *count.numer(), digits);
+        }
+        return;
+    }
+    // Decimals: `0.8` and `1.25` plain in ASCII (the parser reads a point after 0 or 1 as a
+    // decimal point), larger ones and mhchem in braces, Unicode in subscript digits.
+    // Fractions that are no decimal (`1/3`) plain in ASCII, braced in mhchem.
+    let text = decimal_text(&count);
+    let is_fraction = text.contains('/');
+    match style {
+        Style::Unicode => {
+            for c in text.chars() {
+                match c.to_digit(10) {
+                    Some(d) => out.push(SUBSCRIPTS[d as usize]),
+                    None => out.push(c),
+                }
+            }
+        }
+        Style::Ascii if is_fraction || count < Ratio::from_integer(2) => out.push_str(&text),
+        _ => {
+            let _ = write!(out, "_{{{text}}}");
+        }
     }
 }
 
@@ -85,12 +110,12 @@ fn digits_lend_to_charge(formula: &Formula) -> (bool, bool) {
     }
     let body = &formula.components[0].body;
     match body.last() {
-        Some(Unit::Atom { count, .. }) if body.len() == 1 => (true, *count != 1),
+        Some(Unit::Atom { count, .. }) if body.len() == 1 => (true, *count != Count::from(1)),
         Some(Unit::Group {
             bracket: Bracket::Square,
             count,
             ..
-        }) => (true, *count != 1),
+        }) => (true, *count != Count::from(1)),
         _ => (false, false),
     }
 }
@@ -156,6 +181,11 @@ fn write_species(out: &mut String, species: &Species, style: Style) {
     if let Some(state) = species.state {
         out.push('(');
         out.push_str(state.label());
+        out.push(')');
+    }
+    if let Some(compartment) = species.compartment {
+        out.push('(');
+        out.push_str(compartment.label());
         out.push(')');
     }
 }

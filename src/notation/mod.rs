@@ -59,6 +59,10 @@ pub enum Bracket {
     Square,
 }
 
+/// A subscript: a whole number, or an exact decimal for non-integer stoichiometry (`0.8` in
+/// `LiNi0.8Mn0.1Co0.1O2`, kept as the rational 4/5).
+pub type Count = Ratio<u64>;
+
 /// One piece of a formula body: an element with its count, or a bracketed group with its count.
 #[derive(Clone, Debug, PartialEq, Eq, Hash)]
 pub enum Unit {
@@ -67,7 +71,7 @@ pub enum Unit {
         /// The element (or isotope label).
         element: Element,
         /// The subscript, 1 when none was written.
-        count: u32,
+        count: Count,
         /// Where it was read.
         span: Span,
     },
@@ -78,7 +82,7 @@ pub enum Unit {
         /// What is inside.
         body: Vec<Unit>,
         /// The subscript after the closing bracket, 1 when none was written.
-        count: u32,
+        count: Count,
         /// Where it was read, brackets and count included.
         span: Span,
     },
@@ -147,6 +151,36 @@ impl State {
     }
 }
 
+/// Which electrode compartment of a cell a species is in: written `(cathode)` or `(anode)` after
+/// the state label. Only a concentration cell needs it, where the same couple sits on both
+/// sides and the same ion must be told apart by where it is (`Cu2+(cathode)`, `Cu2+(anode)`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Compartment {
+    /// The compartment of the electrode where reduction happens.
+    Cathode,
+    /// The compartment of the electrode where oxidation happens.
+    Anode,
+}
+
+impl Compartment {
+    /// The label as written between the brackets: `cathode`, `anode`.
+    pub fn label(self) -> &'static str {
+        match self {
+            Compartment::Cathode => "cathode",
+            Compartment::Anode => "anode",
+        }
+    }
+
+    /// Reads a label (without brackets).
+    pub fn from_label(label: &str) -> Option<Compartment> {
+        match label {
+            "cathode" => Some(Compartment::Cathode),
+            "anode" => Some(Compartment::Anode),
+            _ => None,
+        }
+    }
+}
+
 /// What a species is: the electron, or a formula.
 #[derive(Clone, Debug, PartialEq, Eq, Hash)]
 pub enum SpeciesKind {
@@ -164,6 +198,8 @@ pub struct Species {
     pub kind: SpeciesKind,
     /// `(s)`, `(aq)`, … when written.
     pub state: Option<State>,
+    /// `(cathode)` or `(anode)` when written (concentration cells).
+    pub compartment: Option<Compartment>,
     /// Element counts and charge, computed when the species was read.
     pub composition: Composition,
     /// Where it was read.
@@ -173,7 +209,9 @@ pub struct Species {
 impl PartialEq for Species {
     fn eq(&self, other: &Species) -> bool {
         // The composition is derived from `kind`, so it need not be compared.
-        self.kind == other.kind && self.state == other.state
+        self.kind == other.kind
+            && self.state == other.state
+            && self.compartment == other.compartment
     }
 }
 impl Eq for Species {}
@@ -181,6 +219,7 @@ impl Hash for Species {
     fn hash<H: Hasher>(&self, state: &mut H) {
         self.kind.hash(state);
         self.state.hash(state);
+        self.compartment.hash(state);
     }
 }
 
@@ -195,7 +234,16 @@ impl Species {
         self.composition.charge()
     }
 
-    /// The same species with no state label, for comparing what a species *is*.
+    /// The same species placed in a compartment of a cell.
+    pub fn in_compartment(&self, compartment: Compartment) -> Species {
+        Species {
+            compartment: Some(compartment),
+            ..self.clone()
+        }
+    }
+
+    /// The same species with no state label, for comparing what a species *is* (the
+    /// compartment, where written, stays: it says which species, not which phase).
     pub fn without_state(&self) -> Species {
         Species {
             state: None,

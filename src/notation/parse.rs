@@ -18,8 +18,8 @@
 //! - `-` followed by `>` is always the arrow, never a charge.
 
 use super::{
-    Arrow, Bracket, Component, Equation, Formula, NotationError, NotationErrorKind, Span, Species,
-    SpeciesKind, State, Term, Unit,
+    Arrow, Bracket, Compartment, Component, Count, Equation, Formula, NotationError,
+    NotationErrorKind, Span, Species, SpeciesKind, State, Term, Unit,
 };
 use crate::composition::Composition;
 use crate::elements::Element;
@@ -134,6 +134,14 @@ fn digit_value(c: char, digits: &[char; 10]) -> Option<u64> {
     digits.iter().position(|&d| d == c).map(|v| v as u64)
 }
 
+/// The value of a digit in `script` (ASCII when `None`).
+fn digit_in(c: char, script: Option<&[char; 10]>) -> Option<u64> {
+    match script {
+        None => c.to_digit(10).filter(|_| c.is_ascii_digit()).map(u64::from),
+        Some(set) => digit_value(c, set),
+    }
+}
+
 /// Digits in one script (ASCII, subscript or superscript) as a number, with their length in
 /// bytes; `None` when there are no such digits. Fails past `limit`.
 fn number_in<'a>(
@@ -145,13 +153,8 @@ fn number_in<'a>(
     let mut value: u64 = 0;
     let mut taken = 0;
     for c in input.chars() {
-        let digit = match script {
-            None if c.is_ascii_digit() => (c as u8 - b'0') as u64,
-            Some(set) => match digit_value(c, set) {
-                Some(d) => d,
-                None => break,
-            },
-            None => break,
+        let Some(digit) = digit_in(c, script) else {
+            break;
         };
         value = match value.checked_mul(10).and_then(|v| v.checked_add(digit)) {
             Some(v) if v <= limit => v,
@@ -177,29 +180,168 @@ fn number_in<'a>(
     }
 }
 
-/// A subscript after an element or group, in ASCII or Unicode subscript digits.
-/// Returns the count and whether ASCII digits were written (only those can turn out to be a
-/// charge, as in `Fe3+`).
-fn count(input: &str) -> Res<'_, (u32, bool)> {
-    let max = super::LIMITS.max_count as u64;
-    let (rest, ascii) = number_in(input, None, max, "a count")?;
-    let (rest, value, written_ascii) = match ascii {
-        Some(v) => (rest, Some(v), true),
-        None => {
-            let (rest, sub) = number_in(input, Some(&SUBSCRIPTS), max, "a count")?;
-            (rest, sub, false)
+/// Most decimal places a subscript may have.
+const MAX_DECIMAL_PLACES: u32 = 6;
+
+/// The digits after a decimal point, in `script` (ASCII when `None`): value and places.
+fn decimals<'a>(input: &'a str, script: Option<&[char; 10]>) -> Res<'a, (u64, u32)> {
+    let mut value = 0u64;
+    let mut places = 0u32;
+    let mut taken = 0;
+    for c in input.chars() {
+        let Some(digit) = digit_in(c, script) else {
+            break;
+        };
+        places += 1;
+        if places > MAX_DECIMAL_PLACES {
+            return fail(
+                input,
+                taken + c.len_utf8(),
+                NotationErrorKind::Limit,
+                format!("a subscript with more than {MAX_DECIMAL_PLACES} decimal places"),
+            );
         }
+        value = value * 10 + digit;
+        taken += c.len_utf8();
+    }
+    Ok((&input[taken..], (value, places)))
+}
+
+/// A fraction bar and denominator after the numerator of a subscript (`1/3` in
+/// `LiNi1/3Mn1/3Co1/3O2`), in `script` (ASCII when `None`); `None` when no fraction follows.
+fn fraction<'a>(
+    start: &'a str,
+    rest: &'a str,
+    numerator: u64,
+    script: Option<&[char; 10]>,
+) -> Res<'a, Option<Count>> {
+    let Some(after) = rest.strip_prefix('/') else {
+        return Ok((rest, None));
     };
-    match value {
-        None => Ok((input, (1, false))),
-        Some(0) => fail(
+    if after
+        .chars()
+        .next()
+        .and_then(|c| digit_in(c, script))
+        .is_none()
+    {
+        return Ok((rest, None));
+    }
+    let max = super::LIMITS.max_count as u64;
+    let (after, denominator) = number_in(after, script, max, "a subscript's denominator")?;
+    match denominator {
+        Some(0) | None => fail(
+            start,
+            start.len() - after.len(),
+            NotationErrorKind::Syntax,
+            "a subscript with a zero denominator",
+        ),
+        Some(d) => Ok((after, Some(Ratio::new(numerator, d)))),
+    }
+}
+
+/// `whole.decimals` as an exact count, checked against the limit.
+fn decimal_count<'a>(
+    start: &'a str,
+    rest: &'a str,
+    whole: u64,
+    (decimals, places): (u64, u32),
+) -> Res<'a, Count> {
+    let scale = 10u64.pow(places);
+    let value = Ratio::new(whole * scale + decimals, scale);
+    if value > Ratio::from_integer(super::LIMITS.max_count as u64) {
+        return fail(
+            start,
+            start.len() - rest.len(),
+            NotationErrorKind::Limit,
+            format!(
+                "a count is larger than the limit of {}",
+                super::LIMITS.max_count
+            ),
+        );
+    }
+    Ok((rest, value))
+}
+
+/// A subscript after an element or group: ASCII digits, Unicode subscript digits, a decimal
+/// (`0.8`, `1.25`, `₀.₅`, `_{2.5}`) or a fraction (`1/3`, `₁/₃`, `_{1/3}`). Returns the count
+/// and whether ASCII digits of a whole number were written (only those can turn out to be a
+/// charge, as in `Fe3+`).
+///
+/// A decimal point after ASCII digits is read as such only after `0` or `1` (`Li0.5CoO2`,
+/// `Li1.2Mn0.6Ni0.2O2`): after larger digits it stays the adduct dot of `CuSO4.5H2O`. A
+/// larger decimal is written in braces, `_{2.5}` (as mhchem does), or in subscript digits.
+fn count(input: &str) -> Res<'_, (Count, bool)> {
+    let max = super::LIMITS.max_count as u64;
+    let zero = |rest: &str| {
+        fail(
             input,
             input.len() - rest.len(),
             NotationErrorKind::Syntax,
             "a count of zero: leave the element out instead",
-        ),
-        Some(v) => Ok((rest, (v as u32, written_ascii))),
+        )
+    };
+    if let Some(inner) = input.strip_prefix("_{") {
+        let (rest, whole) = number_in(inner, None, max, "a count")?;
+        let Some(whole) = whole else {
+            return syntax(inner, "expected digits of a subscript after '_{'");
+        };
+        let (rest, value) = match rest.strip_prefix('.') {
+            Some(after) => {
+                let (after, digits) = decimals(after, None)?;
+                if digits.1 == 0 {
+                    return syntax(after, "expected digits after the decimal point");
+                }
+                decimal_count(input, after, whole, digits)?
+            }
+            None => match fraction(input, rest, whole, None)? {
+                (after, Some(value)) => (after, value),
+                (after, None) => (after, Ratio::from_integer(whole)),
+            },
+        };
+        let Some(rest) = rest.strip_prefix('}') else {
+            return syntax(rest, "expected '}' to close the subscript");
+        };
+        if value == Ratio::from_integer(0) {
+            return zero(rest);
+        }
+        return Ok((rest, (value, false)));
     }
+    let (rest, ascii) = number_in(input, None, max, "a count")?;
+    let (rest, value, written_ascii, script) = match ascii {
+        Some(v) => (rest, Some(v), true, None),
+        None => {
+            let (rest, sub) = number_in(input, Some(&SUBSCRIPTS), max, "a count")?;
+            (rest, sub, false, Some(&SUBSCRIPTS))
+        }
+    };
+    let Some(whole) = value else {
+        return Ok((input, (Ratio::from_integer(1), false)));
+    };
+    // A decimal point: before subscript digits always, before ASCII digits after 0 or 1.
+    if let Some(after) = rest.strip_prefix('.') {
+        let next_is_digit = match script {
+            None => after.starts_with(|c: char| c.is_ascii_digit()) && whole <= 1,
+            Some(set) => after.chars().next().is_some_and(|c| set.contains(&c)),
+        };
+        if next_is_digit {
+            let (after, digits) = decimals(after, script)?;
+            let (after, value) = decimal_count(input, after, whole, digits)?;
+            if value == Ratio::from_integer(0) {
+                return zero(after);
+            }
+            return Ok((after, (value, false)));
+        }
+    }
+    if let (after, Some(value)) = fraction(input, rest, whole, script)? {
+        if value == Ratio::from_integer(0) {
+            return zero(after);
+        }
+        return Ok((after, (value, false)));
+    }
+    if whole == 0 {
+        return zero(rest);
+    }
+    Ok((rest, (Ratio::from_integer(whole), written_ascii)))
 }
 
 // ---------------------------------------------------------------- formulas
@@ -250,6 +392,21 @@ struct LastCount {
     value: u32,
 }
 
+impl LastCount {
+    /// Only whole ASCII digits can be lent to a charge.
+    fn of(count: Count, ascii_written: bool) -> LastCount {
+        let whole = count.is_integer();
+        LastCount {
+            ascii_written: ascii_written && whole,
+            value: if whole {
+                u32::try_from(*count.numer()).unwrap_or(u32::MAX)
+            } else {
+                0
+            },
+        }
+    }
+}
+
 /// Parsing context: the whole text (for spans) and the bracket depth.
 #[derive(Clone, Copy)]
 struct Ctx<'a> {
@@ -278,16 +435,7 @@ impl<'a> Ctx<'a> {
                     count,
                     span: self.span(input, rest),
                 };
-                return Ok((
-                    rest,
-                    (
-                        unit,
-                        LastCount {
-                            ascii_written,
-                            value: count,
-                        },
-                    ),
-                ));
+                return Ok((rest, (unit, LastCount::of(count, ascii_written))));
             }
         };
         // `(` before a small letter starts a state label, not a group.
@@ -328,16 +476,7 @@ impl<'a> Ctx<'a> {
             count,
             span: self.span(input, rest),
         };
-        Ok((
-            rest,
-            (
-                unit,
-                LastCount {
-                    ascii_written,
-                    value: count,
-                },
-            ),
-        ))
+        Ok((rest, (unit, LastCount::of(count, ascii_written))))
     }
 
     /// One or more units, and how the last one's count was written.
@@ -404,15 +543,26 @@ impl<'a> Ctx<'a> {
         Ok((rest, (components, last)))
     }
 
-    /// A formula with its charge, or the electron, then an optional state label.
+    /// A formula with its charge, or the electron, then optional state and compartment labels.
     fn species(&self, input: &'a str) -> Res<'a, Species> {
         if let Some((rest, ())) = electron(input)? {
-            let (rest, state) = state_label(rest)?;
+            let (after, (state, compartment)) = labels(rest)?;
+            if compartment.is_some() {
+                let at = rest.trim_start();
+                return fail(
+                    at,
+                    at.len() - after.len(),
+                    NotationErrorKind::Syntax,
+                    "the electron is in no compartment: label the ions instead",
+                );
+            }
+            let rest = after;
             return Ok((
                 rest,
                 Species {
                     kind: SpeciesKind::Electron,
                     state,
+                    compartment: None,
                     composition: Composition::charged(-1),
                     span: self.span(input, rest),
                 },
@@ -437,7 +587,9 @@ impl<'a> Ctx<'a> {
         let (rest, charge) = charge(after_body, lendable)?;
         if let Charge::Borrowed(_) = charge {
             match components[0].body.last_mut() {
-                Some(Unit::Atom { count, .. }) | Some(Unit::Group { count, .. }) => *count = 1,
+                Some(Unit::Atom { count, .. }) | Some(Unit::Group { count, .. }) => {
+                    *count = Ratio::from_integer(1)
+                }
                 None => {}
             }
         }
@@ -468,12 +620,15 @@ impl<'a> Ctx<'a> {
                 );
             }
         };
+        // Protons per `denominator` formula units, like the counts.
         let protons: u64 = composition
             .counts()
             .iter()
-            .map(|&(e, n)| e.atomic_number() as u64 * n)
-            .sum();
-        if charge_value > 0 && charge_value as u64 > protons {
+            .map(|&(e, n)| (e.atomic_number() as u64).saturating_mul(n))
+            .fold(0, u64::saturating_add);
+        let denominator = composition.denominator();
+        if charge_value > 0 && (charge_value as u64).saturating_mul(denominator) > protons {
+            let protons = crate::composition::decimal_text(&Ratio::new(protons, denominator));
             return fail(
                 input,
                 input.len() - rest.len(),
@@ -483,12 +638,13 @@ impl<'a> Ctx<'a> {
                 ),
             );
         }
-        let (rest, state) = state_label(rest)?;
+        let (rest, (state, compartment)) = labels(rest)?;
         Ok((
             rest,
             Species {
                 kind: SpeciesKind::Formula(formula),
                 state,
+                compartment,
                 composition,
                 span: self.span(input, rest),
             },
@@ -794,8 +950,15 @@ fn electron(input: &str) -> Result<Option<(&str, ())>, nom::Err<PErr<'_>>> {
     }))
 }
 
-/// An optional state label: `(s)`, `(l)`, `(g)`, `(aq)`, `(cr)`, after optional spaces.
-fn state_label(input: &str) -> Res<'_, Option<State>> {
+/// A label read after a species.
+enum Label {
+    State(State),
+    Compartment(Compartment),
+}
+
+/// An optional label after optional spaces: a state `(s)`, `(l)`, `(g)`, `(aq)`, `(cr)` or a
+/// compartment `(cathode)`, `(anode)`.
+fn label(input: &str) -> Res<'_, Option<Label>> {
     let trimmed = input.trim_start();
     let Some(inner) = trimmed.strip_prefix('(') else {
         return Ok((input, None));
@@ -808,14 +971,57 @@ fn state_label(input: &str) -> Res<'_, Option<State>> {
         .unwrap_or(inner.len());
     let label = &inner[..label_len];
     let after = &inner[label_len..];
-    match (State::from_label(label), after.strip_prefix(')')) {
-        (Some(state), Some(rest)) => Ok((rest, Some(state))),
+    let read = State::from_label(label)
+        .map(Label::State)
+        .or_else(|| Compartment::from_label(label).map(Label::Compartment));
+    match (read, after.strip_prefix(')')) {
+        (Some(read), Some(rest)) => Ok((rest, Some(read))),
         _ => fail(
             trimmed,
             label_len + 1 + usize::from(after.starts_with(')')),
             NotationErrorKind::Syntax,
-            format!("unknown state label '({label})': use (s), (l), (g), (aq) or (cr)"),
+            format!(
+                "unknown state label '({label})': use (s), (l), (g), (aq) or (cr), or a compartment (cathode) or (anode)"
+            ),
         ),
+    }
+}
+
+/// An optional state label, then an optional compartment label: `Cu2+(aq)(anode)`.
+fn labels(input: &str) -> Res<'_, (Option<State>, Option<Compartment>)> {
+    let (rest, first) = label(input)?;
+    match first {
+        None => Ok((rest, (None, None))),
+        Some(Label::Compartment(c)) => match label(rest) {
+            Ok((_, Some(Label::State(_)))) => {
+                let at = rest.trim_start();
+                let len = at.find(')').map_or(at.len(), |i| i + 1);
+                fail(
+                    at,
+                    len,
+                    NotationErrorKind::Syntax,
+                    "the state label comes before the compartment: write Cu2+(aq)(anode)",
+                )
+            }
+            _ => Ok((rest, (None, Some(c)))),
+        },
+        Some(Label::State(state)) => {
+            let (after, second) = label(rest)?;
+            match second {
+                None => Ok((rest, (Some(state), None))),
+                Some(Label::Compartment(c)) => Ok((after, (Some(state), Some(c)))),
+                Some(Label::State(_)) => {
+                    let at = rest.trim_start();
+                    let len = at.find(')').map_or(at.len(), |i| i + 1);
+                    fail(
+                        at,
+                        len,
+                        NotationErrorKind::Syntax,
+                        "a second state label: a species has one state",
+                    )
+                }
+            }
+        }
     }
 }
 
@@ -900,24 +1106,33 @@ fn composition_of(formula: &Formula) -> Option<Composition> {
         add_units(
             &mut composition,
             &component.body,
-            component.multiplier as u64,
+            Ratio::from_integer(component.multiplier as u64),
         )?;
     }
     Some(composition)
 }
 
-fn add_units(composition: &mut Composition, units: &[Unit], multiplier: u64) -> Option<()> {
+fn add_units(composition: &mut Composition, units: &[Unit], multiplier: Count) -> Option<()> {
     for unit in units {
         match unit {
+            // Whole numbers, the usual case, stay in integer arithmetic.
+            Unit::Atom { element, count, .. } if count.is_integer() && multiplier.is_integer() => {
+                composition.add(*element, count.numer().checked_mul(*multiplier.numer())?)?;
+            }
             Unit::Atom { element, count, .. } => {
-                composition.add(*element, (*count as u64).checked_mul(multiplier)?)?;
+                composition.add_exact(*element, checked_product(count, &multiplier)?)?;
             }
             Unit::Group { body, count, .. } => {
-                add_units(composition, body, (*count as u64).checked_mul(multiplier)?)?;
+                add_units(composition, body, checked_product(count, &multiplier)?)?;
             }
         }
     }
     Some(())
+}
+
+fn checked_product(a: &Count, b: &Count) -> Option<Count> {
+    use num_traits::CheckedMul;
+    a.checked_mul(b)
 }
 
 // ---------------------------------------------------------------- entry points

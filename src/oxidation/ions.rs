@@ -13,7 +13,7 @@ use super::rules::{Fragment, assign_fragment};
 use super::{Assignment, OxidationError, Pin, Rule, Status, parse_signed_rational};
 use crate::composition::Composition;
 use crate::elements::Element;
-use crate::notation::{Formula, SpeciesKind, Unit, parse_species};
+use crate::notation::{Count, Formula, SpeciesKind, Unit, parse_species};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
@@ -43,6 +43,9 @@ pub struct KnownIon {
     counts: Vec<(Element, u64)>,
     /// The written units, with one outer bracket pair removed (`[Fe(CN)6]4-`).
     body: Vec<Unit>,
+    /// For an ion of one element: metals whose binary compound with it is usually read as a
+    /// salt of this ion (FeS2 as iron(II) disulfide).
+    pub usual_with: Vec<Element>,
 }
 
 impl KnownIon {
@@ -81,6 +84,8 @@ struct IonEntry {
     formula: String,
     name: String,
     oxidation: toml::Table,
+    #[serde(default)]
+    usual_with: Vec<String>,
 }
 
 impl IonTable {
@@ -153,11 +158,10 @@ fn check_entry(index: usize, entry: &IonEntry) -> Result<KnownIon, IonTableError
     let mut body = formula.components[0].body.clone();
     if let [
         Unit::Group {
-            body: inner,
-            count: 1,
-            ..
+            body: inner, count, ..
         },
     ] = body.as_slice()
+        && *count == Count::from(1)
     {
         body = inner.clone();
     }
@@ -194,6 +198,15 @@ fn check_entry(index: usize, entry: &IonEntry) -> Result<KnownIon, IonTableError
             species.charge()
         )));
     }
+    let mut usual_with = Vec::with_capacity(entry.usual_with.len());
+    for symbol in &entry.usual_with {
+        if counts.len() != 1 {
+            return Err(at("usual_with is only for ions of one element".into()));
+        }
+        let metal = Element::from_symbol(symbol)
+            .ok_or_else(|| at(format!("usual_with: no element has the symbol '{symbol}'")))?;
+        usual_with.push(metal);
+    }
     Ok(KnownIon {
         formula: entry.formula.clone(),
         name: entry.name.clone(),
@@ -201,6 +214,7 @@ fn check_entry(index: usize, entry: &IonEntry) -> Result<KnownIon, IonTableError
         oxidation,
         counts,
         body,
+        usual_with,
     })
 }
 
@@ -208,15 +222,20 @@ fn same_atoms(a: &[(Element, u64)], b: &[(Element, u64)]) -> bool {
     a.len() == b.len() && a.iter().all(|x| b.contains(x))
 }
 
+/// A whole-number subscript; `None` for a decimal one (such formulas are not split into ions).
+fn whole(count: &Count) -> Option<u64> {
+    count.is_integer().then(|| *count.numer())
+}
+
 /// Atom counts of some units, times `factor`; `None` on overflow.
 fn units_composition(units: &[Unit], factor: u64, into: &mut Composition) -> Option<()> {
     for unit in units {
         match unit {
             Unit::Atom { element, count, .. } => {
-                into.add(*element, (*count as u64).checked_mul(factor)?)?
+                into.add(*element, whole(count)?.checked_mul(factor)?)?
             }
             Unit::Group { body, count, .. } => {
-                units_composition(body, factor.checked_mul(*count as u64)?, into)?
+                units_composition(body, factor.checked_mul(whole(count)?)?, into)?
             }
         }
     }
@@ -249,7 +268,7 @@ fn scan(
     while i < units.len() {
         match &units[i] {
             Unit::Group { body, count, .. } => {
-                let times = factor.checked_mul(*count as u64)?;
+                let times = factor.checked_mul(whole(count)?)?;
                 let mut atoms = Composition::default();
                 units_composition(body, 1, &mut atoms)?;
                 // A bracketed group may be a one-element ion too (azide in Pb(N3)2): the
@@ -280,7 +299,7 @@ fn scan(
                         i += len;
                     }
                     _ => {
-                        rest.add(*element, (*count as u64).checked_mul(factor)?)?;
+                        rest.add(*element, whole(count)?.checked_mul(factor)?)?;
                         i += 1;
                     }
                 }
@@ -313,6 +332,17 @@ pub(super) fn assign(
     pins: &[Pin],
 ) -> Result<Vec<Assignment>, OxidationError> {
     let charge = composition.charge();
+    if !composition.is_integral() {
+        // Non-integer stoichiometry: no ion split; the rules on whole atoms of
+        // `denominator` formula units, whose charge is `denominator` times the species'.
+        let scaled = BigInt::from(charge) * BigInt::from(composition.denominator());
+        return assign_fragment(
+            composition.counts(),
+            &BigRational::from_integer(scaled),
+            pins,
+            Fragment::SharedSites,
+        );
+    }
     let whole = || {
         assign_fragment(
             composition.counts(),
@@ -338,6 +368,10 @@ pub(super) fn assign(
         && !pinned(&table.ions[i])
     {
         return Ok(ion_assignments(&table.ions[i], 1));
+    }
+
+    if let Some(assignments) = usual_salt(table, composition, pins) {
+        return Ok(assignments);
     }
 
     let mut scanned = Vec::with_capacity(formula.components.len());
@@ -417,6 +451,63 @@ pub(super) fn assign(
             Ok(chosen)
         }
     }
+}
+
+/// A binary compound of a metal and one element read as a salt of that element's ion, where
+/// the ion table names the metal in `usual_with` (FeS2: Fe +2 and S2^2−). Only when nothing
+/// is pinned and the metal comes out at a whole-number positive state (greigite Fe3S4 is a
+/// sulfide, and stays with the rules). Every value is an assumption.
+fn usual_salt(
+    table: &IonTable,
+    composition: &Composition,
+    pins: &[Pin],
+) -> Option<Vec<Assignment>> {
+    let [(first, first_count), (second, second_count)] = *composition.counts() else {
+        return None;
+    };
+    if !pins.is_empty() {
+        return None;
+    }
+    let reads_as = |metal: Element, other: Element| {
+        table.ions.iter().find(|ion| {
+            matches!(ion.counts.as_slice(), [(e, _)] if *e == other.chemical_element())
+                && ion.usual_with.contains(&metal.chemical_element())
+        })
+    };
+    let (metal, metal_count, other_count, ion) = match reads_as(first, second) {
+        Some(ion) => (first, first_count, second_count, ion),
+        None => (second, second_count, first_count, reads_as(second, first)?),
+    };
+    let other = if metal == first { second } else { first };
+    let per_ion = ion.counts[0].1;
+    if per_ion == 0 || other_count % per_ion != 0 {
+        return None;
+    }
+    let times = BigInt::from(other_count / per_ion);
+    let rest = BigInt::from(composition.charge()) - BigInt::from(ion.charge) * times;
+    let value = BigRational::new(rest, BigInt::from(metal_count));
+    if !value.is_integer() || value <= BigRational::zero() {
+        return None;
+    }
+    let rule = Rule::UsualIon {
+        name: ion.name.clone(),
+    };
+    Some(vec![
+        Assignment {
+            element: metal,
+            count: metal_count,
+            value,
+            status: Status::Assumed,
+            rule: Rule::ChargeBalanceAfterAssumption,
+        },
+        Assignment {
+            element: other,
+            count: other_count,
+            value: ion.oxidation[0].1.clone(),
+            status: Status::Assumed,
+            rule,
+        },
+    ])
 }
 
 fn same_values(a: &[Assignment], b: &[Assignment]) -> bool {

@@ -113,6 +113,18 @@ pub enum Rule {
     ElectronegativityChoice,
     /// Rules left several elements open; this, the least electronegative, took the rest.
     ElectronegativityRest,
+    /// Metals left open in a formula with non-integer subscripts share their sites and take
+    /// one average by charge balance (Ni, Mn, Co in LiNi0.8Mn0.1Co0.1O2: +3 together).
+    SiteAverage {
+        /// The metals that share.
+        elements: Vec<Element>,
+    },
+    /// A binary compound read as a salt of a one-element ion by the usual assumption of the
+    /// ion table (`usual_with`): FeS2 as Fe(II) disulfide. The metal follows by charge.
+    UsualIon {
+        /// The ion's name from the table.
+        name: String,
+    },
 }
 
 impl Rule {
@@ -141,6 +153,15 @@ impl Rule {
                 "electronegativity choice: usual negative state".into()
             }
             Rule::ElectronegativityRest => "electronegativity choice: rest by charge".into(),
+            Rule::UsualIon { name } => format!("usual assumption: {name}"),
+            Rule::SiteAverage { elements } => format!(
+                "site average of {} (charge balance)",
+                elements
+                    .iter()
+                    .map(|e| e.symbol())
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            ),
         }
     }
 }
@@ -196,11 +217,20 @@ pub struct SpeciesOxidation {
     pub formula: String,
     /// Net charge.
     pub charge: i64,
-    /// One entry per element, in the order of the species' composition.
+    /// One entry per element, in the order of the species' composition. Counts (of elements
+    /// and sites) are atoms per `denominator` formula units.
     pub elements: Vec<ElementOxidation>,
+    /// Formula units the counts refer to: 1, or the least common denominator of non-integer
+    /// subscripts (2 for Li0.5CoO2).
+    pub denominator: u64,
 }
 
 impl SpeciesOxidation {
+    /// Atoms per formula unit for a count of this result (`count` / `denominator`).
+    pub fn per_formula_unit(&self, count: u64) -> num_rational::Ratio<u64> {
+        num_rational::Ratio::new(count, self.denominator)
+    }
+
     /// The entry of an element by symbol.
     pub fn element(&self, symbol: &str) -> Option<&ElementOxidation> {
         self.elements.iter().find(|e| e.element.symbol() == symbol)
@@ -469,6 +499,7 @@ impl IonTable {
             formula: species.ascii(),
             charge: species.charge(),
             elements: gather(&species.composition, assignments),
+            denominator: species.composition.denominator(),
         })
     }
 }

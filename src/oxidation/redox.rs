@@ -408,7 +408,12 @@ fn changes<T: Exact>(
         let Some(oxidation) = oxidation else {
             continue;
         };
-        let nu = T::from_big(&entry.nu)?;
+        // Counts are atoms per `denominator` formula units (non-integer subscripts).
+        let nu = if oxidation.denominator == 1 {
+            T::from_big(&entry.nu)?
+        } else {
+            T::from_big(&(&entry.nu / BigRational::from_integer(oxidation.denominator.into())))?
+        };
         let reactant = entry.nu.is_negative();
         let nu_abs = nu.magnitude();
         for element in &oxidation.elements {

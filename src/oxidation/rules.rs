@@ -66,6 +66,9 @@ struct Slot {
 pub(crate) enum Fragment<'a> {
     /// A whole species (or adduct): one element alone is elemental or a homonuclear ion.
     Whole,
+    /// A whole species written with non-integer subscripts (`LiNi0.8Mn0.1Co0.1O2`), counts
+    /// scaled to whole atoms: metals left open share their sites, so they take one average.
+    SharedSites,
     /// What is left of a salt once its known ions are out; `species` lists every element of
     /// the whole species, which decides whether H is bound to non-metals.
     Rest { species: &'a [Element] },
@@ -114,7 +117,7 @@ pub(crate) fn assign_fragment(
             .map(|p| p.value.clone())
     };
 
-    if slots.len() == 1 && matches!(fragment, Fragment::Whole) {
+    if slots.len() == 1 && matches!(fragment, Fragment::Whole | Fragment::SharedSites) {
         let slot = &mut slots[0];
         let value = charge / atoms(slot.count);
         if let Some(pinned) = pin_of(slot.element)
@@ -140,7 +143,9 @@ pub(crate) fn assign_fragment(
     let has_fluorine = present("F");
     let has_oxygen = present("O");
     let h_positive = match fragment {
-        Fragment::Whole => symbols.iter().any(|s| H_POSITIVE_PARTNERS.contains(s)),
+        Fragment::Whole | Fragment::SharedSites => {
+            symbols.iter().any(|s| H_POSITIVE_PARTNERS.contains(s))
+        }
         Fragment::Rest { species } => species
             .iter()
             .any(|e| H_POSITIVE_PARTNERS.contains(&e.chemical_element().symbol())),
@@ -192,6 +197,37 @@ pub(crate) fn assign_fragment(
     }
 
     let mut open_slots = open(&slots);
+    let fixed_total = |slots: &[Slot]| -> BigRational {
+        slots
+            .iter()
+            .filter_map(|s| s.fixed.as_ref().map(|(v, _, _)| v * atoms(s.count)))
+            .sum()
+    };
+    if open_slots.len() >= 2
+        && matches!(fragment, Fragment::SharedSites)
+        && open_slots
+            .iter()
+            .all(|&i| usual_negative_state(slots[i].element).is_none())
+    {
+        // Decimal subscripts mean the open metals share sites (Ni, Mn, Co of NMC811 fill one
+        // site together): the formula gives only their common average. An assumption.
+        let open_atoms = open_slots
+            .iter()
+            .try_fold(0u64, |sum, &i| sum.checked_add(slots[i].count))
+            .ok_or(OxidationError::Overflow)?;
+        let average = (charge - fixed_total(&slots)) / atoms(open_atoms);
+        let elements: Vec<Element> = open_slots.iter().map(|&i| slots[i].element).collect();
+        for &i in &open_slots {
+            slots[i].fixed = Some((
+                average.clone(),
+                Status::Assumed,
+                Rule::SiteAverage {
+                    elements: elements.clone(),
+                },
+            ));
+        }
+        open_slots = open(&slots);
+    }
     if open_slots.len() >= 2 {
         // Electronegativity order: the more electronegative take their usual negative states,
         // the least electronegative takes the rest. A choice, so every value is assumed.
@@ -227,12 +263,6 @@ pub(crate) fn assign_fragment(
         open_slots = open(&slots);
     }
 
-    let fixed_total = |slots: &[Slot]| -> BigRational {
-        slots
-            .iter()
-            .filter_map(|s| s.fixed.as_ref().map(|(v, _, _)| v * atoms(s.count)))
-            .sum()
-    };
     match open_slots.as_slice() {
         [] => {
             let total = fixed_total(&slots);

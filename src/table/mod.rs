@@ -2,6 +2,12 @@
 //! half-reactions are parsed and checked, with lookup by id, by couple notation (`Ox/Red`),
 //! by half-reaction, by element and by free text.
 //!
+//! Species in a query may be written in any notation the parser reads (`[Fe(CN)6]3-` finds
+//! the table's `Fe(CN)6^3-`: species compare by formula unit, atoms and charge) or by the name
+//! of a known ion (`ferricyanide/ferrocyanide`, `permanganate`), from the ion table. A query
+//! that finds nothing gets suggestions: the couple written the right way round when it was
+//! reversed, couples whose species differ only in charge or count, ids a typo away.
+//!
 //! Lookup never picks silently: where a query fits several couples (an acid and a base form,
 //! say) it returns [`LookupError::Ambiguous`] with every candidate, and the caller asks the
 //! user to choose.
@@ -12,6 +18,7 @@ pub use record::{CoupleFile, CoupleRecord, Field, FileFormat, ProblemKind, ReadP
 
 use crate::elements::Element;
 use crate::notation::{NotationError, Span, Species, parse_equation, parse_species, render_caret};
+use crate::oxidation::IonTable;
 use crate::reaction::{Reaction, same_species};
 use num_rational::BigRational;
 use num_traits::{Signed, ToPrimitive, Zero};
@@ -226,7 +233,7 @@ impl Couple {
             self.reaction
                 .entries()
                 .iter()
-                .find(|e| same_species(&e.species, s))
+                .find(|e| same_formula_unit(&e.species, s))
                 .map(|e| e.nu.clone())
         };
         matches!(nu_of(ox), Some(nu) if nu.is_negative())
@@ -245,16 +252,32 @@ impl Couple {
     }
 }
 
-/// True when two reactions are the same up to a positive factor (species order and missing
-/// state labels aside).
+/// True when two reactions are the same up to a positive factor (species order, missing
+/// state labels and the way a formula is written aside: see [`same_formula_unit`]).
 pub fn same_reaction(a: &Reaction, b: &Reaction) -> bool {
     let (a, b) = (a.in_lowest_integers(), b.in_lowest_integers());
     a.entries().len() == b.entries().len()
         && a.entries().iter().all(|x| {
             b.entries()
                 .iter()
-                .any(|y| same_species(&x.species, &y.species) && x.nu == y.nu)
+                .any(|y| same_formula_unit(&x.species, &y.species) && x.nu == y.nu)
         })
+}
+
+/// True when two species have the same atoms and charge in the same compartment, with the same
+/// state label when both carry one: `[Fe(CN)6]3-` and `Fe(CN)6^3-`, `HCOOH` and `CH2O2`. For
+/// finding a couple, where the user's way of writing a formula should not matter.
+pub fn same_formula_unit(a: &Species, b: &Species) -> bool {
+    if same_species(a, b) {
+        return true;
+    }
+    same_atoms(a, b)
+        && a.charge() == b.charge()
+        && a.compartment == b.compartment
+        && match (a.state, b.state) {
+            (Some(x), Some(y)) => x == y,
+            _ => true,
+        }
 }
 
 /// A fault in a table file, located in the file.
@@ -332,6 +355,17 @@ pub enum LookupError {
         /// Every couple that fits.
         candidates: Vec<Couple>,
     },
+    /// The query names a couple reduced form first (`Cu/Cu2+`).
+    #[error(
+        "'{query}' names the reduced form first: a couple is written oxidised form / reduced form (did you mean: {}?)",
+        .couples.join(", ")
+    )]
+    Reversed {
+        /// What was asked.
+        query: String,
+        /// Ids (or reactions) of the couples the reversed query names.
+        couples: Vec<String>,
+    },
     /// The query looks like a half-reaction or a couple but does not parse.
     #[error("{0}")]
     Notation(NotationError),
@@ -363,12 +397,114 @@ static BUILTIN: LazyLock<Table> = LazyLock::new(|| {
     table
 });
 
-/// Splits `Ox/Red` into its two species, trying each `/` (no formula contains one).
+/// Ligand names of the IUPAC 2005 recommendations and the older names beside them: both are
+/// in use (hexacyanidoferrate, hexacyanoferrate).
+const LIGAND_SPELLINGS: &[(&str, &str)] = &[
+    ("cyanido", "cyano"),
+    ("chlorido", "chloro"),
+    ("fluorido", "fluoro"),
+    ("hydroxido", "hydroxo"),
+    ("bromido", "bromo"),
+    ("iodido", "iodo"),
+];
+
+/// A name reduced for comparison: lower case, no spaces or hyphens, older ligand spellings.
+fn name_key(name: &str) -> String {
+    let mut key: String = name
+        .chars()
+        .filter(|c| !c.is_whitespace() && *c != '-')
+        .flat_map(char::to_lowercase)
+        .collect();
+    for (new, old) in LIGAND_SPELLINGS {
+        key = key.replace(new, old);
+    }
+    key
+}
+
+/// The species a known ion's name stands for, from the ion table (`data/polyatomic_ions.toml`):
+/// its systematic name or the common name in brackets, in any case, with old or new ligand
+/// spellings: `permanganate` → MnO4-, `ferricyanide` and `hexacyanoferrate(III)` →
+/// Fe(CN)6^3-, `hydronium` → H3O+.
+pub fn species_named(name: &str) -> Option<Species> {
+    let wanted = name_key(name);
+    if wanted.is_empty() {
+        return None;
+    }
+    let ions = IonTable::builtin().ok()?;
+    ions.ions()
+        .iter()
+        .find(|ion| {
+            let full = ion.name.as_str();
+            let (main, common) = match full.split_once(" (") {
+                Some((main, rest)) => (main, rest.strip_suffix(')')),
+                None => (full, None),
+            };
+            [Some(full), Some(main), common]
+                .into_iter()
+                .flatten()
+                .any(|n| name_key(n) == wanted)
+        })
+        .and_then(|ion| parse_species(&ion.formula).ok())
+}
+
+/// The known-ion name nearest to `word` when it is one or two typing errors away (names of
+/// eight letters or more; one error for shorter ones) and `word` itself is no name.
+fn ion_name_near(word: &str) -> Option<String> {
+    let key = name_key(word);
+    if key.is_empty() || species_named(word).is_some() {
+        return None;
+    }
+    let allowed = if key.chars().count() >= 8 { 2 } else { 1 };
+    let ions = IonTable::builtin().ok()?;
+    ions.ions()
+        .iter()
+        .flat_map(|ion| {
+            let full = ion.name.as_str();
+            match full.split_once(" (") {
+                Some((main, rest)) => vec![main, rest.trim_end_matches(')')],
+                None => vec![full],
+            }
+        })
+        .map(|name| (edit_distance(&name_key(name), &key), name))
+        .filter(|(d, _)| *d <= allowed)
+        .min_by_key(|(d, _)| *d)
+        .map(|(_, name)| name.to_owned())
+}
+
+/// The query with a mistyped ion name on either side of `/` (or alone) corrected.
+fn query_with_names_fixed(query: &str) -> Option<String> {
+    let parts: Vec<&str> = query.split('/').map(str::trim).collect();
+    let mut changed = false;
+    let fixed: Vec<String> = parts
+        .iter()
+        .map(|part| {
+            if parse_species(part).is_ok() {
+                return (*part).to_owned();
+            }
+            match ion_name_near(part) {
+                Some(name) => {
+                    changed = true;
+                    name
+                }
+                None => (*part).to_owned(),
+            }
+        })
+        .collect();
+    changed.then(|| fixed.join("/"))
+}
+
+/// A species as written, or else the known ion the text names.
+fn species_or_name(text: &str) -> Result<Species, NotationError> {
+    parse_species(text).or_else(|error| species_named(text).ok_or(error))
+}
+
+/// Splits `Ox/Red` into its two species, trying each `/` (no formula contains one); either
+/// side may be a known ion's name (`ferricyanide/ferrocyanide`).
 pub fn parse_couple_notation(text: &str) -> Option<Result<(Species, Species), NotationError>> {
     let mut first_error = None;
     for (at, _) in text.match_indices('/') {
         let (left, right) = (text[..at].trim(), text[at + 1..].trim());
-        match (parse_species(left), parse_species(right)) {
+        match (species_or_name(left), species_or_name(right)) {
             (Ok(ox), Ok(red)) => return Some(Ok((ox, red))),
             (Err(error), _) | (_, Err(error)) => {
                 first_error.get_or_insert(error);
@@ -461,6 +597,70 @@ impl Table {
             .collect()
     }
 
+    /// Couples in which `species` takes part (compared by formula unit).
+    pub fn with_species(&self, species: &Species) -> Vec<&Couple> {
+        self.couples
+            .iter()
+            .filter(|c| {
+                c.reaction
+                    .entries()
+                    .iter()
+                    .any(|e| same_formula_unit(&e.species, species))
+            })
+            .collect()
+    }
+
+    /// What the user may have meant by a query that found nothing, best first: ids (or
+    /// reactions) of couples whose species differ from a queried `Ox/Red` only in charge or
+    /// count (`MnO4/Mn2+`, `Cu3+/Cu`), ids one or two typing errors away, couples that the
+    /// query's words find. At most six.
+    pub fn suggestions(&self, query: &str) -> Vec<String> {
+        let query = query.trim();
+        let mut out: Vec<String> = Vec::new();
+        let mut push = |label: String| {
+            if !out.contains(&label) && out.len() < 6 {
+                out.push(label);
+            }
+        };
+        if let Some(Ok((ox, red))) = parse_couple_notation(query) {
+            for c in self.by_pair(&red, &ox) {
+                push(c.label());
+            }
+            let mut scored: Vec<(u8, &Couple)> = self
+                .couples
+                .iter()
+                .filter_map(|c| Some((pair_likeness(c, &ox, &red)?, c)))
+                .collect();
+            scored.sort_by_key(|s| std::cmp::Reverse(s.0));
+            for (_, c) in scored {
+                push(c.label());
+            }
+        }
+        for id in self.ids_near(query) {
+            push(id);
+        }
+        if let Some(fixed) = query_with_names_fixed(query) {
+            push(fixed);
+        }
+        for c in self.matching(&query.replace('/', " ")) {
+            if let Some(id) = &c.id {
+                push(id.clone());
+            }
+        }
+        out
+    }
+
+    /// Ids one typing error away from `query` (two for ids of eight characters or more).
+    fn ids_near(&self, query: &str) -> Vec<String> {
+        let key = query.trim().to_lowercase();
+        let allowed = if key.chars().count() >= 8 { 2 } else { 1 };
+        self.couples
+            .iter()
+            .filter_map(|c| c.id.clone())
+            .filter(|id| edit_distance(&id.to_lowercase(), &key) <= allowed)
+            .collect()
+    }
+
     /// Couples with any species holding `element`.
     pub fn with_element(&self, element: Element) -> Vec<&Couple> {
         self.couples
@@ -490,6 +690,14 @@ impl Table {
         if let Some(element) = element_named(query) {
             return self.with_element(element);
         }
+        if let Ok(species) = species_or_name(query)
+            && !species.is_electron()
+        {
+            let found = self.with_species(&species);
+            if !found.is_empty() {
+                return found;
+            }
+        }
         let words = query.to_lowercase();
         self.couples
             .iter()
@@ -518,7 +726,18 @@ impl Table {
         } else {
             match parse_couple_notation(query) {
                 Some(Ok((ox, red))) => self.by_pair(&ox, &red),
-                Some(Err(error)) => return Err(LookupError::Notation(error)),
+                Some(Err(error)) => {
+                    // A mistyped id (`cu2+/cuu`) or ion name (`ferricyanid`) reads as bad
+                    // notation: offer the corrections first.
+                    let near = self.suggestions(query);
+                    if near.is_empty() {
+                        return Err(LookupError::Notation(error));
+                    }
+                    return Err(LookupError::NotFound {
+                        query: query.to_owned(),
+                        hints: near,
+                    });
+                }
                 None => Vec::new(),
             }
         };
@@ -535,21 +754,99 @@ impl Table {
         };
         match chosen.as_slice() {
             [one] => Ok(one),
-            [] => Err(LookupError::NotFound {
-                query: query.to_owned(),
-                hints: self
-                    .matching(&query.replace('/', " "))
-                    .iter()
-                    .filter_map(|c| c.id.clone())
-                    .take(6)
-                    .collect(),
-            }),
+            [] => {
+                if let Some(Ok((ox, red))) = parse_couple_notation(query) {
+                    let reversed = self.by_pair(&red, &ox);
+                    if !reversed.is_empty() {
+                        return Err(LookupError::Reversed {
+                            query: query.to_owned(),
+                            couples: reversed.iter().map(|c| c.label()).collect(),
+                        });
+                    }
+                }
+                Err(LookupError::NotFound {
+                    query: query.to_owned(),
+                    hints: self.suggestions(query),
+                })
+            }
             many => Err(LookupError::Ambiguous {
                 query: query.to_owned(),
                 candidates: many.iter().map(|c| (*c).clone()).collect(),
             }),
         }
     }
+}
+
+/// How close a couple comes to linking `ox` to `red`, per side: 4 where a species of the
+/// couple's side is the queried one, 3 where it has the same atoms with another charge, 1 where
+/// it only has the same elements; `None` below 5 (one side right, the other near).
+fn pair_likeness(couple: &Couple, ox: &Species, red: &Species) -> Option<u8> {
+    let elements = |s: &Species| {
+        let mut e: Vec<Element> = s
+            .composition
+            .counts()
+            .iter()
+            .map(|(e, _)| e.chemical_element())
+            .collect();
+        e.sort();
+        e.dedup();
+        e
+    };
+    let likeness = |wanted: &Species, taken_up: bool| {
+        couple
+            .reaction
+            .entries()
+            .iter()
+            .filter(|e| !e.species.is_electron() && e.nu.is_negative() == taken_up)
+            .map(|e| {
+                if same_formula_unit(&e.species, wanted) {
+                    4
+                } else if same_atoms(&e.species, wanted) {
+                    3
+                } else if elements(&e.species) == elements(wanted) {
+                    1
+                } else {
+                    0
+                }
+            })
+            .max()
+            .unwrap_or(0)
+    };
+    let score = likeness(ox, true) + likeness(red, false);
+    (score >= 5).then_some(score)
+}
+
+fn sorted_counts(s: &Species) -> Vec<(Element, u64)> {
+    let mut counts = s.composition.counts().to_vec();
+    counts.sort();
+    counts
+}
+
+/// The same atoms, whatever the charge.
+fn same_atoms(a: &Species, b: &Species) -> bool {
+    a.is_electron() == b.is_electron()
+        && a.composition.denominator() == b.composition.denominator()
+        && sorted_counts(a) == sorted_counts(b)
+}
+
+/// Levenshtein distance in characters, for ids typed nearly right.
+fn edit_distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut row: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut diagonal = row[0];
+        row[0] = i + 1;
+        for (j, cb) in b.iter().enumerate() {
+            let above = row[j + 1];
+            row[j + 1] = if ca == *cb {
+                diagonal
+            } else {
+                1 + diagonal.min(above).min(row[j])
+            };
+            diagonal = above;
+        }
+    }
+    row[b.len()]
 }
 
 /// True when the text has an arrow, so it is a half-reaction rather than a couple name.

@@ -241,17 +241,27 @@ pub fn composition_key(composition: &Composition) -> u64 {
         sum = sum.wrapping_add(h);
         xor ^= h;
     }
-    (sum, xor, composition.counts().len(), composition.charge()).hash(&mut hasher);
+    (
+        sum,
+        xor,
+        composition.counts().len(),
+        composition.denominator(),
+        composition.charge(),
+    )
+        .hash(&mut hasher);
     hasher.finish()
 }
 
 /// True when two compositions hold the same atoms and charge in any order.
 pub fn same_composition(a: &Composition, b: &Composition) -> bool {
+    // Counts are kept over the least common denominator, so equal compositions have equal
+    // denominators and equal scaled counts.
     a.charge() == b.charge()
+        && a.denominator() == b.denominator()
         && a.counts().len() == b.counts().len()
         && a.counts()
             .iter()
-            .all(|(element, count)| b.count(*element) == *count)
+            .all(|(element, count)| b.scaled_count(*element) == *count)
 }
 
 static BUILTIN: LazyLock<FormationData> = LazyLock::new(|| {
@@ -356,6 +366,7 @@ impl FormationData {
         });
         let is_hydrogen_gas = row.phase == DataPhase::Gas
             && row.species.charge() == 0
+            && row.species.composition.is_integral()
             && row.species.composition.counts().len() == 1
             && row.species.composition.counts()[0].0.symbol() == "H"
             && row.species.composition.counts()[0].1 == 2;

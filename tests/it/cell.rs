@@ -358,3 +358,113 @@ fn acid_to_base_conversion_and_the_ph_path_share_one_kw() {
         );
     }
 }
+
+/// `couplet cell --json` with these arguments.
+fn cell_json(args: &[&str]) -> serde_json::Value {
+    let output = couplet()
+        .arg("cell")
+        .args(args)
+        .arg("--json")
+        .output()
+        .unwrap();
+    assert!(output.status.success(), "{args:?}: {output:?}");
+    serde_json::from_slice(&output.stdout).unwrap()
+}
+
+#[test]
+fn a_concentration_cell_labels_its_compartments() {
+    // The same couple on both sides: E° = 0, and the net reaction moves Cu2+ from the
+    // cathode compartment to the anode compartment (Harris, Quantitative Chemical Analysis,
+    // concentration cells, from memory).
+    let table = Table::builtin();
+    let cu = table.find("Cu2+/Cu", None).unwrap();
+    let cell = combine(cu, cu, CellOptions::default()).unwrap();
+    assert_eq!(cell.net.to_string(), "Cu2+(cathode) -> Cu2+(anode)");
+    assert_eq!(cell.electrons, BigInt::from(2));
+    assert_eq!(cell.e0_volts, 0.0);
+    assert!(cell.net.imbalance().is_balanced());
+    // A couple of pure phases and solvent only would make no cell at all; AgCl/Ag has Cl- and
+    // makes a chloride concentration cell.
+    let agcl = table.find("AgCl/Ag", None).unwrap();
+    let cell = combine(agcl, agcl, CellOptions::default()).unwrap();
+    assert_eq!(cell.net.to_string(), "Cl-(anode) -> Cl-(cathode)");
+}
+
+/// E (V) of the Cu2+/Cu concentration cell with these Cu2+ activities, and its net reaction.
+fn copper_concentration_cell(cathode: f64, anode: f64) -> (f64, String) {
+    let (cathode, anode) = (
+        format!("Cu2+(cathode)={cathode}"),
+        format!("Cu2+(anode)={anode}"),
+    );
+    let value = cell_json(&[
+        "--cathode",
+        "Cu2+/Cu",
+        "--anode",
+        "Cu2+/Cu",
+        "--activity",
+        &cathode,
+        "--activity",
+        &anode,
+    ]);
+    assert_eq!(value["e0_V"], 0.0);
+    (
+        value["e_V"].as_f64().unwrap(),
+        value["net"]["balanced"].as_str().unwrap().to_owned(),
+    )
+}
+
+#[test]
+fn ten_to_one_copper_concentration_cell_is_29_6_millivolts() {
+    // E = (RT/2F)·ln 10 = 29.58 mV at 25 °C for a 10:1 Cu2+ concentration cell (Nernst with
+    // n = 2; Harris, Quantitative Chemical Analysis, concentration cells, from memory; the
+    // figure is common practice).
+    let (e, net) = copper_concentration_cell(1.0, 0.1);
+    assert_eq!(net, "Cu2+(cathode) -> Cu2+(anode)");
+    assert!((e * 1e3 - 29.58).abs() < 0.01, "{e}");
+    // Swapping the activities flips the sign: the dilute side must be the anode.
+    let (e, _) = copper_concentration_cell(0.1, 1.0);
+    assert!((e * 1e3 + 29.58).abs() < 0.01, "{e}");
+}
+
+#[test]
+fn a_hydrogen_concentration_cell_follows_the_ph_difference() {
+    // H2 | H+ (pH 7) || H+ (pH 0) | H2 at 1 bar each: E = 7 × 59.16 mV = 0.4141 V at 25 °C
+    // ((RT/F)·ln 10 per pH unit, DOMAIN.md, common practice).
+    let value = cell_json(&[
+        "--cathode",
+        "H+/H2",
+        "--anode",
+        "H+/H2",
+        "--activity",
+        "H+(cathode)=1",
+        "--activity",
+        "H+(anode)=1e-7",
+        "--pressure",
+        "H2(cathode)=1",
+        "--pressure",
+        "H2(anode)=1",
+    ]);
+    let e = value["e_V"].as_f64().unwrap();
+    assert!((e - 7.0 * 0.05916).abs() < 0.0001, "{e}");
+}
+
+#[test]
+fn a_concentration_cell_asks_for_each_compartment() {
+    let args = "cell --cathode Cu2+/Cu --anode Cu2+/Cu --activity Cu2+=0.1";
+    let output = couplet().args(args.split(' ')).output().unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(
+        stderr.contains("give Cu2+(cathode) and Cu2+(anode)"),
+        "{stderr}"
+    );
+}
+
+#[test]
+fn a_concentration_cell_refuses_one_ph_for_two_compartments() {
+    let args = "cell --cathode H+/H2 --anode H+/H2 --ph 3";
+    let output = couplet().args(args.split(' ')).output().unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(stderr.contains("a pH in each compartment"), "{stderr}");
+}

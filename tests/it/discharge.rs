@@ -171,6 +171,12 @@ fn bad_specifications_are_errors() {
         discharge(&reversed, &spec(&[], None, GammaModel::Ideal)),
         Err(DischargeError::NotGalvanic(_))
     ));
+    // A concentration cell has two solutions; the one-electrolyte model refuses it.
+    let concentration = cell("Cu2+/Cu", "Cu2+/Cu");
+    assert!(matches!(
+        discharge(&concentration, &spec(&[], Some(1.0), GammaModel::Ideal)),
+        Err(DischargeError::TwoCompartments)
+    ));
 }
 
 fn couplet(args: &[&str]) -> assert_cmd::assert::Assert {

@@ -85,8 +85,9 @@ mod properties {
     //! parse(display(x)) == x for generated species and equations, and no input panics.
     use couplet::elements::Element;
     use couplet::notation::{
-        Arrow, Bracket, Component, Equation, Formula, Species, SpeciesKind, State, Style, Term,
-        Unit, equation_to_string, parse_equation, parse_input, parse_species, species_to_string,
+        Arrow, Bracket, Compartment, Component, Equation, Formula, Species, SpeciesKind, State,
+        Style, Term, Unit, equation_to_string, parse_equation, parse_input, parse_species,
+        species_to_string,
     };
     use num_rational::Ratio;
     use proptest::prelude::*;
@@ -96,8 +97,18 @@ mod properties {
         proptest::sample::select(all)
     }
 
+    /// Whole subscripts mostly, exact decimals (non-integer stoichiometry, up to three places,
+    /// below and above 2, which are written differently) and fractions (`1/3`).
+    fn subscript(whole: std::ops::Range<u64>) -> impl Strategy<Value = Ratio<u64>> {
+        prop_oneof![
+            4 => whole.prop_map(Ratio::from_integer),
+            1 => (1u64..5000).prop_map(|n| Ratio::new(n, 1000)),
+            1 => (1u64..50, 1u64..12).prop_map(|(n, d)| Ratio::new(n, d)),
+        ]
+    }
+
     fn unit() -> impl Strategy<Value = Unit> {
-        let atom = (element(), 1u32..30).prop_map(|(element, count)| Unit::Atom {
+        let atom = (element(), subscript(1..30)).prop_map(|(element, count)| Unit::Atom {
             element,
             count,
             span: Default::default(),
@@ -106,7 +117,7 @@ mod properties {
             (
                 prop_oneof![Just(Bracket::Round), Just(Bracket::Square)],
                 proptest::collection::vec(inner, 1..3),
-                1u32..6,
+                subscript(1..6),
             )
                 .prop_map(|(bracket, body, count)| Unit::Group {
                     bracket,
@@ -137,6 +148,14 @@ mod properties {
             })
     }
 
+    fn compartment() -> impl Strategy<Value = Option<Compartment>> {
+        prop_oneof![
+            8 => Just(None),
+            1 => Just(Some(Compartment::Cathode)),
+            1 => Just(Some(Compartment::Anode)),
+        ]
+    }
+
     fn state() -> impl Strategy<Value = Option<State>> {
         prop_oneof![
             Just(None),
@@ -157,10 +176,11 @@ mod properties {
                 e.state = state;
                 e
             }),
-            9 => (formula(), state()).prop_filter_map("charge beyond the protons", |(f, state)| {
+            9 => (formula(), state(), compartment()).prop_filter_map("charge beyond the protons", |(f, state, compartment)| {
                 let shell = Species {
                     kind: SpeciesKind::Formula(f),
                     state,
+                    compartment,
                     composition: Default::default(),
                     span: Default::default(),
                 };
@@ -198,10 +218,11 @@ mod properties {
         #![proptest_config(ProptestConfig::with_cases(2000))]
 
         #[test]
-        fn generated_formulas_read_back_as_generated(f in formula(), state in state()) {
+        fn generated_formulas_read_back_as_generated(f in formula(), state in state(), compartment in compartment()) {
             let shell = Species {
                 kind: SpeciesKind::Formula(f),
                 state,
+                compartment,
                 composition: Default::default(),
                 span: Default::default(),
             };
@@ -335,5 +356,23 @@ mod command {
             .unwrap();
         let text = String::from_utf8(output.stdout).unwrap();
         assert!(text.contains("as written: not balanced"), "{text}");
+    }
+}
+
+#[test]
+fn compartment_labels_follow_the_state_label() {
+    let s = parse_species("Cu2+(aq)(anode)").unwrap();
+    assert_eq!(s.ascii(), "Cu2+(aq)(anode)");
+    assert_eq!(
+        parse_species("Cu2+(cathode)").unwrap().ascii(),
+        "Cu2+(cathode)"
+    );
+    assert_ne!(
+        parse_species("Cu2+(cathode)").unwrap(),
+        parse_species("Cu2+(anode)").unwrap()
+    );
+    for bad in ["e-(anode)", "Cu2+(aq)(s)", "Cu2+(left)"] {
+        let err = parse_species(bad).unwrap_err();
+        assert_eq!(err.kind, NotationErrorKind::Syntax, "{bad}");
     }
 }

@@ -207,15 +207,16 @@ fn organic_formulas_give_the_average_carbon() {
 
 #[test]
 fn open_choices_are_marked_assumed_and_pins_decide() {
-    // Pyrite is Fe(II) with S2^2− (from memory, [GE] ch. 25); the formula alone cannot say so.
-    let pyrite = parse_species("FeS2").unwrap();
-    let guess = oxidation_numbers(&pyrite).unwrap();
+    // Molybdenite is Mo(IV) with S2− (from memory, [GE]); the formula alone cannot say so
+    // (WS2 alike), and a pin overrides the choice.
+    let sulfide = parse_species("MoS2").unwrap();
+    let guess = oxidation_numbers(&sulfide).unwrap();
     assert!(guess.has_assumptions());
-    assert_eq!(guess.element("Fe").unwrap().status, Status::Assumed);
+    assert_eq!(guess.element("Mo").unwrap().status, Status::Assumed);
     let pinned = oxidation_numbers_with(
-        &pyrite,
+        &sulfide,
         &Options {
-            pins: vec!["Fe=+2".parse().unwrap()],
+            pins: vec!["Mo=+2".parse().unwrap()],
         },
     )
     .unwrap();
@@ -231,6 +232,44 @@ fn open_choices_are_marked_assumed_and_pins_decide() {
         oxidation_numbers(&chalcopyrite),
         Err(OxidationError::Underdetermined { .. })
     ));
+}
+
+/// The oxidation numbers of `formula`, each as (element, value, status), for assumed readings.
+fn assumed(formula: &str) -> Vec<(String, String, Status)> {
+    let species = parse_species(formula).unwrap();
+    oxidation_numbers(&species)
+        .unwrap_or_else(|e| panic!("{formula}: {e}"))
+        .elements
+        .iter()
+        .map(|e| {
+            (
+                e.element.symbol().to_owned(),
+                signed_text(&e.oxidation_number),
+                e.status,
+            )
+        })
+        .collect()
+}
+
+#[test]
+fn pyrite_type_disulfides_are_the_usual_assumption() {
+    // Pyrite is iron(II) disulfide, Fe2+ and S2^2− with each S −1 ([GE], sulfur chapter;
+    // any mineralogy text). The pyrite-type CoS2 (cattierite) and NiS2 (vaesite) likewise
+    // (from memory, [GE]). The formula alone cannot tell, so the values stay assumptions.
+    let s = Status::Assumed;
+    let st = |e: &str, v: &str| (e.to_owned(), v.to_owned(), s);
+    assert_eq!(assumed("FeS2"), vec![st("Fe", "+2"), st("S", "-1")]);
+    assert_eq!(assumed("CoS2"), vec![st("Co", "+2"), st("S", "-1")]);
+    assert_eq!(assumed("NiS2"), vec![st("Ni", "+2"), st("S", "-1")]);
+    // Molybdenite MoS2 is Mo(IV) sulfide ([GE], molybdenum chapter, from memory): not a
+    // disulfide, so the electronegativity choice stands.
+    assert_eq!(assumed("MoS2"), vec![st("Mo", "+4"), st("S", "-2")]);
+    // Troilite FeS is iron(II) sulfide (from memory, [GE]).
+    assert_eq!(assumed("FeS"), vec![st("Fe", "+2"), st("S", "-2")]);
+    // Roasting pyrite without a pin: Fe +2 → +3 and S −1 → +4 for each of 4 FeS2, 44
+    // electrons in 4 FeS2 + 11 O2 -> 2 Fe2O3 + 8 SO2 (common practice).
+    let a = analyse(&reaction("4 FeS2 + 11 O2 -> 2 Fe2O3 + 8 SO2")).unwrap();
+    assert_eq!(a.n, rational("44"));
 }
 
 #[test]

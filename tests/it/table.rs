@@ -228,3 +228,64 @@ fn a_bad_user_entry_is_located_in_the_file() {
         .unwrap_err();
     assert_eq!((error.line, error.column), (2, 28));
 }
+
+#[test]
+fn common_names_and_bracketed_complexes_find_couples() {
+    // Ferricyanide is hexacyanidoferrate(III), ferrocyanide hexacyanidoferrate(II) (IUPAC Red
+    // Book 2005 names; the common names are common practice). E° 0.356 V as the built-in
+    // table has it (Harris App. H).
+    for query in [
+        "ferricyanide/ferrocyanide",
+        "Ferricyanide / Ferrocyanide",
+        "hexacyanoferrate(III)/hexacyanoferrate(II)",
+        "[Fe(CN)6]3-/[Fe(CN)6]4-",
+        "[Fe(CN)6]3- + e- -> [Fe(CN)6]4-",
+    ] {
+        check(query, "fe(cn)6^3-/fe(cn)6^4-", 0.356);
+    }
+    check("permanganate/Mn2+", "mno4-/mn2+", 1.507);
+    check("dichromate/Cr3+", "cr2o7^2-/cr3+", 1.36);
+    // A name alone lists every couple of that ion.
+    let table = Table::builtin();
+    let permanganate = table.matching("permanganate");
+    assert!(permanganate.len() >= 3);
+    assert!(
+        permanganate
+            .iter()
+            .all(|c| c.reaction.to_string().contains("MnO4-"))
+    );
+}
+
+#[test]
+fn reversed_and_near_queries_get_suggestions() {
+    let table = Table::builtin();
+    // A couple is written oxidised form / reduced form (IUPAC convention for the couple
+    // notation, DOMAIN.md): Cu/Cu2+ is Cu2+/Cu reversed.
+    match table.find("Cu/Cu2+", None) {
+        Err(LookupError::Reversed { couples, .. }) => assert_eq!(couples, ["cu2+/cu"]),
+        other => panic!("expected a reversed couple, got {other:?}"),
+    }
+    // A missing charge, a wrong charge and a mistyped id: the intended couple comes first.
+    for (query, first) in [
+        ("MnO4/Mn2+", "mno4-/mn2+"),
+        ("Cu3+/Cu", "cu2+/cu"),
+        ("cu2+/cuu", "cu2+/cu"),
+        ("zn2+/zm", "zn2+/zn"),
+    ] {
+        match table.find(query, None) {
+            Err(LookupError::NotFound { hints, .. }) => {
+                assert_eq!(hints.first().map(String::as_str), Some(first), "{query}")
+            }
+            other => panic!("{query}: expected suggestions, got {other:?}"),
+        }
+    }
+    assert!(table.suggestions("Cu/Cu2+").contains(&"cu2+/cu".to_owned()));
+    // A mistyped ion name is corrected.
+    match table.find("ferricyanid/ferrocyanide", None) {
+        Err(LookupError::NotFound { hints, .. }) => {
+            assert_eq!(hints, ["ferricyanide/ferrocyanide"])
+        }
+        other => panic!("expected a corrected name, got {other:?}"),
+    }
+    assert_eq!(table.suggestions("permanganat"), ["permanganate"]);
+}
