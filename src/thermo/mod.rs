@@ -19,7 +19,7 @@ pub use couple::{
 
 pub use data::{
     BUILTIN_FORMATION_CSV, DataError, DataOrigin, DataPhase, FormationData, FormationRow,
-    MissingData, Resolved, composition_key,
+    MissingData, Resolved, composition_key, same_composition,
 };
 
 use crate::constants::{FARADAY_COULOMBS_PER_MOL, STANDARD_TEMPERATURE_KELVIN};
