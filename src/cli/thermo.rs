@@ -18,7 +18,8 @@ pub struct ThermoArgs {
     /// A half-reaction (PbO2 + 4 H+ + SO4^2- + 2 e- -> PbSO4 + 2 H2O), a couple Ox/Red
     /// (SnO2/Sn), or a whole reaction; balanced first when it does not balance as written
     reaction: String,
-    /// Balance in this solution when couplet balances: acid (default), base or neutral
+    /// Balance in this solution when couplet balances: acid or base add H2O and H+ or OH-
+    /// (half-reactions and Ox/Red are balanced in acid unless told), neutral adds nothing
     #[arg(long, value_parser = medium_arg)]
     medium: Option<Medium>,
     /// Temperature for ΔrG°(T) and E°(T), with its unit: 25C, 298.15K

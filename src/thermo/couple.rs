@@ -137,8 +137,8 @@ pub struct TextReaction<'a> {
 
 /// The figures of any reaction typed as text: a half-reaction or `Ox/Red` (see
 /// [`couple_from_data`]), or a whole reaction, taken as written when it balances and
-/// otherwise balanced in the medium (acid when none is given; `neutral` adds nothing). n of a
-/// whole reaction comes from oxidation numbers.
+/// otherwise balanced with the species written, plus H2O and H+ (acid) or OH- (base) only
+/// when a medium is given. n of a whole reaction comes from oxidation numbers.
 pub fn reaction_from_text<'a>(
     query: &str,
     medium: Option<Medium>,
