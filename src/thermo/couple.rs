@@ -160,14 +160,14 @@ pub fn reaction_from_text<'a>(
         (written, None)
     } else {
         let options = BalanceOptions {
-            medium: solvent(medium),
+            medium: medium.map_or(Solvent::None, |m| solvent(Some(m))),
             electrons: ElectronRule::Never,
             ..BalanceOptions::default()
         };
         let balanced = balance(&equation, &options).map_err(FromDataError::Balance)?;
         (
             balanced.reaction().clone(),
-            Some(medium.unwrap_or(Medium::Acid)),
+            Some(medium.unwrap_or(Medium::Neutral)),
         )
     };
     let electrons = crate::oxidation::oxidation_number_electrons(&reaction)
