@@ -40,7 +40,15 @@ pub fn run(args: &ThermoArgs, out: &mut dyn Write) -> io::Result<u8> {
     };
     let found = match reaction_from_text(&args.reaction, args.medium, data) {
         Ok(found) => found,
-        Err(error) => return failure(&error).report(out, args.json),
+        Err(error) => {
+            let mut failure = failure(&error);
+            if matches!(error, FromDataError::Balance(_)) && args.medium.is_none() {
+                failure = failure.with_detail(
+                    "  hint: give --medium acid or --medium base to let couplet add H2O and H+ or OH-",
+                );
+            }
+            return failure.report(out, args.json);
+        }
     };
     if args.json {
         print_json(out, &as_json(&found, args.temperature, data))?;
