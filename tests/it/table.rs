@@ -347,3 +347,68 @@ fn verified_marks_and_confirmations_load_from_toml_and_csv() {
         "maybe"
     );
 }
+
+/// Runs the binary; returns stdout and the exit status.
+fn couplet_cli(args: &[&str]) -> (String, i32) {
+    let output = assert_cmd::Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+        .args(args)
+        .output()
+        .unwrap();
+    (
+        String::from_utf8(output.stdout).unwrap(),
+        output.status.code().expect("exited"),
+    )
+}
+
+#[test]
+fn table_and_cell_show_which_values_are_unverified() {
+    // no3-/no2 is recalled and not confirmed (data/potentials.toml); sr2+/sr is confirmed by
+    // the formation data; zn2+/zn was read in Harris and carries neither mark.
+    let (stdout, status) = couplet_cli(&["table", "--json", "--element", "N"]);
+    assert_eq!(status, 0);
+    let rows: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    let row = |id: &str| {
+        rows.as_array()
+            .unwrap()
+            .iter()
+            .find(|r| r["id"] == id)
+            .unwrap_or_else(|| panic!("{id}"))
+            .clone()
+    };
+    assert_eq!(row("no3-/no2")["verified"], false);
+    assert_eq!(row("no3-/no2")["confirmed_by"], serde_json::Value::Null);
+    let (stdout, _) = couplet_cli(&["table", "--json", "sr2+/sr"]);
+    let rows: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    assert_eq!(rows[0]["verified"], true);
+    assert!(
+        rows[0]["confirmed_by"]
+            .as_str()
+            .unwrap()
+            .contains("formation data")
+    );
+
+    let (stdout, _) = couplet_cli(&["table", "no3-/no2"]);
+    let line = stdout.lines().find(|l| l.starts_with("no3-/no2 ")).unwrap();
+    assert!(line.contains("unverified"), "{line}");
+    assert!(stdout.contains("UNVERIFIED"), "{stdout}");
+    let (stdout, _) = couplet_cli(&["table", "sr2+/sr"]);
+    assert!(stdout.contains("confirmed by: CRC Handbook"), "{stdout}");
+
+    let (stdout, status) = couplet_cli(&[
+        "cell",
+        "--cathode",
+        "no3-/no2",
+        "--anode",
+        "zn2+/zn",
+        "--json",
+    ]);
+    assert_eq!(status, 0);
+    let cell: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    assert_eq!(cell["cathode"]["verified"], false);
+    assert_eq!(cell["anode"]["verified"], true);
+    let (stdout, _) = couplet_cli(&["cell", "--cathode", "no3-/no2", "--anode", "zn2+/zn"]);
+    let cathode = stdout.lines().find(|l| l.starts_with("cathode")).unwrap();
+    let anode = stdout.lines().find(|l| l.starts_with("anode")).unwrap();
+    assert!(cathode.contains("UNVERIFIED"), "{cathode}");
+    assert!(!anode.contains("UNVERIFIED"), "{anode}");
+}
