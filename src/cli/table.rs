@@ -145,13 +145,17 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
         dedt_basis(&scale)
     );
     let unverified = found.iter().filter(|c| !c.verified).count();
-    if found
-        .iter()
-        .any(|c| !c.verified || c.confirmed_by.is_some())
-    {
+    if found.iter().any(|c| c.confirmed_by.is_some()) {
         let _ = writeln!(
             text,
-            "value: \"confirmed\" = a second, read source gives it (confirmed_by); \"unverified\" = no read source confirms it ({unverified} here)"
+            "value \"confirmed\": a second source, read, gives the same value (confirmed_by)"
+        );
+    }
+    if unverified > 0 {
+        let _ = writeln!(
+            text,
+            "value \"unverified\": no read source confirms it ({unverified} of {}); do not rely on it (couplet check --refuse-unverified refuses such entries)",
+            found.len()
         );
     }
     out.write_all(text.as_bytes())?;
