@@ -26,6 +26,7 @@ pub mod formation;
 pub mod load;
 pub mod output;
 mod rules;
+pub mod verification;
 
 pub use load::{LoadError, MAX_FILE_BYTES, load_file};
 pub use rules::{Rule, Severity};
@@ -56,6 +57,8 @@ pub struct CheckOptions {
     /// Rule [`Rule::E0VsFormationData`]: the formation data and the threshold; `None` turns
     /// the rule off.
     pub formation: Option<formation::FormationCheck>,
+    /// Rule [`Rule::UnverifiedValue`]: refuse couples marked `verified = false`.
+    pub refuse_unverified: bool,
 }
 
 impl Default for CheckOptions {
@@ -64,6 +67,7 @@ impl Default for CheckOptions {
             tolerance_volts: DEFAULT_TOLERANCE_VOLTS,
             oxidation_number_change: Some(crate::oxidation::oxidation_number_electrons),
             formation: Some(formation::FormationCheck::default()),
+            refuse_unverified: false,
         }
     }
 }
@@ -240,6 +244,9 @@ pub fn check(files: Vec<SourceFile>, options: &CheckOptions) -> Report {
         findings.extend(formation::check_entries(&judged, formation));
     }
     findings.extend(consistency::check_table(&files, &judged, options));
+    if options.refuse_unverified {
+        findings.extend(verification::check_files(&files));
+    }
     findings.sort_by_key(|f| (f.file, f.span.start, f.rule.code()));
     Report { files, findings }
 }

@@ -70,11 +70,13 @@ pub enum Rule {
     MissingSource,
     /// `e0` differs from the E° that formation data give beyond the threshold.
     E0VsFormationData,
+    /// A couple marked `verified = false`, when the checker is told to refuse them.
+    UnverifiedValue,
 }
 
 impl Rule {
     /// Every rule, in code order.
-    pub const ALL: [Rule; 23] = [
+    pub const ALL: [Rule; 24] = [
         Rule::FileSyntax,
         Rule::WrongType,
         Rule::MissingReaction,
@@ -98,6 +100,7 @@ impl Rule {
         Rule::AdditivityViolated,
         Rule::MissingSource,
         Rule::E0VsFormationData,
+        Rule::UnverifiedValue,
     ];
 
     /// The stable code, e.g. `CPL201`.
@@ -255,6 +258,12 @@ impl Rule {
                 "e0-vs-formation-data",
                 Warning,
                 "e0 agrees with the E° computed from formation data (−ΔrG°/nF) within the threshold, where every species has data",
+            ),
+            Rule::UnverifiedValue => (
+                "CPL307",
+                "unverified-value",
+                Error,
+                "with --refuse-unverified: no couple is marked verified = false (a value no read source confirms)",
             ),
         }
     }

@@ -47,6 +47,8 @@ fn half_json(couple: &Couple, scale: &Scale) -> Value {
         "n": exact_json(&couple.electrons()),
         "source": couple.source,
         "e0_source": e0_source(couple),
+        "confirmed_by": couple.confirmed_by,
+        "verified": couple.verified,
     });
     // Beside a tabulated value, what formation data give for the same half-reaction.
     if couple.origin != Origin::FormationData
@@ -231,22 +233,20 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
         return Ok(EXIT_OK);
     }
     let on = |c: &Couple| format!("{:+.4} V", scale.couple_potential(&c.reaction, c.e0_volts));
-    writeln!(
-        out,
-        "cathode  {:<44} E° {}  ({})",
-        cell.cathode
-            .reaction
-            .to_text(Style::Unicode, Arrow::Forward),
-        on(&cell.cathode),
-        cell.cathode.label()
-    )?;
-    writeln!(
-        out,
-        "anode    {:<44} E° {}  ({})",
-        cell.anode.reaction.to_text(Style::Unicode, Arrow::Forward),
-        on(&cell.anode),
-        cell.anode.label()
-    )?;
+    for (word, couple) in [("cathode", &cell.cathode), ("anode", &cell.anode)] {
+        writeln!(
+            out,
+            "{word:<8} {:<44} E° {}  ({}{})",
+            couple.reaction.to_text(Style::Unicode, Arrow::Forward),
+            on(couple),
+            couple.label(),
+            if couple.verified {
+                ""
+            } else {
+                "; UNVERIFIED value: no read source confirms it"
+            }
+        )?;
+    }
     writeln!(
         out,
         "net      {}",

@@ -27,6 +27,9 @@ pub struct CheckArgs {
     /// Count warnings as errors for the exit status
     #[arg(long)]
     deny_warnings: bool,
+    /// Rule CPL307: refuse couples marked verified = false (values no read source confirms)
+    #[arg(long)]
+    refuse_unverified: bool,
     /// Rewrite reactions the balancer balances unambiguously (nothing else in the file changes)
     #[arg(long)]
     fix: bool,
@@ -79,6 +82,7 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
             }),
             None => Some(Default::default()),
         },
+        refuse_unverified: args.refuse_unverified,
         ..CheckOptions::default()
     };
     let mut report = check(sources, &options);

@@ -19,7 +19,8 @@ pub struct TableCommandArgs {
     element: Option<String>,
     #[command(flatten)]
     table: TableArgs,
-    /// Print JSON: [{"id", "reaction", "e0_V", "dedt_mV_per_K", "source"}] (e0_V always vs SHE)
+    /// Print JSON: [{"id", "reaction", "e0_V", "dedt_mV_per_K", "source", "confirmed_by",
+    /// "verified"}] (e0_V always vs SHE)
     #[arg(long)]
     json: bool,
 }
@@ -53,6 +54,8 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
                     "e0_V": c.e0_volts,
                     "dedt_mV_per_K": c.dedt_millivolts_per_kelvin,
                     "source": c.source,
+                    "confirmed_by": c.confirmed_by,
+                    "verified": c.verified,
                 })
             })
             .collect();
@@ -89,7 +92,7 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
     let mut text = String::new();
     let _ = writeln!(
         text,
-        "{:<26} {:>9}  {:>8}  {:<7}  reaction",
+        "{:<26} {:>9}  {:>8}  {:<7}  {:<10}  reaction",
         "id",
         // On RHE the column is each couple's potential at the scale's pH, not a standard one.
         if matches!(scale, Scale::Rhe { .. }) {
@@ -98,12 +101,13 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
             "E°/V"
         },
         "dE/dT",
-        "medium"
+        "medium",
+        "value"
     );
     for c in &found {
         let _ = writeln!(
             text,
-            "{:<26} {:>9.4}  {:>8}  {:<7}  {}",
+            "{:<26} {:>9.4}  {:>8}  {:<7}  {:<10}  {}",
             c.id.as_deref().unwrap_or("(no id)"),
             scale.couple_potential(&c.reaction, c.e0_volts),
             c.dedt_millivolts_per_kelvin
@@ -112,6 +116,7 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
                     scale.dedt_millivolts_per_kelvin(d).unwrap_or(d)
                 )),
             c.medium.name(),
+            value_status(c),
             c.reaction
         );
     }
@@ -122,6 +127,15 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
             let _ = writeln!(text, "  source: {source}");
             if let Some(note) = &c.note {
                 let _ = writeln!(text, "  note:   {note}");
+            }
+            if let Some(confirmation) = &c.confirmed_by {
+                let _ = writeln!(text, "  confirmed by: {confirmation}");
+            }
+            if !c.verified {
+                let _ = writeln!(
+                    text,
+                    "  UNVERIFIED: no read source confirms this value; do not rely on it"
+                );
             }
             let _ = writeln!(text, "  from:   {}", c.origin);
         }
@@ -139,8 +153,32 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
         super::common::rhe_meaning(&scale),
         dedt_basis(&scale)
     );
+    let unverified = found.iter().filter(|c| !c.verified).count();
+    if found.iter().any(|c| c.confirmed_by.is_some()) {
+        let _ = writeln!(
+            text,
+            "value \"confirmed\": a second source, read, gives the same value (confirmed_by)"
+        );
+    }
+    if unverified > 0 {
+        let _ = writeln!(
+            text,
+            "value \"unverified\": no read source confirms it ({unverified} of {}); do not rely on it (couplet check --refuse-unverified refuses such entries)",
+            found.len()
+        );
+    }
     out.write_all(text.as_bytes())?;
     Ok(EXIT_OK)
+}
+
+/// The `value` column: `unverified` for a couple marked `verified = false`, `confirmed` for
+/// one a second source confirms, blank otherwise.
+fn value_status(couple: &Couple) -> &'static str {
+    match (couple.verified, &couple.confirmed_by) {
+        (false, _) => "unverified",
+        (true, Some(_)) => "confirmed",
+        (true, None) => "",
+    }
 }
 
 /// Which scale the dE/dT column is on.

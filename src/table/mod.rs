@@ -150,6 +150,10 @@ pub struct Couple {
     pub source: Option<String>,
     /// Remarks.
     pub note: Option<String>,
+    /// A second source, read, that gives the same value (within 10 mV), and what it gives.
+    pub confirmed_by: Option<String>,
+    /// False when the table marks the value `verified = false`: no read source confirms it.
+    pub verified: bool,
     /// Which table it came from.
     pub origin: Origin,
 }
@@ -208,6 +212,8 @@ impl Couple {
             medium,
             source: None,
             note: None,
+            confirmed_by: None,
+            verified: true,
             origin: Origin::Given,
         })
     }
@@ -923,6 +929,8 @@ fn couple_from_record(
     couple.id = record.id.as_ref().map(|f| f.value.trim().to_owned());
     couple.source = record.source.as_ref().map(|f| f.value.clone());
     couple.note = record.note.as_ref().map(|f| f.value.clone());
+    couple.confirmed_by = record.confirmed_by.as_ref().map(|f| f.value.clone());
+    couple.verified = record.verified.as_ref().is_none_or(|f| f.value);
     couple.origin = origin.clone();
     Ok(couple)
 }

@@ -12,7 +12,17 @@ use toml::Spanned;
 use toml::de::{DeTable, DeValue};
 
 /// The keys a couple may have, in the documented order.
-pub const KNOWN_KEYS: [&str; 7] = ["id", "reaction", "e0", "dedt", "medium", "source", "note"];
+pub const KNOWN_KEYS: [&str; 9] = [
+    "id",
+    "reaction",
+    "e0",
+    "dedt",
+    "medium",
+    "source",
+    "note",
+    "confirmed_by",
+    "verified",
+];
 
 /// Keys every couple must have.
 pub const REQUIRED_KEYS: [&str; 2] = ["reaction", "e0"];
@@ -102,6 +112,10 @@ pub struct CoupleRecord {
     pub source: Option<Field<String>>,
     /// `note`: free text.
     pub note: Option<Field<String>>,
+    /// `confirmed_by`: a second source, read, that gives the same value, and what it gives.
+    pub confirmed_by: Option<Field<String>>,
+    /// `verified`: `false` marks a value no read source confirms.
+    pub verified: Option<Field<bool>>,
     /// Keys other than the known ones, with the span of the key.
     pub unknown_keys: Vec<Field<String>>,
 }
@@ -452,25 +466,39 @@ fn toml_record(
                 }
                 None => problems.push(wrong_type(name, "a number", value)),
             },
-            "id" | "reaction" | "medium" | "source" | "note" => match value.get_ref().as_str() {
-                Some(string) => {
-                    let mapping = content_mapping(text, value_span, string);
-                    let field = Some(Field {
-                        value: string.to_owned(),
+            "verified" => match value.get_ref() {
+                DeValue::Boolean(flag) => {
+                    record.verified = Some(Field {
+                        value: *flag,
                         span: value_span,
-                        content_start: mapping.as_ref().map(|m| m.0),
-                        escapes: mapping.map(|m| m.1).unwrap_or_default(),
+                        content_start: None,
+                        escapes: Vec::new(),
                     });
-                    match name {
-                        "id" => record.id = field,
-                        "reaction" => record.reaction = field,
-                        "medium" => record.medium = field,
-                        "source" => record.source = field,
-                        _ => record.note = field,
-                    }
                 }
-                None => problems.push(wrong_type(name, "a string", value)),
+                _ => problems.push(wrong_type(name, "true or false", value)),
             },
+            "id" | "reaction" | "medium" | "source" | "note" | "confirmed_by" => {
+                match value.get_ref().as_str() {
+                    Some(string) => {
+                        let mapping = content_mapping(text, value_span, string);
+                        let field = Some(Field {
+                            value: string.to_owned(),
+                            span: value_span,
+                            content_start: mapping.as_ref().map(|m| m.0),
+                            escapes: mapping.map(|m| m.1).unwrap_or_default(),
+                        });
+                        match name {
+                            "id" => record.id = field,
+                            "reaction" => record.reaction = field,
+                            "medium" => record.medium = field,
+                            "source" => record.source = field,
+                            "confirmed_by" => record.confirmed_by = field,
+                            _ => record.note = field,
+                        }
+                    }
+                    None => problems.push(wrong_type(name, "a string", value)),
+                }
+            }
             _ => record.unknown_keys.push(string_field(text, key)),
         }
     }
@@ -651,6 +679,24 @@ fn read_csv(text: &str) -> CoupleFile {
                 "medium" => record.medium = string(),
                 "source" => record.source = string(),
                 "note" => record.note = string(),
+                "confirmed_by" => record.confirmed_by = string(),
+                "verified" => match cell.trim() {
+                    "true" | "false" => {
+                        record.verified = Some(Field {
+                            value: cell.trim() == "true",
+                            span,
+                            content_start: None,
+                            escapes: Vec::new(),
+                        })
+                    }
+                    other => file.problems.push(ReadProblem {
+                        kind: ProblemKind::WrongType,
+                        key: Some(name.clone()),
+                        message: format!("'{name}' must be true or false, found '{other}'"),
+                        span,
+                        record: Some(index),
+                    }),
+                },
                 "e0" | "dedt" => match cell.trim().parse::<f64>() {
                     Ok(number) => {
                         let field = Some(Field {

@@ -73,7 +73,11 @@ fn every_rule_fixture_reports_its_rule_and_matches_its_snapshot() {
     for path in &fixtures {
         let name = path.file_stem().unwrap().to_str().unwrap();
         let path_text = path.to_str().unwrap();
-        let (json, status) = run_json(&[path_text]);
+        let options = fixture_options(path);
+        let flags = options.iter().map(String::as_str);
+        let plain: Vec<&str> = flags.clone().chain([path_text]).collect();
+        let denying: Vec<&str> = flags.chain(["--deny-warnings", path_text]).collect();
+        let (json, status) = run_json(&plain);
         assert!(
             codes(&json).iter().any(|c| c == name),
             "{name}: the fixture does not report its own rule: {json}"
@@ -83,15 +87,69 @@ fn every_rule_fixture_reports_its_rule_and_matches_its_snapshot() {
             couplet::check::Severity::Error => 1,
             couplet::check::Severity::Warning => {
                 // Warning fixtures hold no errors: exit 0, and 1 with --deny-warnings.
-                let (_, _, denied) = run(&["--deny-warnings", path_text]);
+                let (_, _, denied) = run(&denying);
                 assert_eq!(denied, 1, "{name} with --deny-warnings");
                 0
             }
         };
         assert_eq!(status, expected_status, "{name}: {json}");
-        let (human, _, _) = run(&[path_text]);
+        let (human, _, _) = run(&plain);
         insta::assert_snapshot!(format!("check_{name}"), human);
     }
+}
+
+/// The options a fixture asks to be checked with: its first line `# check with: --flag ...`
+/// (a rule that runs only when asked, such as CPL307), or none.
+fn fixture_options(path: &Path) -> Vec<String> {
+    let text = std::fs::read(path).unwrap_or_default();
+    let first = String::from_utf8_lossy(&text)
+        .lines()
+        .next()
+        .unwrap_or("")
+        .to_owned();
+    first
+        .strip_prefix("# check with:")
+        .map(|flags| flags.split_whitespace().map(str::to_owned).collect())
+        .unwrap_or_default()
+}
+
+#[test]
+fn unverified_values_pass_unless_refused() {
+    // CPL307 runs only when asked: without the flag the fixture checks clean.
+    let path = format!("{FIXTURES}/CPL307.toml");
+    let (json, status) = run_json(&[&path]);
+    assert_eq!(status, 0, "{json}");
+    assert_eq!(json["diagnostics"], Value::Array(vec![]));
+    let (json, status) = run_json(&["--refuse-unverified", &path]);
+    assert_eq!(status, 1);
+    assert_eq!(
+        codes(&json),
+        ["CPL307"],
+        "only the entry marked verified = false"
+    );
+    // A mark that is not true or false is a type error (CPL102), with or without the flag.
+    let dir = tempfile::tempdir().unwrap();
+    let bad = dir.path().join("bad.toml");
+    std::fs::write(
+        &bad,
+        "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.8\nsource = \"invented\"\nverified = \"no\"\n",
+    )
+    .unwrap();
+    let (json, status) = run_json(&[bad.to_str().unwrap()]);
+    assert_eq!(status, 1);
+    assert_eq!(codes(&json), ["CPL102"], "{json}");
+    // The built-in table holds unverified values (recalled, not yet confirmed), so refusing
+    // them fails it: this is what a team's CI gets when it asks for confirmed values only.
+    let (json, status) = run_json(&["--refuse-unverified", "data/"]);
+    assert_eq!(status, 1);
+    let refused = codes(&json).iter().filter(|c| *c == "CPL307").count();
+    let marked = couplet::table::Table::builtin()
+        .couples()
+        .iter()
+        .filter(|c| !c.verified)
+        .count();
+    assert!(marked > 0);
+    assert_eq!(refused, marked);
 }
 
 #[test]
@@ -121,7 +179,7 @@ fn clean_fixtures_check_clean() {
     }
     let (stdout, _, status) = run(&[FIXTURES, "--format", "human"]);
     assert_eq!(status, 1, "the fixture directory as a whole has errors");
-    assert!(stdout.contains("checked 23 files"), "{stdout}");
+    assert!(stdout.contains("checked 24 files"), "{stdout}");
 }
 
 /// Findings the built-in table is known to have, each a real disagreement between its
