@@ -409,13 +409,13 @@ fn fix_then_check_leaves_no_fixable_error_and_changes_no_other_byte() {
 fn fix_rewrites_csv_fields_only() {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("t.csv");
-    let input = "# invented rows\nid,reaction,e0,source\nt-fe,\"Fe3+ + 2 e- -> Fe2+\",0.77,invented\nt-ag,Ag+ + e- -> Ag(s),0.80,invented\n";
+    let input = "# invented rows\nid,reaction,e0,source\nt-mn,\"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\",1.51,invented\nt-ag,Ag+ + e- -> Ag(s),0.80,invented\n";
     std::fs::write(&path, input).unwrap();
     let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
     assert_eq!(status, 0);
     assert_eq!(
         std::fs::read_to_string(&path).unwrap(),
-        input.replace("Fe3+ + 2 e- -> Fe2+", "Fe3+ + e- -> Fe2+")
+        input.replace("3 H2O", "4 H2O")
     );
 }
 
@@ -423,7 +423,7 @@ fn fix_rewrites_csv_fields_only() {
 fn fix_leaves_a_file_with_syntax_errors_alone() {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("t.toml");
-    let input = "[[couple]]\nreaction = \"Fe3+ + 2 e- -> Fe2+\"\ne0 = 0.77\nsource = \"invented\"\n[[couple]\n";
+    let input = "[[couple]]\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\"\ne0 = 1.51\nsource = \"invented\"\n[[couple]\n";
     std::fs::write(&path, input).unwrap();
     let (_, stderr, status) = run(&["--fix", path.to_str().unwrap()]);
     assert_eq!(status, 1);
@@ -584,4 +584,84 @@ fn the_couple_file_schema_accepts_the_builtin_table_and_rejects_bad_entries() {
         let value = serde_json::to_value(toml::from_str::<toml::Value>(bad).unwrap()).unwrap();
         assert!(!validator.is_valid(&value), "accepted: {bad}");
     }
+}
+
+// ---- hostile input and work limits ----
+
+fn report_of(text: &str, format: FileFormat, options: &CheckOptions) -> couplet::check::Report {
+    let name = match format {
+        FileFormat::Toml => "t.toml",
+        FileFormat::Csv => "t.csv",
+    };
+    check(
+        vec![SourceFile::new(name, CoupleFile::from_text(text, format))],
+        options,
+    )
+}
+
+fn hostile_entries(count: usize) -> String {
+    let reaction = crate::balance::hostile_equation(64, 70);
+    (0..count)
+        .map(|i| {
+            format!("[[couple]]\nid = \"h{i}\"\nreaction = \"{reaction}\"\ne0 = 0.1\nsource = \"invented\"\n")
+        })
+        .collect()
+}
+
+#[test]
+fn a_hostile_reaction_costs_the_checker_at_most_its_work_limit() {
+    // Small limits keep the test fast; the defaults are timed in benches/check.rs.
+    let options = CheckOptions {
+        reaction_work_limit: 200_000,
+        work_limit: 500_000,
+        ..CheckOptions::default()
+    };
+    let report = report_of(&hostile_entries(4), FileFormat::Toml, &options);
+    let messages: Vec<&str> = report
+        .findings
+        .iter()
+        .filter(|f| f.rule.code() == "CPL204")
+        .map(|f| f.message.as_str())
+        .collect();
+    assert_eq!(messages.len(), 4);
+    // Two reactions use their own limit; the budget then runs out for the rest.
+    let own_limit = "(no suggestion: balancing it needs more than the work limit of 200000 units)";
+    assert!(messages[0].ends_with(own_limit), "{}", messages[0]);
+    assert!(messages[1].ends_with(own_limit), "{}", messages[1]);
+    for message in &messages[2..] {
+        assert!(message.contains("spent its balancing budget"), "{message}");
+    }
+    assert!(
+        report
+            .findings
+            .iter()
+            .all(|f| f.suggestion.is_none() && f.fix.is_none())
+    );
+}
+
+#[test]
+fn a_fix_never_changes_the_electrons_of_the_oxidant() {
+    // Fe3+ + e- -> Fe2+ is the iron(III)/iron(II) couple, E° = +0.771 V (CRC Handbook of
+    // Chemistry and Physics, electrochemical series). Written with Fe instead of Fe2+, the
+    // balancer's form has 3 e-: another couple (Fe3+/Fe, about -0.04 V in the same table), so
+    // it is offered, never written by --fix.
+    let text =
+        "[[couple]]\nreaction = \"Fe3+ + e- -> Fe\"\ne0 = 0.771\nsource = \"invented typo\"\n";
+    let report = report_of(text, FileFormat::Toml, &CheckOptions::default());
+    let finding = &report.findings[0];
+    assert_eq!(finding.rule.code(), "CPL202");
+    assert_eq!(finding.suggestion.as_deref(), Some("Fe3+ + 3 e- -> Fe"));
+    assert!(finding.fix.is_none());
+    assert!(
+        finding
+            .message
+            .contains("changes the electrons per oxidant from 1 to 3"),
+        "{}",
+        finding.message
+    );
+    // Completing missing water keeps the oxidant's 5 e- per MnO4-: fixed automatically
+    // (OpenStax Chemistry 2e, Appendix L: MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O).
+    let text = "[[couple]]\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\"\ne0 = 1.507\nsource = \"invented typo\"\n";
+    let report = report_of(text, FileFormat::Toml, &CheckOptions::default());
+    assert!(report.findings[0].fix.is_some());
 }
