@@ -278,6 +278,12 @@ fn fix_replacement(report: &Report, finding: &Finding) -> Option<Value> {
             "endLine": end_line,
             "endColumn": end_column,
         },
-        "insertedContent": { "text": super::fix::written_value(source.file.format, &fix.reaction) },
+        "insertedContent": {
+            "text": super::fix::written_value(
+                source.file.format,
+                source.file.text.get(field.span.start..field.span.end).unwrap_or(""),
+                &fix.reaction,
+            )
+        },
     }))
 }

@@ -92,7 +92,11 @@ pub fn run(args: &CheckArgs) -> u8 {
             match fix::apply(&source.file, &fixes) {
                 Ok(text) => {
                     diff.push_str(&fix::unified_diff(&source.name, &source.file.text, &text));
-                    rewritten.push((paths[index].clone(), text));
+                    rewritten.push(fix::Rewrite {
+                        path: paths[index].clone(),
+                        original: source.file.text.clone(),
+                        text,
+                    });
                 }
                 Err(error) => {
                     eprintln!("error: {}: {error}", source.name);

@@ -362,8 +362,9 @@ fn fix_dry_run_prints_a_diff_and_writes_nothing() {
         ),
         "{stdout}"
     );
+    // A literal string stays literal.
     assert!(
-        stdout.contains("+reaction = \"Cu2+ + 2 e- -> Cu(s)\""),
+        stdout.contains("+reaction = 'Cu2+ + 2 e- -> Cu(s)'"),
         "{stdout}"
     );
 }
@@ -394,7 +395,7 @@ fn fix_then_check_leaves_no_fixable_error_and_changes_no_other_byte() {
                 5,
                 "reaction   =   \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)\"   # dropped water"
             ),
-            (11, "reaction = \"Cu2+ + 2 e- -> Cu(s)\""),
+            (11, "reaction = 'Cu2+ + 2 e- -> Cu(s)'"),
         ]
     );
     assert!(fixed.ends_with('\n'));
@@ -664,4 +665,136 @@ fn a_fix_never_changes_the_electrons_of_the_oxidant() {
     let text = "[[couple]]\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\"\ne0 = 1.507\nsource = \"invented typo\"\n";
     let report = report_of(text, FileFormat::Toml, &CheckOptions::default());
     assert!(report.findings[0].fix.is_some());
+}
+
+// ---- what --fix refuses, and what it keeps ----
+
+/// An invented entry whose fix only completes the water (5 e- per MnO4- kept).
+const FIXABLE: &str = "[[couple]]\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\"\ne0 = 1.51\nsource = \"invented\"\n";
+const FIXED: &str = "[[couple]]\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O\"\ne0 = 1.51\nsource = \"invented\"\n";
+
+fn names_in(dir: &Path) -> Vec<String> {
+    let mut names: Vec<String> = std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    names
+}
+
+#[test]
+fn a_file_changed_after_it_was_read_is_not_overwritten() {
+    use couplet::check::fix::{FixError, Rewrite, write_all};
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.toml");
+    // A couple appended by someone else after the checker read FIXABLE.
+    let appended = format!(
+        "{FIXABLE}[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.80\nsource = \"invented\"\n"
+    );
+    std::fs::write(&path, &appended).unwrap();
+    let rewrite = Rewrite {
+        path: path.clone(),
+        original: FIXABLE.to_owned(),
+        text: FIXED.to_owned(),
+    };
+    let error = write_all(&[rewrite]).unwrap_err();
+    assert!(matches!(error, FixError::Changed { .. }), "{error}");
+    assert!(
+        error
+            .to_string()
+            .ends_with("changed while it was being fixed; run the fix again")
+    );
+    assert_eq!(std::fs::read_to_string(&path).unwrap(), appended);
+    assert_eq!(names_in(dir.path()), ["t.toml"], "no temporary file left");
+}
+
+#[cfg(unix)]
+#[test]
+fn a_symbolic_link_is_followed_and_stays_a_link() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("real.toml");
+    let link = dir.path().join("link.toml");
+    std::fs::write(&target, FIXABLE).unwrap();
+    std::os::unix::fs::symlink(&target, &link).unwrap();
+    let (_, status) = run_json(&["--fix", link.to_str().unwrap()]);
+    assert_eq!(status, 0);
+    assert!(
+        std::fs::symlink_metadata(&link)
+            .unwrap()
+            .file_type()
+            .is_symlink()
+    );
+    assert_eq!(std::fs::read_to_string(&target).unwrap(), FIXED);
+    assert_eq!(names_in(dir.path()), ["link.toml", "real.toml"]);
+}
+
+#[cfg(unix)]
+#[test]
+fn hard_linked_and_read_only_files_are_refused_untouched() {
+    use std::os::unix::fs::PermissionsExt;
+    let dir = tempfile::tempdir().unwrap();
+    let first = dir.path().join("a.toml");
+    let second = dir.path().join("b.toml");
+    std::fs::write(&first, FIXABLE).unwrap();
+    std::fs::hard_link(&first, &second).unwrap();
+    let (_, stderr, status) = run(&["--fix", first.to_str().unwrap()]);
+    assert_eq!(status, 2, "{stderr}");
+    assert!(stderr.contains("has 2 hard links"), "{stderr}");
+    assert!(stderr.contains("no file was changed"), "{stderr}");
+    assert_eq!(std::fs::read_to_string(&second).unwrap(), FIXABLE);
+
+    let read_only = dir.path().join("r.toml");
+    std::fs::write(&read_only, FIXABLE).unwrap();
+    std::fs::set_permissions(&read_only, std::fs::Permissions::from_mode(0o444)).unwrap();
+    let (_, stderr, status) = run(&["--fix", read_only.to_str().unwrap()]);
+    assert_eq!(status, 2, "{stderr}");
+    assert!(stderr.contains("is read-only"), "{stderr}");
+    assert_eq!(std::fs::read_to_string(&read_only).unwrap(), FIXABLE);
+    assert_eq!(names_in(dir.path()), ["a.toml", "b.toml", "r.toml"]);
+}
+
+#[test]
+fn leftovers_of_a_killed_fix_are_recognisable_and_removed_later() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.toml");
+    std::fs::write(&path, FIXABLE).unwrap();
+    // What a run killed between writing and renaming leaves: an old, full-size copy.
+    let stale = dir.path().join(".t.toml.couplet-fix-Xy12ab.tmp");
+    std::fs::write(&stale, FIXED).unwrap();
+    let an_hour_ago = std::time::SystemTime::now() - std::time::Duration::from_secs(3600);
+    std::fs::File::options()
+        .write(true)
+        .open(&stale)
+        .unwrap()
+        .set_modified(an_hour_ago)
+        .unwrap();
+    // A fresh one may belong to a fix running now: kept.
+    let fresh = dir.path().join(".t.toml.couplet-fix-Zz98cd.tmp");
+    std::fs::write(&fresh, FIXED).unwrap();
+    let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
+    assert_eq!(status, 0);
+    assert_eq!(std::fs::read_to_string(&path).unwrap(), FIXED);
+    assert_eq!(
+        names_in(dir.path()),
+        [".t.toml.couplet-fix-Zz98cd.tmp", "t.toml"]
+    );
+}
+
+#[test]
+fn literal_toml_strings_stay_literal() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.toml");
+    let literal = FIXABLE.replace('"', "'");
+    std::fs::write(&path, &literal).unwrap();
+    let (sarif, _, _) = run(&["--format", "sarif", path.to_str().unwrap()]);
+    let sarif: Value = serde_json::from_str(&sarif).unwrap();
+    let inserted = &sarif["runs"][0]["results"][0]["fixes"][0]["artifactChanges"][0]["replacements"]
+        [0]["insertedContent"]["text"];
+    assert_eq!(inserted, "'MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O'");
+    let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
+    assert_eq!(status, 0);
+    assert_eq!(
+        std::fs::read_to_string(&path).unwrap(),
+        literal.replace("3 H2O", "4 H2O")
+    );
 }
