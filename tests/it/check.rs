@@ -798,3 +798,63 @@ fn literal_toml_strings_stay_literal() {
         literal.replace("3 H2O", "4 H2O")
     );
 }
+
+// ---- CSV positions ----
+
+#[test]
+fn csv_findings_and_fixes_point_at_the_right_place_after_comments_blanks_and_crlf() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.csv");
+    // Invented rows; the MnO4- row lacks one water (line 6).
+    let input = "# invented rows\r\n\r\nid,reaction,e0,source\r\n# a comment between rows\r\n\r\nt-mn,MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O,1.51,invented\r\n";
+    std::fs::write(&path, input).unwrap();
+    let (json, _) = run_json(&[path.to_str().unwrap()]);
+    let diagnostic = &json["diagnostics"][0];
+    assert_eq!(diagnostic["code"], "CPL201");
+    assert_eq!(
+        (diagnostic["line"].as_u64(), diagnostic["column"].as_u64()),
+        (Some(6), Some(6))
+    );
+    let (sarif, _, _) = run(&["--format", "sarif", path.to_str().unwrap()]);
+    let sarif: Value = serde_json::from_str(&sarif).unwrap();
+    let replacement =
+        &sarif["runs"][0]["results"][0]["fixes"][0]["artifactChanges"][0]["replacements"][0];
+    // The deleted region is exactly the 35 characters of the reaction field on line 6
+    // (SARIF 2.1.0 §3.30.7: endColumn is the column after the last character).
+    assert_eq!(
+        replacement["deletedRegion"],
+        serde_json::json!({"startLine": 6, "startColumn": 6, "endLine": 6, "endColumn": 41})
+    );
+    let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
+    assert_eq!(status, 0);
+    assert_eq!(
+        std::fs::read_to_string(&path).unwrap(),
+        input.replace("3 H2O", "4 H2O")
+    );
+}
+
+#[test]
+fn a_csv_column_named_twice_is_reported_where_it_is_written() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.csv");
+    std::fs::write(
+        &path,
+        "# invented\nreaction,e0,source,e0\nAg+ + e- -> Ag(s),0.80,invented,0.10\n",
+    )
+    .unwrap();
+    let (json, status) = run_json(&[path.to_str().unwrap()]);
+    assert_eq!(status, 1);
+    let diagnostic = &json["diagnostics"][0];
+    assert_eq!(diagnostic["code"], "CPL101");
+    assert_eq!(
+        (diagnostic["line"].as_u64(), diagnostic["column"].as_u64()),
+        (Some(2), Some(20))
+    );
+    assert!(
+        diagnostic["message"]
+            .as_str()
+            .unwrap()
+            .contains("'e0' is named twice"),
+        "{json}"
+    );
+}
