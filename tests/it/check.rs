@@ -406,18 +406,24 @@ fn fix_then_check_leaves_no_fixable_error_and_changes_no_other_byte() {
     assert_eq!(stdout, "");
 }
 
+/// Runs `--fix` on `path`, which holds `input` with one MnO4- entry short of one water, and
+/// checks that only that count changed.
+fn assert_fix_adds_the_water(path: &Path, input: &str) {
+    let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
+    assert_eq!(status, 0);
+    assert_eq!(
+        std::fs::read_to_string(path).unwrap(),
+        input.replace("3 H2O", "4 H2O")
+    );
+}
+
 #[test]
 fn fix_rewrites_csv_fields_only() {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("t.csv");
     let input = "# invented rows\nid,reaction,e0,source\nt-mn,\"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\",1.51,invented\nt-ag,Ag+ + e- -> Ag(s),0.80,invented\n";
     std::fs::write(&path, input).unwrap();
-    let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
-    assert_eq!(status, 0);
-    assert_eq!(
-        std::fs::read_to_string(&path).unwrap(),
-        input.replace("3 H2O", "4 H2O")
-    );
+    assert_fix_adds_the_water(&path, input);
 }
 
 #[test]
@@ -791,12 +797,7 @@ fn literal_toml_strings_stay_literal() {
     let inserted = &sarif["runs"][0]["results"][0]["fixes"][0]["artifactChanges"][0]["replacements"]
         [0]["insertedContent"]["text"];
     assert_eq!(inserted, "'MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O'");
-    let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
-    assert_eq!(status, 0);
-    assert_eq!(
-        std::fs::read_to_string(&path).unwrap(),
-        literal.replace("3 H2O", "4 H2O")
-    );
+    assert_fix_adds_the_water(&path, &literal);
 }
 
 // ---- CSV positions ----
@@ -825,12 +826,7 @@ fn csv_findings_and_fixes_point_at_the_right_place_after_comments_blanks_and_crl
         replacement["deletedRegion"],
         serde_json::json!({"startLine": 6, "startColumn": 6, "endLine": 6, "endColumn": 41})
     );
-    let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
-    assert_eq!(status, 0);
-    assert_eq!(
-        std::fs::read_to_string(&path).unwrap(),
-        input.replace("3 H2O", "4 H2O")
-    );
+    assert_fix_adds_the_water(&path, input);
 }
 
 #[test]
