@@ -3,6 +3,7 @@
 
 use super::{Finding, Report, Rule, Severity};
 use serde_json::{Value, json};
+use std::io::Write;
 
 /// Characters of a source line shown on each side of the fault when the line is long.
 const LINE_WINDOW_CHARS: usize = 60;
@@ -34,14 +35,19 @@ fn paint(colour: Colour, code: &str, text: &str) -> String {
 ///   = suggestion: MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)
 /// ```
 pub fn human(report: &Report, colour: Colour) -> String {
-    let mut out = String::new();
+    let mut out = Vec::new();
+    write_human(report, colour, &mut out).expect("writing to memory cannot fail");
+    String::from_utf8(out).expect("the report is text")
+}
+
+/// As [`human`], written finding by finding to `out`, so that a report of a million findings
+/// is never held as one text.
+pub fn write_human(report: &Report, colour: Colour, out: &mut dyn Write) -> std::io::Result<()> {
     for finding in &report.findings {
-        out.push_str(&human_finding(report, finding, colour));
-        out.push('\n');
+        out.write_all(human_finding(report, finding, colour).as_bytes())?;
+        out.write_all(b"\n")?;
     }
-    out.push_str(&summary_line(report));
-    out.push('\n');
-    out
+    writeln!(out, "{}", summary_line(report))
 }
 
 /// The closing line: `checked 2 files, 14 couples: 1 error, 0 warnings`.
@@ -149,20 +155,37 @@ pub fn json(report: &Report) -> Value {
     let diagnostics: Vec<Value> = report
         .findings
         .iter()
-        .map(|finding| {
-            let (line, column) = report.line_column(finding);
-            json!({
-                "file": report.files[finding.file].name,
-                "line": line,
-                "column": column,
-                "severity": finding.severity().name(),
-                "code": finding.rule.code(),
-                "message": finding.message,
-                "suggestion": finding.suggestion,
-            })
-        })
+        .map(|finding| json_diagnostic(report, finding))
         .collect();
     json!({ "diagnostics": diagnostics, "summary": report.summary() })
+}
+
+/// As [`json`], on one line followed by a newline, written diagnostic by diagnostic to `out`
+/// (the whole report is never held as a JSON tree).
+pub fn write_json(report: &Report, out: &mut dyn Write) -> std::io::Result<()> {
+    out.write_all(b"{\"diagnostics\":[")?;
+    for (i, finding) in report.findings.iter().enumerate() {
+        if i > 0 {
+            out.write_all(b",")?;
+        }
+        serde_json::to_writer(&mut *out, &json_diagnostic(report, finding))?;
+    }
+    out.write_all(b"],\"summary\":")?;
+    serde_json::to_writer(&mut *out, &report.summary())?;
+    out.write_all(b"}\n")
+}
+
+fn json_diagnostic(report: &Report, finding: &Finding) -> Value {
+    let (line, column) = report.line_column(finding);
+    json!({
+        "file": report.files[finding.file].name,
+        "line": line,
+        "column": column,
+        "severity": finding.severity().name(),
+        "code": finding.rule.code(),
+        "message": finding.message,
+        "suggestion": finding.suggestion,
+    })
 }
 
 /// The published SARIF 2.1.0 schema address (OASIS, errata 01).
@@ -188,6 +211,51 @@ fn uri_reference(path: &str) -> String {
 /// The report as a SARIF 2.1.0 log: one run, every rule described, one result per finding with
 /// its region (columns in Unicode code points), and a `fixes` entry where `--fix` would rewrite.
 pub fn sarif(report: &Report) -> Value {
+    let results: Vec<Value> = report
+        .findings
+        .iter()
+        .map(|finding| sarif_result(report, finding))
+        .collect();
+    json!({
+        "$schema": SARIF_SCHEMA_URI,
+        "version": "2.1.0",
+        "runs": [{
+            "tool": sarif_tool(),
+            "columnKind": SARIF_COLUMN_KIND,
+            "results": results,
+        }],
+    })
+}
+
+const SARIF_COLUMN_KIND: &str = "unicodeCodePoints";
+
+/// As [`sarif`], written result by result to `out` and ended with a newline: a million
+/// findings are never held as one JSON tree.
+pub fn write_sarif(report: &Report, out: &mut dyn Write) -> std::io::Result<()> {
+    write!(
+        out,
+        "{{\n  \"$schema\": {},\n  \"version\": \"2.1.0\",\n  \"runs\": [\n    {{\n      \"tool\": {},\n      \"columnKind\": {},\n      \"results\": [",
+        compact(&SARIF_SCHEMA_URI),
+        compact(&sarif_tool()),
+        compact(&SARIF_COLUMN_KIND),
+    )?;
+    for (i, finding) in report.findings.iter().enumerate() {
+        out.write_all(if i == 0 {
+            b"\n        "
+        } else {
+            b",\n        "
+        })?;
+        serde_json::to_writer(&mut *out, &sarif_result(report, finding))?;
+    }
+    out.write_all(b"\n      ]\n    }\n  ]\n}\n")
+}
+
+fn compact(value: &impl serde::Serialize) -> String {
+    serde_json::to_string(value).expect("JSON values always serialise")
+}
+
+/// The SARIF tool object: couplet and every rule it has.
+fn sarif_tool() -> Value {
     let rules: Vec<Value> = Rule::ALL
         .iter()
         .map(|rule| {
@@ -199,68 +267,57 @@ pub fn sarif(report: &Report) -> Value {
             })
         })
         .collect();
-    let results: Vec<Value> = report
-        .findings
-        .iter()
-        .map(|finding| {
-            let source = &report.files[finding.file];
-            let (start_line, start_column) = report.line_column(finding);
-            let (end_line, end_column) = source.line_column(finding.span.end);
-            let (end_line, end_column) = if (end_line, end_column) <= (start_line, start_column) {
-                (start_line, start_column + 1)
-            } else {
-                (end_line, end_column)
-            };
-            let uri = uri_reference(&source.name);
-            let region = json!({
-                "startLine": start_line,
-                "startColumn": start_column,
-                "endLine": end_line,
-                "endColumn": end_column,
-            });
-            let mut message = finding.message.clone();
-            if let Some(suggestion) = &finding.suggestion {
-                message.push_str(&format!(" (suggestion: {suggestion})"));
-            }
-            let mut result = json!({
-                "ruleId": finding.rule.code(),
-                "ruleIndex": Rule::ALL.iter().position(|r| *r == finding.rule).unwrap_or(0),
-                "level": finding.severity().name(),
-                "message": { "text": message },
-                "locations": [{
-                    "physicalLocation": {
-                        "artifactLocation": { "uri": uri },
-                        "region": region,
-                    }
-                }],
-            });
-            if let Some(replacement) = fix_replacement(report, finding) {
-                result["fixes"] = json!([{
-                    "description": { "text": "write the balanced reaction" },
-                    "artifactChanges": [{
-                        "artifactLocation": { "uri": uri },
-                        "replacements": [replacement],
-                    }],
-                }]);
-            }
-            result
-        })
-        .collect();
     json!({
-        "$schema": SARIF_SCHEMA_URI,
-        "version": "2.1.0",
-        "runs": [{
-            "tool": {
-                "driver": {
-                    "name": "couplet",
-                    "version": env!("CARGO_PKG_VERSION"),
-                    "rules": rules,
-                }
-            },
-            "columnKind": "unicodeCodePoints",
-            "results": results,
-        }],
+        "driver": {
+            "name": "couplet",
+            "version": env!("CARGO_PKG_VERSION"),
+            "rules": rules,
+        }
     })
+}
+
+fn sarif_result(report: &Report, finding: &Finding) -> Value {
+    let source = &report.files[finding.file];
+    let (start_line, start_column) = report.line_column(finding);
+    let (end_line, end_column) = source.line_column(finding.span.end);
+    let (end_line, end_column) = if (end_line, end_column) <= (start_line, start_column) {
+        (start_line, start_column + 1)
+    } else {
+        (end_line, end_column)
+    };
+    let uri = uri_reference(&source.name);
+    let region = json!({
+        "startLine": start_line,
+        "startColumn": start_column,
+        "endLine": end_line,
+        "endColumn": end_column,
+    });
+    let mut message = finding.message.clone();
+    if let Some(suggestion) = &finding.suggestion {
+        message.push_str(&format!(" (suggestion: {suggestion})"));
+    }
+    let mut result = json!({
+        "ruleId": finding.rule.code(),
+        "ruleIndex": Rule::ALL.iter().position(|r| *r == finding.rule).unwrap_or(0),
+        "level": finding.severity().name(),
+        "message": { "text": message },
+        "locations": [{
+            "physicalLocation": {
+                "artifactLocation": { "uri": uri },
+                "region": region,
+            }
+        }],
+    });
+    if let Some(replacement) = fix_replacement(report, finding) {
+        result["fixes"] = json!([{
+            "description": { "text": "write the balanced reaction" },
+            "artifactChanges": [{
+                "artifactLocation": { "uri": uri },
+                "replacements": [replacement],
+            }],
+        }]);
+    }
+    result
 }
 
 /// The SARIF replacement for a finding's fix: the reaction value's region and the new value

@@ -132,29 +132,22 @@ pub fn run(args: &CheckArgs) -> u8 {
         }
     }
 
-    let text = match args.format.as_str() {
-        "json" => format!(
-            "{}\n",
-            serde_json::to_string(&output::json(&report)).expect("JSON values always serialise")
-        ),
-        "sarif" => format!(
-            "{}\n",
-            serde_json::to_string_pretty(&output::sarif(&report))
-                .expect("JSON values always serialise")
-        ),
-        _ => {
-            let stdout = std::io::stdout();
-            let no_color = std::env::var_os("NO_COLOR").is_some_and(|v| !v.is_empty());
-            let colour = if stdout.is_terminal() && !no_color {
-                Colour::Always
-            } else {
-                Colour::Never
-            };
-            output::human(&report, colour)
-        }
-    };
-    // A closed pipe (`| head`) is not an error of the check: stop writing quietly.
-    let _ = std::io::stdout().lock().write_all(text.as_bytes());
+    // Written piece by piece: a report of a million findings is never held whole. A closed
+    // pipe (`| head`) is not an error of the check: stop writing quietly.
+    let stdout = std::io::stdout();
+    let colour =
+        if stdout.is_terminal() && !std::env::var_os("NO_COLOR").is_some_and(|v| !v.is_empty()) {
+            Colour::Always
+        } else {
+            Colour::Never
+        };
+    let mut out = std::io::BufWriter::new(stdout.lock());
+    let _ = match args.format.as_str() {
+        "json" => output::write_json(&report, &mut out),
+        "sarif" => output::write_sarif(&report, &mut out),
+        _ => output::write_human(&report, colour, &mut out),
+    }
+    .and_then(|()| out.flush());
     let failing = report.findings.iter().any(|f| {
         f.severity() == Severity::Error || (args.deny_warnings && f.severity() == Severity::Warning)
     });

@@ -187,15 +187,24 @@ impl CoupleFile {
 
     /// Reads text in the given format.
     pub fn from_text(text: &str, format: FileFormat) -> CoupleFile {
-        match format {
-            FileFormat::Toml => read_toml(text),
-            FileFormat::Csv => read_csv(text),
-        }
+        CoupleFile::from_string(text.to_owned(), format)
     }
 
-    /// Reads a file from disk, choosing the format from its extension.
+    /// Reads text in the given format, keeping the string as the file's text (no copy).
+    pub fn from_string(text: String, format: FileFormat) -> CoupleFile {
+        let mut file = match format {
+            FileFormat::Toml => read_toml(&text),
+            FileFormat::Csv => read_csv(&text),
+        };
+        file.text = text;
+        file
+    }
+
+    /// Reads a file from disk, choosing the format from its extension. At most
+    /// [`MAX_COUPLE_FILE_BYTES`] are read: a larger file (or a device such as `/dev/zero`)
+    /// is an error of kind `InvalidData`, found without reading more than the limit.
     pub fn read(path: &std::path::Path) -> std::io::Result<CoupleFile> {
-        let bytes = std::fs::read(path)?;
+        let bytes = read_bounded(std::fs::File::open(path)?)?;
         Ok(CoupleFile::from_bytes(&bytes, FileFormat::from_path(path)))
     }
 
@@ -203,6 +212,29 @@ impl CoupleFile {
     pub fn line_column(&self, offset: usize) -> (usize, usize) {
         line_column(&self.text, offset)
     }
+}
+
+/// The largest couple file read: 32 MiB, about 200,000 couples.
+pub const MAX_COUPLE_FILE_BYTES: u64 = 32 * 1024 * 1024;
+
+/// All of `source` when it holds at most [`MAX_COUPLE_FILE_BYTES`]; an `InvalidData` error
+/// after reading one byte more otherwise.
+pub fn read_bounded(source: impl std::io::Read) -> std::io::Result<Vec<u8>> {
+    use std::io::Read;
+    let mut bytes = Vec::new();
+    source
+        .take(MAX_COUPLE_FILE_BYTES + 1)
+        .read_to_end(&mut bytes)?;
+    if bytes.len() as u64 > MAX_COUPLE_FILE_BYTES {
+        return Err(std::io::Error::new(
+            std::io::ErrorKind::InvalidData,
+            format!(
+                "more than {} MiB: a couple file is at most that large (split the table)",
+                MAX_COUPLE_FILE_BYTES / 1024 / 1024
+            ),
+        ));
+    }
+    Ok(bytes)
 }
 
 /// 1-based line and column (in characters) of byte `offset` in `text`.
@@ -334,7 +366,8 @@ fn toml_number(value: &DeValue<'_>) -> Option<f64> {
 fn read_toml(text: &str) -> CoupleFile {
     let mut file = CoupleFile {
         format: FileFormat::Toml,
-        text: text.to_owned(),
+        // The caller stores the text it owns.
+        text: String::new(),
         records: Vec::new(),
         problems: Vec::new(),
         unknown_keys: Vec::new(),
@@ -625,7 +658,8 @@ fn skip_line_break(bytes: &[u8], at: usize) -> usize {
 fn read_csv(text: &str) -> CoupleFile {
     let mut file = CoupleFile {
         format: FileFormat::Csv,
-        text: text.to_owned(),
+        // The caller stores the text it owns.
+        text: String::new(),
         records: Vec::new(),
         problems: Vec::new(),
         unknown_keys: Vec::new(),

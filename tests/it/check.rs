@@ -854,3 +854,58 @@ fn a_csv_column_named_twice_is_reported_where_it_is_written() {
         "{json}"
     );
 }
+
+// ---- resource caps ----
+
+#[test]
+fn a_device_given_as_a_table_is_refused_after_the_size_limit() {
+    // /dev/zero never ends: the reader stops one byte past 32 MiB.
+    let output = couplet()
+        .args(["table", "--table", "/dev/zero"])
+        .timeout(std::time::Duration::from_secs(60))
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    let stderr = String::from_utf8(output.stderr).unwrap();
+    assert!(stderr.contains("more than 32 MiB"), "{stderr}");
+}
+
+#[cfg(unix)]
+#[test]
+fn a_fifo_named_for_checking_is_refused_without_blocking() {
+    let dir = tempfile::tempdir().unwrap();
+    let fifo = dir.path().join("couples.toml");
+    let made = std::process::Command::new("mkfifo")
+        .arg(&fifo)
+        .status()
+        .unwrap();
+    assert!(made.success());
+    let output = couplet()
+        .args(["check", fifo.to_str().unwrap()])
+        .timeout(std::time::Duration::from_secs(20))
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2), "exited, not timed out");
+    let stderr = String::from_utf8(output.stderr).unwrap();
+    assert!(stderr.contains("not a regular file"), "{stderr}");
+}
+
+#[test]
+fn streamed_json_and_sarif_are_the_documented_documents() {
+    let paths: Vec<PathBuf> = fixture_files().into_iter().take(6).collect();
+    let sources = paths
+        .iter()
+        .map(|p| couplet::check::load_file(p).unwrap())
+        .collect();
+    let report = check(sources, &CheckOptions::default());
+    assert!(report.findings.len() >= 6);
+    let mut streamed = Vec::new();
+    couplet::check::output::write_sarif(&report, &mut streamed).unwrap();
+    let streamed: Value = serde_json::from_slice(&streamed).unwrap();
+    assert_eq!(streamed, couplet::check::output::sarif(&report));
+    let mut streamed = Vec::new();
+    couplet::check::output::write_json(&report, &mut streamed).unwrap();
+    assert_eq!(streamed.last(), Some(&b'\n'));
+    let streamed: Value = serde_json::from_slice(&streamed).unwrap();
+    assert_eq!(streamed, couplet::check::output::json(&report));
+}
