@@ -10,7 +10,8 @@
 
 use super::entry::JudgedEntry;
 use super::{CheckOptions, Finding, Rule, SourceFile};
-use crate::notation::{Span, Species, State, Style, species_to_string};
+use crate::notation::{Span, Species, Style, species_to_string};
+use crate::quotient::{Phase, phase};
 use crate::reaction::Reaction;
 use num_rational::BigRational;
 use num_traits::{Signed, ToPrimitive, Zero};
@@ -21,18 +22,21 @@ use std::collections::{HashMap, HashSet};
 pub const MAX_COUPLES_PER_LINK: usize = 500;
 
 /// A couple in a form that does not depend on how it was written: lowest integers, electrons on
-/// the left, species in a fixed order, `(aq)` on ions and `(l)` on water left out.
+/// the left, species in a fixed order, and each species with the phase it has in Q and in the
+/// cell engine ([`crate::quotient::phase`], the one rule of state defaults): `Fe` and `Fe(s)`
+/// are one species, `Cu2+` and `Cu2+(aq)` one, `H2O` and `H2O(l)` one, `Br2(l)` and
+/// `Br2(aq)` two.
 #[derive(Clone, Debug, PartialEq, Eq, Hash)]
 pub struct CoupleKey(String);
 
 fn species_key(species: &Species) -> String {
-    let plain = species.state.is_none()
-        || species.state == Some(State::Aqueous)
-        || (species.state == Some(State::Liquid) && species.without_state().ascii() == "H2O");
-    if plain {
-        species_to_string(&species.without_state(), Style::Ascii)
-    } else {
-        species_to_string(species, Style::Ascii)
+    let plain = species_to_string(&species.without_state(), Style::Ascii);
+    match phase(species) {
+        // Solutes and the solvent are how unlabelled ions and water are read: no tag.
+        Phase::Solute | Phase::Solvent => plain,
+        Phase::Solid => format!("{plain}(s)"),
+        Phase::PureLiquid => format!("{plain}(l)"),
+        Phase::Gas => format!("{plain}(g)"),
     }
 }
 
@@ -330,6 +334,13 @@ mod tests {
             key("Br2(l) + 2 e- -> 2 Br-"),
             key("Br2(aq) + 2 e- -> 2 Br-")
         );
+        // Unlabelled species take the phase Q gives them: a metal is its solid, a gaseous
+        // element its gas, liquid bromine its liquid, a neutral molecule of the solute list
+        // its solution.
+        assert_eq!(key("Cu2+ + 2 e- -> Cu"), key("Cu2+(aq) + 2 e- -> Cu(s)"));
+        assert_eq!(key("Cl2 + 2 e- -> 2 Cl-"), key("Cl2(g) + 2 e- -> 2 Cl-"));
+        assert_eq!(key("Br2 + 2 e- -> 2 Br-"), key("Br2(l) + 2 e- -> 2 Br-"));
+        assert_ne!(key("Cl2 + 2 e- -> 2 Cl-"), key("Cl2(aq) + 2 e- -> 2 Cl-"));
         assert_eq!(key("Ag+ -> Ag(s)"), None);
     }
 

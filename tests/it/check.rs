@@ -909,3 +909,34 @@ fn streamed_json_and_sarif_are_the_documented_documents() {
     let streamed: Value = serde_json::from_slice(&streamed).unwrap();
     assert_eq!(streamed, couplet::check::output::json(&report));
 }
+
+// ---- one rule of state defaults ----
+
+fn rule_codes(report: &couplet::check::Report) -> Vec<&'static str> {
+    report.findings.iter().map(|f| f.rule.code()).collect()
+}
+
+#[test]
+fn unlabelled_species_match_their_labelled_form_as_cell_reads_them() {
+    // Cu2+/Cu, E° = +0.342 V (CRC Handbook of Chemistry and Physics, electrochemical series;
+    // value from memory): the same couple written with and without (s), 0.2 V apart.
+    let text = "[[couple]]\nreaction = \"Cu2+ + 2 e- -> Cu\"\ne0 = 0.342\nsource = \"CRC\"\n\n[[couple]]\nreaction = \"Cu2+ + 2 e- -> Cu(s)\"\ne0 = 0.542\nsource = \"invented error\"\n";
+    let report = report_of(text, FileFormat::Toml, &CheckOptions::default());
+    assert_eq!(rule_codes(&report), ["CPL402"]);
+    // Fe3+/Fe2+ +0.771 V, Fe2+/Fe -0.447 V, Fe3+/Fe -0.037 V (same table, from memory):
+    // free energies add, (2(-0.447) + 0.771)/3 = -0.041 V, within 0.01 V of -0.037 V. The
+    // metal written once as Fe and once as Fe(s) still links the couples.
+    let consistent = "[[couple]]\nreaction = \"Fe3+ + e- -> Fe2+\"\ne0 = 0.771\nsource = \"CRC\"\n\n[[couple]]\nreaction = \"Fe2+ + 2 e- -> Fe\"\ne0 = -0.447\nsource = \"CRC\"\n\n[[couple]]\nreaction = \"Fe3+ + 3 e- -> Fe(s)\"\ne0 = -0.037\nsource = \"CRC\"\n";
+    let report = report_of(consistent, FileFormat::Toml, &CheckOptions::default());
+    assert_eq!(rule_codes(&report), Vec::<&str>::new());
+    let broken = consistent.replace("e0 = -0.037", "e0 = 0.2");
+    let report = report_of(&broken, FileFormat::Toml, &CheckOptions::default());
+    assert_eq!(rule_codes(&report), ["CPL403"]);
+    // The cell engine reads Fe and Fe(s) alike: both solids, out of Q.
+    let bare: couplet::notation::Species = couplet::notation::parse_species("Fe").unwrap();
+    let labelled = couplet::notation::parse_species("Fe(s)").unwrap();
+    assert_eq!(
+        couplet::quotient::phase(&bare),
+        couplet::quotient::phase(&labelled)
+    );
+}
