@@ -40,7 +40,22 @@ pub enum LoadError {
 /// The files to check under the given paths: a file is taken as given; a directory is searched
 /// (recursively, in name order, skipping names that start with `.`) for `*.toml` and `*.csv`.
 /// Found files are returned with `true` (found under a directory), given files with `false`.
+/// A file reached by two paths (`t.toml` and `./t.toml`, a directory and a file in it, a
+/// symbolic link and its target) is returned once, under the first path that reached it, so
+/// that its ids are not reported as used twice.
 pub fn expand_paths(paths: &[PathBuf]) -> Result<Vec<(PathBuf, bool)>, LoadError> {
+    let mut seen = std::collections::HashSet::new();
+    let mut unique = Vec::new();
+    for (path, under_directory) in expand_all(paths)? {
+        let identity = std::fs::canonicalize(&path).unwrap_or_else(|_| path.clone());
+        if seen.insert(identity) {
+            unique.push((path, under_directory));
+        }
+    }
+    Ok(unique)
+}
+
+fn expand_all(paths: &[PathBuf]) -> Result<Vec<(PathBuf, bool)>, LoadError> {
     let mut out = Vec::new();
     for path in paths {
         let metadata = std::fs::metadata(path).map_err(|source| match source.kind() {

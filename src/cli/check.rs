@@ -29,6 +29,10 @@ pub struct CheckArgs {
     /// With --fix: print the changes as a unified diff and write nothing
     #[arg(long, requires = "fix")]
     dry_run: bool,
+    /// Fail (exit status 1) when the paths hold no couples at all, instead of passing with a
+    /// note: catches a CI job pointed at the wrong directory
+    #[arg(long)]
+    expect_couples: bool,
 }
 
 fn parse_tolerance(text: &str) -> Result<f64, String> {
@@ -148,6 +152,26 @@ pub fn run(args: &CheckArgs) -> u8 {
         _ => output::write_human(&report, colour, &mut out),
     }
     .and_then(|()| out.flush());
+    // An empty run passes silently otherwise: say so on standard error (standard output
+    // stays the report a program reads).
+    let summary = report.summary();
+    let empty = summary.entries == 0 && summary.errors == 0;
+    if empty {
+        let what = if summary.files == 0 {
+            "no couple files were found under the paths given"
+        } else {
+            "the files given hold no couples"
+        };
+        let outcome = if args.expect_couples {
+            "failing because of --expect-couples"
+        } else {
+            "passing; --expect-couples makes this fail"
+        };
+        eprintln!("note: nothing to check: {what} ({outcome})");
+        if args.expect_couples {
+            return EXIT_FINDINGS;
+        }
+    }
     let failing = report.findings.iter().any(|f| {
         f.severity() == Severity::Error || (args.deny_warnings && f.severity() == Severity::Warning)
     });

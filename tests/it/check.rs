@@ -940,3 +940,49 @@ fn unlabelled_species_match_their_labelled_form_as_cell_reads_them() {
         couplet::quotient::phase(&labelled)
     );
 }
+
+// ---- paths and empty runs ----
+
+#[test]
+fn a_file_reached_by_two_paths_is_checked_once() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.toml");
+    std::fs::write(&path, "[[couple]]\nid = \"ag\"\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.80\nsource = \"invented\"\n").unwrap();
+    let dotted = dir.path().join(".").join("t.toml");
+    let (json, status) = run_json(&[
+        path.to_str().unwrap(),
+        dotted.to_str().unwrap(),
+        dir.path().to_str().unwrap(),
+    ]);
+    assert_eq!(status, 0, "{json}");
+    assert_eq!(codes(&json), Vec::<String>::new());
+    assert_eq!(json["summary"]["files"], 1);
+}
+
+#[test]
+fn nothing_to_check_is_said_and_can_be_made_to_fail() {
+    let dir = tempfile::tempdir().unwrap();
+    let empty = dir.path().join("empty.toml");
+    std::fs::write(&empty, "# no couples yet\n").unwrap();
+    let (_, stderr, status) = run(&[empty.to_str().unwrap()]);
+    assert_eq!(status, 0);
+    assert!(
+        stderr.contains("nothing to check: the files given hold no couples"),
+        "{stderr}"
+    );
+    let (_, _, status) = run(&["--expect-couples", empty.to_str().unwrap()]);
+    assert_eq!(status, 1);
+    let nested = dir.path().join("nothing-here");
+    std::fs::create_dir(&nested).unwrap();
+    let (stdout, stderr, status) = run(&[
+        "--format",
+        "json",
+        "--expect-couples",
+        nested.to_str().unwrap(),
+    ]);
+    assert_eq!(status, 1);
+    assert!(stderr.contains("no couple files were found"), "{stderr}");
+    // Standard output is still the report.
+    let json: Value = serde_json::from_str(&stdout).unwrap();
+    assert_eq!(json["summary"]["files"], 0);
+}
