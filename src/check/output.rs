@@ -1,4 +1,5 @@
-//! Writing a check [`Report`]: compiler-style text with the source line and a caret, the
+//! Writing a check [`Report`]: the project's own text layout (location first, then the rule,
+//! the message, the source line with the fault marked, and what to write instead), the
 //! documented JSON form, and SARIF 2.1.0 (OASIS) for code-scanning services.
 
 use super::{Finding, Report, Rule, Severity};
@@ -24,16 +25,18 @@ fn paint(colour: Colour, code: &str, text: &str) -> String {
     }
 }
 
-/// The findings as compiler-style diagnostics, then the summary line:
+/// The findings, each as a block of lines, then the summary line:
 ///
 /// ```text
-/// error CPL201 atoms-not-conserved: atoms not conserved (right minus left): O -1
-///  --> t.toml:2:12
-///   |
-/// 2 | reaction = "MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O(l)"
-///   |            ^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^^
-///   = suggestion: MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)
+/// t.toml:2:12: CPL201 error (atoms-not-conserved)
+///     atoms not conserved (right minus left): O -1
+///     line 2: reaction = "MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O(l)"
+///                        =========================================
+///     write instead: MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)
 /// ```
+///
+/// The location comes first so that editors and terminals can jump to it; the marker line
+/// of `=` runs under exactly the characters the finding is about.
 pub fn human(report: &Report, colour: Colour) -> String {
     let mut out = Vec::new();
     write_human(report, colour, &mut out).expect("writing to memory cannot fail");
@@ -64,77 +67,68 @@ pub fn summary_line(report: &Report) -> String {
     )
 }
 
+/// How far the message, source line and suggestion are indented under the location line.
+const INDENT: &str = "    ";
+
 fn human_finding(report: &Report, finding: &Finding, colour: Colour) -> String {
     let source = &report.files[finding.file];
     let text = &source.file.text;
     let severity = finding.severity();
     let (line_number, column) = report.line_column(finding);
-    let mut out = String::new();
-    let label = match severity {
-        Severity::Error => paint(colour, "1;31", "error"),
-        Severity::Warning => paint(colour, "1;33", "warning"),
+    let severity_colour = match severity {
+        Severity::Error => "1;31",
+        Severity::Warning => "1;33",
     };
-    out.push_str(&format!(
-        "{label} {} {}: {}\n",
+    let mut out = format!(
+        "{}: {} {} ({})\n",
+        paint(
+            colour,
+            "1",
+            &format!("{}:{line_number}:{column}", source.name)
+        ),
         paint(colour, "1", finding.rule.code()),
+        paint(colour, severity_colour, severity.name()),
         finding.rule.name(),
-        paint(colour, "1", &finding.message)
-    ));
-    let gutter = line_number.to_string().len();
-    let pad = " ".repeat(gutter);
-    out.push_str(&format!(
-        "{pad}{} {}:{line_number}:{column}\n",
-        paint(colour, "34", "-->"),
-        source.name
-    ));
+    );
+    out.push_str(&format!("{INDENT}{}\n", finding.message));
     if !text.is_empty() {
         let start = floor_boundary(text, finding.span.start.min(text.len()));
         let line_start = text[..start].rfind('\n').map_or(0, |i| i + 1);
         let line_end = text[start..].find('\n').map_or(text.len(), |i| start + i);
         let end = floor_boundary(text, finding.span.end.clamp(start, line_end));
         let line = text[line_start..line_end].trim_end_matches('\r');
-        let before: Vec<char> = text[line_start..start].chars().collect();
+        let before = text[line_start..start].chars().count();
         let marked = text[start..end].chars().count().max(1);
         // Long lines (a million characters) are shown as a window around the fault.
-        let skip = before.len().saturating_sub(LINE_WINDOW_CHARS);
+        let skip = before.saturating_sub(LINE_WINDOW_CHARS);
         let shown: String = line
             .chars()
             .skip(skip)
             .take(2 * LINE_WINDOW_CHARS + marked.min(LINE_WINDOW_CHARS))
             .collect();
-        let shown_len = line.chars().count();
         let prefix = if skip > 0 { "…" } else { "" };
-        let suffix = if skip + shown.chars().count() < shown_len {
+        let suffix = if skip + shown.chars().count() < line.chars().count() {
             "…"
         } else {
             ""
         };
-        let bar = paint(colour, "34", "|");
-        out.push_str(&format!("{pad} {bar}\n"));
+        let label = format!("line {line_number}: ");
+        out.push_str(&format!("{INDENT}{label}{prefix}{shown}{suffix}\n"));
+        let marker_pad = label.chars().count() + before - skip + prefix.chars().count();
         out.push_str(&format!(
-            "{} {bar} {prefix}{shown}{suffix}\n",
-            paint(colour, "34", &line_number.to_string())
-        ));
-        let caret_pad = before.len() - skip + prefix.chars().count();
-        let caret_color = if severity == Severity::Error {
-            "1;31"
-        } else {
-            "1;33"
-        };
-        out.push_str(&format!(
-            "{pad} {bar} {}{}\n",
-            " ".repeat(caret_pad),
+            "{INDENT}{}{}\n",
+            " ".repeat(marker_pad),
             paint(
                 colour,
-                caret_color,
-                &"^".repeat(marked.min(2 * LINE_WINDOW_CHARS))
+                severity_colour,
+                &"=".repeat(marked.min(2 * LINE_WINDOW_CHARS))
             )
         ));
     }
     if let Some(suggestion) = &finding.suggestion {
         out.push_str(&format!(
-            "{pad} = {} {suggestion}\n",
-            paint(colour, "1;32", "suggestion:")
+            "{INDENT}{} {suggestion}\n",
+            paint(colour, "1;32", "write instead:")
         ));
     }
     out
