@@ -363,7 +363,140 @@ fn toml_number(value: &DeValue<'_>) -> Option<f64> {
     }
 }
 
+/// TOML files at least this large are parsed in pieces when that is safe (see
+/// [`read_toml_in_pieces`]).
+const PIECEWISE_FROM_BYTES: usize = 1 << 20;
+
+/// Couples per piece of a piecewise parse.
+const COUPLES_PER_PIECE: usize = 1024;
+
 fn read_toml(text: &str) -> CoupleFile {
+    if text.len() >= PIECEWISE_FROM_BYTES {
+        if let Some(file) = read_toml_in_pieces(text) {
+            return file;
+        }
+    }
+    read_toml_whole(text)
+}
+
+/// Whether a line (leading spaces removed) is exactly a `[[couple]]` header, perhaps with a
+/// comment after it.
+fn is_couple_header(line: &str) -> bool {
+    line.strip_prefix("[[couple]]")
+        .is_some_and(|rest| rest.trim().is_empty() || rest.trim_start().starts_with('#'))
+}
+
+/// Parses a large file a thousand couples at a time. The TOML parser holds about twenty times
+/// the text it parses (tokens, tables, maps); piece by piece, a 31 MiB file needs that only for
+/// one piece. Done only when the pieces are certain to be the file's own tables: no multi-line
+/// strings, every line that starts with `[` a plain `[[couple]]` header, and every piece free
+/// of syntax errors; otherwise (`None`) the whole file is parsed at once, so that errors are
+/// reported exactly as the parser sees them.
+fn read_toml_in_pieces(text: &str) -> Option<CoupleFile> {
+    if text.contains("'''") || text.contains("\"\"\"") {
+        return None;
+    }
+    let mut headers = Vec::new();
+    let mut offset = 0;
+    for line in text.split_inclusive('\n') {
+        let trimmed = line.trim_start();
+        if trimmed.starts_with('[') {
+            if !is_couple_header(trimmed) {
+                return None;
+            }
+            headers.push(offset);
+        }
+        offset += line.len();
+    }
+    let mut bounds: Vec<usize> = std::iter::once(0)
+        .chain(
+            headers
+                .iter()
+                .copied()
+                .skip(COUPLES_PER_PIECE)
+                .step_by(COUPLES_PER_PIECE),
+        )
+        .collect();
+    bounds.push(text.len());
+    let mut file = read_toml_whole("");
+    for piece in bounds.windows(2) {
+        let (start, end) = (piece[0], piece[1]);
+        let part = read_toml_whole(&text[start..end]);
+        if part.problems.iter().any(|p| p.kind == ProblemKind::Syntax) {
+            return None;
+        }
+        let first_record = file.records.len();
+        file.records
+            .extend(part.records.into_iter().map(|mut record| {
+                record.shift(start, first_record);
+                record
+            }));
+        file.problems
+            .extend(part.problems.into_iter().map(|mut problem| {
+                problem.span = problem.span.shifted(start);
+                problem.record = problem.record.map(|r| r + first_record);
+                problem
+            }));
+        file.unknown_keys
+            .extend(part.unknown_keys.into_iter().map(|mut key| {
+                key.shift(start);
+                key
+            }));
+    }
+    Some(file)
+}
+
+impl CoupleRecord {
+    /// Moves every span by `offset` bytes and the index by `first_index`: the record was read
+    /// from a piece of the file starting at `offset`, after `first_index` couples.
+    fn shift(&mut self, offset: usize, first_index: usize) {
+        self.index += first_index;
+        self.span = self.span.shifted(offset);
+        for field in [
+            &mut self.id,
+            &mut self.reaction,
+            &mut self.medium,
+            &mut self.source,
+            &mut self.note,
+        ]
+        .into_iter()
+        .flatten()
+        {
+            field.shift(offset);
+        }
+        for field in [&mut self.e0_volts, &mut self.dedt_millivolts_per_kelvin]
+            .into_iter()
+            .flatten()
+        {
+            field.shift(offset);
+        }
+        for key in &mut self.unknown_keys {
+            key.shift(offset);
+        }
+    }
+}
+
+impl<T> Field<T> {
+    fn shift(&mut self, offset: usize) {
+        self.span = self.span.shifted(offset);
+        self.content_start = self.content_start.map(|start| start + offset);
+        for (_, file) in &mut self.escapes {
+            *file += offset;
+        }
+    }
+}
+
+trait Shifted {
+    fn shifted(self, offset: usize) -> Self;
+}
+
+impl Shifted for Span {
+    fn shifted(self, offset: usize) -> Span {
+        Span::new(self.start + offset, self.end + offset)
+    }
+}
+
+fn read_toml_whole(text: &str) -> CoupleFile {
     let mut file = CoupleFile {
         format: FileFormat::Toml,
         // The caller stores the text it owns.
@@ -880,6 +1013,29 @@ mod tests {
         let file = CoupleFile::from_bytes(b"[[couple]]\nid = \"\xff\"\n", FileFormat::Toml);
         assert_eq!(file.problems[0].kind, ProblemKind::Syntax);
         assert_eq!(file.problems[0].span.start, 17);
+    }
+
+    #[test]
+    fn a_large_file_read_in_pieces_reads_like_the_whole() {
+        // Invented entries, enough for several pieces; one escape, one wrong type, one
+        // unknown key, so that every kind of span is shifted.
+        let mut text = String::from("# invented\ntitle = \"t\"\n");
+        let mut k = 0;
+        while text.len() < PIECEWISE_FROM_BYTES + 200_000 {
+            let e0 = if k == 2500 { "\"0.8\"" } else { "0.7996" };
+            text.push_str(&format!(
+                "\n[[couple]]\nid = \"ag-{k}\"\nreaction = \"Ag+ + e- \\u002D> Ag(s)\"\ne0 = {e0}\ncolour = \"x\"\n"
+            ));
+            k += 1;
+        }
+        let pieces = read_toml_in_pieces(&text).expect("safe to read in pieces");
+        let whole = read_toml_whole(&text);
+        assert!(pieces.records.len() > 2 * COUPLES_PER_PIECE);
+        assert_eq!(pieces.records, whole.records);
+        assert_eq!(pieces.problems, whole.problems);
+        assert_eq!(pieces.unknown_keys, whole.unknown_keys);
+        // A line starting with `[` that is not a couple header: the whole file at once.
+        assert!(read_toml_in_pieces(&format!("{text}[other]\nx = 1\n")).is_none());
     }
 
     #[test]
