@@ -419,6 +419,8 @@ fn read_toml_in_pieces(text: &str) -> Option<CoupleFile> {
         .collect();
     bounds.push(text.len());
     let mut file = read_toml_whole("");
+    // Exactly as many records as headers (a doubling vector would hold up to twice that).
+    file.records.reserve_exact(headers.len());
     for piece in bounds.windows(2) {
         let (start, end) = (piece[0], piece[1]);
         let part = read_toml_whole(&text[start..end]);

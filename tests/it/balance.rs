@@ -342,6 +342,11 @@ fn a_hostile_equation_stops_at_the_work_limit_quickly() {
     // limit's timing is in benches/balance.rs.
     let text = hostile_equation(64, 70);
     assert!(text.len() <= 4096, "within the parser's input limit");
+    // The benchmarks time the same text (benches/balance.rs, benches/check.rs).
+    assert_eq!(
+        text,
+        include_str!("../data/hostile_64_species.txt").trim_end()
+    );
     let equation = parse_equation(&text).unwrap();
     let limited = BalanceOptions {
         work_limit: 300_000,
