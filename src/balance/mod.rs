@@ -26,8 +26,9 @@
 //! Exact arithmetic on hostile input (dozens of species with six-digit subscripts) can take
 //! minutes. Every balance is metered ([`matrix::WorkMeter`]; one unit is about one 64-bit
 //! multiply) and stops with [`BalanceError::Limit`] (kind `limit`) past
-//! [`BalanceOptions::work_limit`], by default [`DEFAULT_WORK_LIMIT`]. Published equations use
-//! a few thousand units; the default bound is reached in well under a second.
+//! [`BalanceOptions::work_limit`], by default [`DEFAULT_WORK_LIMIT`]. The hardest published
+//! equation of the test corpus uses under a thousand units; the default bound is reached in
+//! well under a second.
 //!
 //! ```
 //! use couplet::balance::{BalanceOptions, Medium, balance};
@@ -363,7 +364,7 @@ pub enum BalanceError {
     },
     /// The exact arithmetic needed more work than [`BalanceOptions::work_limit`] allows.
     #[error(
-        "work limit: balancing this equation needs more than {limit} units of exact arithmetic (the coefficients grow too large); split it into smaller equations or raise the limit"
+        "work limit: balancing this equation needs more than {limit} units of exact arithmetic (its numbers grow too large); the limit keeps every run short: check the formulas, or split the equation"
     )]
     Limit {
         /// The limit that was reached.

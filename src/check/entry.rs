@@ -602,7 +602,7 @@ impl Suggestion {
             ),
             Suggestion::BudgetSpent => (
                 format!(
-                    "{message} (no suggestion: this check has spent its balancing budget on earlier entries)"
+                    "{message} (no suggestion: this check has spent its balancing budget on other entries)"
                 ),
                 None,
                 None,

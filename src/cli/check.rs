@@ -139,12 +139,13 @@ pub fn run(args: &CheckArgs) -> u8 {
     // Written piece by piece: a report of a million findings is never held whole. A closed
     // pipe (`| head`) is not an error of the check: stop writing quietly.
     let stdout = std::io::stdout();
-    let colour =
-        if stdout.is_terminal() && !std::env::var_os("NO_COLOR").is_some_and(|v| !v.is_empty()) {
-            Colour::Always
-        } else {
-            Colour::Never
-        };
+    // NO_COLOR set to anything but the empty string turns colour off.
+    let colour_allowed = std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty());
+    let colour = if stdout.is_terminal() && colour_allowed {
+        Colour::Always
+    } else {
+        Colour::Never
+    };
     let mut out = std::io::BufWriter::new(stdout.lock());
     let _ = match args.format.as_str() {
         "json" => output::write_json(&report, &mut out),
