@@ -498,8 +498,13 @@ fn check_chemistry(
             (
                 Rule::ChargeNotConserved,
                 format!(
-                    "charge not conserved: the right side carries {} more than the left",
-                    imbalance.charge
+                    "charge not conserved: the right side carries {} {} than the left",
+                    imbalance.charge.abs(),
+                    if imbalance.charge.is_negative() {
+                        "less"
+                    } else {
+                        "more"
+                    }
                 ),
             )
         } else {

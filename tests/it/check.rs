@@ -657,6 +657,14 @@ fn a_fix_never_changes_the_electrons_of_the_oxidant() {
     let report = report_of(text, FileFormat::Toml, &CheckOptions::default());
     let finding = &report.findings[0];
     assert_eq!(finding.rule.code(), "CPL202");
+    // Left +3 - 1 = +2, right 0.
+    assert!(
+        finding
+            .message
+            .starts_with("charge not conserved: the right side carries 2 less than the left"),
+        "{}",
+        finding.message
+    );
     assert_eq!(finding.suggestion.as_deref(), Some("Fe3+ + 3 e- -> Fe"));
     assert!(finding.fix.is_none());
     assert!(
