@@ -154,7 +154,7 @@ pub fn json(report: &Report) -> Value {
     json!({ "diagnostics": diagnostics, "summary": report.summary() })
 }
 
-/// As [`json`], on one line followed by a newline, written diagnostic by diagnostic to `out`
+/// As [`json()`], on one line followed by a newline, written diagnostic by diagnostic to `out`
 /// (the whole report is never held as a JSON tree).
 pub fn write_json(report: &Report, out: &mut dyn Write) -> std::io::Result<()> {
     out.write_all(b"{\"diagnostics\":[")?;
