@@ -66,15 +66,18 @@ fn balancing(c: &mut Criterion) {
     });
     // 64 species with six-digit subscripts (tests/data/hostile_64_species.txt): the default
     // work limit must end it quickly with a limit error.
-    let hostile = parse_equation(include_str!("../tests/data/hostile_64_species.txt").trim_end())
-        .unwrap();
+    let hostile =
+        parse_equation(include_str!("../tests/data/hostile_64_species.txt").trim_end()).unwrap();
     group.sample_size(10);
-    group.bench_function("hostile 64 species, stopped at the default work limit", |b| {
-        b.iter(|| {
-            let error = balance(black_box(&hostile), &none).unwrap_err();
-            assert_eq!(error.kind(), "limit");
-        })
-    });
+    group.bench_function(
+        "hostile 64 species, stopped at the default work limit",
+        |b| {
+            b.iter(|| {
+                let error = balance(black_box(&hostile), &none).unwrap_err();
+                assert_eq!(error.kind(), "limit");
+            })
+        },
+    );
     group.sample_size(100);
     group.throughput(Throughput::Elements(BATCH.len() as u64));
     group.bench_function("batch mix, text to balanced", |b| {
