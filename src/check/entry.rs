@@ -42,7 +42,8 @@ pub struct JudgedEntry {
     pub record: usize,
     /// The id and where it was written.
     pub id: Option<(String, Span)>,
-    /// The reaction, when it is a balanced reduction.
+    /// The reaction, when it is a balanced reduction with a usable e0 (what the table-wide
+    /// checks compare).
     pub reduction: Option<Reaction>,
     /// e0 in volts when present and finite, with its span.
     pub e0_volts: Option<(f64, Span)>,
@@ -350,7 +351,9 @@ fn check_record(
         file: file_index,
         record: record.index,
         id: record.id.as_ref().map(|f| (f.value.clone(), f.span)),
-        reduction,
+        // The table-wide checks compare potentials: a reaction without a usable e0 takes no
+        // part in them, so it is not kept (a parsed reaction is the largest part of an entry).
+        reduction: reduction.filter(|_| e0_volts.is_some()),
         e0_volts,
         span: record.span,
     };
