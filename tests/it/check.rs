@@ -994,3 +994,62 @@ fn nothing_to_check_is_said_and_can_be_made_to_fail() {
     let json: Value = serde_json::from_str(&stdout).unwrap();
     assert_eq!(json["summary"]["files"], 0);
 }
+
+// ---- mangled files: no panic, every finding inside the file ----
+
+/// Invented entries in both formats, with a comment, CRLF and a quoted field, to mangle.
+const MANGLE_TOML: &str = "# invented\n[[couple]]\nid = \"mn\"\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\"\ne0 = 1.51\nmedium = 'acid'\nsource = \"x\"\n\n[[couple]]\nreaction = 'Cu2+ -> Cu'\ne0 = 0.34\n";
+const MANGLE_CSV: &str = "# invented\r\nid,reaction,e0,source\r\n\r\nmn,\"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\",1.51,x\r\ncu,Cu2+ -> Cu,0.34,\"a, b\"\r\n";
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(200))]
+
+    #[test]
+    fn mangled_couple_files_give_findings_inside_the_file(
+        csv in proptest::prelude::any::<bool>(),
+        edits in proptest::collection::vec(
+            (0usize..400, proptest::sample::select(vec![
+                "", "\"", "'", ",", "\n", "\r\n", "#", "[[couple]]\n", "[", "=", "\\", "é", "e-", " + ", "->", "0",
+            ])),
+            1..6,
+        ),
+    ) {
+        let (mut text, format) = if csv {
+            (MANGLE_CSV.to_owned(), FileFormat::Csv)
+        } else {
+            (MANGLE_TOML.to_owned(), FileFormat::Toml)
+        };
+        for (at, insert) in edits {
+            let mut at = at % (text.len() + 1);
+            while !text.is_char_boundary(at) {
+                at -= 1;
+            }
+            // An empty insert deletes the character there instead.
+            if insert.is_empty() {
+                if let Some(c) = text[at..].chars().next() {
+                    text.replace_range(at..at + c.len_utf8(), "");
+                }
+            } else {
+                text.insert_str(at, insert);
+            }
+        }
+        let report = report_of(&text, format, &CheckOptions::default());
+        for finding in &report.findings {
+            proptest::prop_assert!(finding.span.start <= finding.span.end);
+            proptest::prop_assert!(finding.span.end <= text.len(), "{:?} in {:?}", finding, text);
+        }
+        // A fix either reads back as intended or is refused; it never panics.
+        let fixes = report.fixes_for(0);
+        if !fixes.is_empty() {
+            if let Ok(fixed) = couplet::check::fix::apply(&report.files[0].file, &fixes) {
+                let again = CoupleFile::from_text(&fixed, format);
+                proptest::prop_assert_eq!(again.records.len(), report.files[0].file.records.len());
+            }
+        }
+        // Every rendering works on whatever was found.
+        let _ = couplet::check::output::human(&report, couplet::check::output::Colour::Never);
+        let mut sarif = Vec::new();
+        couplet::check::output::write_sarif(&report, &mut sarif).unwrap();
+        proptest::prop_assert!(serde_json::from_slice::<Value>(&sarif).is_ok());
+    }
+}
