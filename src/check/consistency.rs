@@ -207,13 +207,29 @@ pub fn check_table(
     let mut link_names: Vec<&String> = links.keys().collect();
     link_names.sort();
     let mut seen: HashSet<[usize; 3]> = HashSet::new();
-    for name in link_names {
+    let mut pairs = 0usize;
+    'links: for name in link_names {
         let members = &links[name];
         if members.len() > MAX_COUPLES_PER_LINK {
             continue;
         }
         for (a, &i) in members.iter().enumerate() {
             for &j in &members[a + 1..] {
+                if pairs == options.additivity_pair_limit {
+                    let entry = couples[i].entry;
+                    findings.push(Finding {
+                        rule: Rule::AdditivityCutShort,
+                        file: entry.file,
+                        span: Span::new(entry.span.start, entry.span.start + 1),
+                        message: format!(
+                            "the additivity check stopped after {pairs} pairs of couples (its limit); couples linked through {name} and later links were not all compared"
+                        ),
+                        suggestion: None,
+                        fix: None,
+                    });
+                    break 'links;
+                }
+                pairs += 1;
                 let (first, second) = (&couples[i], &couples[j]);
                 let shared = first
                     .reaction

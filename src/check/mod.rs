@@ -59,7 +59,14 @@ pub struct CheckOptions {
     /// Units one reaction's suggestion may use (by default the balancer's own
     /// [`crate::balance::DEFAULT_WORK_LIMIT`]); past it the finding says so.
     pub reaction_work_limit: u64,
+    /// Most pairs of linked couples the additivity check (CPL403) compares; past it the check
+    /// stops with a CPL405 warning. Pairs grow with the square of the couples sharing a
+    /// species, so without a bound a large table could keep a CI job busy for minutes.
+    pub additivity_pair_limit: usize,
 }
+
+/// The default [`CheckOptions::additivity_pair_limit`]: two million pairs, a few seconds.
+pub const DEFAULT_ADDITIVITY_PAIRS: usize = 2_000_000;
 
 /// The default [`CheckOptions::work_limit`]: ten reactions at the balancer's own limit, about
 /// 1.5 s on the project's build machine however hostile the files are.
@@ -100,6 +107,7 @@ impl Default for CheckOptions {
             oxidation_number_change: Some(crate::oxidation::oxidation_number_electrons),
             work_limit: DEFAULT_CHECK_WORK_LIMIT,
             reaction_work_limit: crate::balance::DEFAULT_WORK_LIMIT,
+            additivity_pair_limit: DEFAULT_ADDITIVITY_PAIRS,
         }
     }
 }

@@ -68,11 +68,13 @@ pub enum Rule {
     AdditivityViolated,
     /// A couple without `source`.
     MissingSource,
+    /// The additivity check stopped at its limit of pairs before comparing every pair.
+    AdditivityCutShort,
 }
 
 impl Rule {
     /// Every rule, in code order.
-    pub const ALL: [Rule; 22] = [
+    pub const ALL: [Rule; 23] = [
         Rule::FileSyntax,
         Rule::WrongType,
         Rule::MissingReaction,
@@ -95,6 +97,7 @@ impl Rule {
         Rule::ConflictingPotentials,
         Rule::AdditivityViolated,
         Rule::MissingSource,
+        Rule::AdditivityCutShort,
     ];
 
     /// The stable code, e.g. `CPL201`.
@@ -246,6 +249,12 @@ impl Rule {
                 "missing-source",
                 Warning,
                 "every couple names the publication its value was read in",
+            ),
+            Rule::AdditivityCutShort => (
+                "CPL405",
+                "additivity-cut-short",
+                Warning,
+                "the additivity check compared every pair of linked couples (it stops at a documented number of pairs so that a check stays bounded)",
             ),
         }
     }
