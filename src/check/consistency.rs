@@ -193,11 +193,23 @@ pub fn check_table(
     }
 
     // Links: species (other than e-, H+, OH-, H2O) to the couples they appear in.
+    // Each couple's species keys, made once: the pair loop below looks them up millions of
+    // times.
+    let species_keys: Vec<Vec<String>> = couples
+        .iter()
+        .map(|c| {
+            c.reaction
+                .entries()
+                .iter()
+                .map(|e| species_key(&e.species))
+                .collect()
+        })
+        .collect();
     let mut links: HashMap<String, Vec<usize>> = HashMap::new();
     for (index, couple) in couples.iter().enumerate() {
-        for e in couple.reaction.entries() {
+        for (e, key) in couple.reaction.entries().iter().zip(&species_keys[index]) {
             if !is_solvent_or_electron(&e.species) {
-                let list = links.entry(species_key(&e.species)).or_default();
+                let list = links.entry(key.clone()).or_default();
                 if list.last() != Some(&index) {
                     list.push(index);
                 }
@@ -231,23 +243,26 @@ pub fn check_table(
                 }
                 pairs += 1;
                 let (first, second) = (&couples[i], &couples[j]);
-                let shared = first
-                    .reaction
-                    .entries()
-                    .iter()
-                    .find(|e| species_key(&e.species) == *name);
-                let other = second
-                    .reaction
-                    .entries()
-                    .iter()
-                    .find(|e| species_key(&e.species) == *name);
-                let (Some(shared), Some(other)) = (shared, other) else {
+                let find = |couple: usize| {
+                    couples[couple]
+                        .reaction
+                        .entries()
+                        .iter()
+                        .zip(&species_keys[couple])
+                        .find(|(_, key)| *key == name)
+                        .map(|(e, _)| e)
+                };
+                let (Some(shared), Some(other)) = (find(i), find(j)) else {
                     continue;
                 };
                 let factor = -(&shared.nu / &other.nu);
-                let combined = first.reaction.plus(&second.reaction.scaled(&factor));
+                // A combination without electrons is no couple: known before building it.
                 let electrons = &first.electrons + &factor * &second.electrons;
-                if electrons.is_zero() || !combined.imbalance().is_balanced() {
+                if electrons.is_zero() {
+                    continue;
+                }
+                let combined = first.reaction.plus(&second.reaction.scaled(&factor));
+                if !combined.imbalance().is_balanced() {
                     continue;
                 }
                 let Some(key) = couple_key(&combined) else {
