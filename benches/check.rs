@@ -79,6 +79,20 @@ fn bench(c: &mut Criterion) {
             black_box(report.findings.len())
         })
     });
+    // Three entries of 64 species with six-digit subscripts (under 6 KB): each suggestion is
+    // stopped at the balancer's work limit.
+    let reaction = include_str!("../tests/data/hostile_64_species.txt").trim_end();
+    let hostile: String = (0..3)
+        .map(|i| {
+            format!("[[couple]]\nid = \"h{i}\"\nreaction = \"{reaction}\"\ne0 = 0.1\nsource = \"invented\"\n")
+        })
+        .collect();
+    group.bench_function("three hostile entries, default work limits", |b| {
+        b.iter(|| {
+            let file = SourceFile::new("h.toml", CoupleFile::from_text(&hostile, FileFormat::Toml));
+            black_box(check(vec![file], &CheckOptions::default()).findings.len())
+        })
+    });
     group.finish();
     let file = SourceFile::new("gen.toml", CoupleFile::from_text(&text, FileFormat::Toml));
     let report = check(vec![file], &CheckOptions::default());

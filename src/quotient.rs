@@ -137,10 +137,26 @@ const NEUTRAL_SOLUTES: &[&str] = &[
     "H3AsO3", "H3BO3", "H2S", "HCN", "HF", "HCOOH", "CH3OH", "H2C2O4", "HOCl", "HOBr", "HOI",
 ];
 
-/// The phase of a species and, when no state label was written, the sentence saying what was
-/// assumed.
-pub fn phase_of(species: &Species) -> (Phase, Option<String>) {
-    let name = species.ascii();
+/// Why an unlabelled species was given its phase.
+#[derive(Clone, Copy)]
+enum Assumed {
+    Water,
+    Ion,
+    GasElement,
+    LiquidElement,
+    SolidElement,
+    NeutralSolute,
+    NeutralCompound,
+}
+
+/// The phase of a species: its state label, or for an unlabelled species the documented
+/// default. This is the one rule of state defaults: Q, the cell engine and the data-file
+/// checker's couple matching (`Fe` is `Fe(s)`, `Cu2+` is `Cu2+(aq)`) all use it.
+pub fn phase(species: &Species) -> Phase {
+    classify(species).0
+}
+
+fn classify(species: &Species) -> (Phase, Option<Assumed>) {
     match species.state {
         Some(State::Solid | State::Crystal) => return (Phase::Solid, None),
         Some(State::Gas) => return (Phase::Gas, None),
@@ -150,43 +166,22 @@ pub fn phase_of(species: &Species) -> (Phase, Option<String>) {
         None => {}
     }
     if is_water(species) {
-        return (
-            Phase::Solvent,
-            Some(format!("{name} taken as the solvent (liquid water)")),
-        );
+        return (Phase::Solvent, Some(Assumed::Water));
     }
     if species.charge() != 0 {
-        return (
-            Phase::Solute,
-            Some(format!("{name} taken as a dissolved (aqueous) ion")),
-        );
+        return (Phase::Solute, Some(Assumed::Ion));
     }
     let counts = species.composition.counts();
     if counts.len() == 1 && species.composition.is_integral() {
         let (element, count) = counts[0];
         let symbol = element.symbol();
         if GAS_ELEMENTS.contains(&(symbol, count)) {
-            return (
-                Phase::Gas,
-                Some(format!(
-                    "{name} taken as a gas (its element's standard state)"
-                )),
-            );
+            return (Phase::Gas, Some(Assumed::GasElement));
         }
         if (symbol == "Br" && count == 2) || (symbol == "Hg" && count == 1) {
-            return (
-                Phase::PureLiquid,
-                Some(format!(
-                    "{name} taken as a pure liquid (its element's standard state)"
-                )),
-            );
+            return (Phase::PureLiquid, Some(Assumed::LiquidElement));
         }
-        return (
-            Phase::Solid,
-            Some(format!(
-                "{name} taken as a solid (its element's standard state)"
-            )),
-        );
+        return (Phase::Solid, Some(Assumed::SolidElement));
     }
     let bare = Species {
         state: None,
@@ -194,17 +189,33 @@ pub fn phase_of(species: &Species) -> (Phase, Option<String>) {
         ..species.clone()
     };
     if NEUTRAL_SOLUTES.contains(&bare.ascii().as_str()) {
-        return (
-            Phase::Solute,
-            Some(format!("{name} taken as a dissolved neutral molecule")),
-        );
+        return (Phase::Solute, Some(Assumed::NeutralSolute));
     }
-    (
-        Phase::Solid,
-        Some(format!(
+    (Phase::Solid, Some(Assumed::NeutralCompound))
+}
+
+/// The phase of a species ([`phase`]) and, when no state label was written, the sentence
+/// saying what was assumed.
+pub fn phase_of(species: &Species) -> (Phase, Option<String>) {
+    let (phase, default) = classify(species);
+    let Some(default) = default else {
+        return (phase, None);
+    };
+    let name = species.ascii();
+    let sentence = match default {
+        Assumed::Water => format!("{name} taken as the solvent (liquid water)"),
+        Assumed::Ion => format!("{name} taken as a dissolved (aqueous) ion"),
+        Assumed::GasElement => format!("{name} taken as a gas (its element's standard state)"),
+        Assumed::LiquidElement => {
+            format!("{name} taken as a pure liquid (its element's standard state)")
+        }
+        Assumed::SolidElement => format!("{name} taken as a solid (its element's standard state)"),
+        Assumed::NeutralSolute => format!("{name} taken as a dissolved neutral molecule"),
+        Assumed::NeutralCompound => format!(
             "{name} taken as a pure solid (a neutral compound with no state label); write {name}(aq) or {name}(g) otherwise"
-        )),
-    )
+        ),
+    };
+    (phase, Some(sentence))
 }
 
 impl Quotient {

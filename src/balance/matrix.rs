@@ -7,6 +7,11 @@
 //! overflow, the whole elimination restarts in `BigInt`. Published hard equations reach
 //! coefficients in the thousands, and their intermediate values do overflow 64 bits, so the
 //! fallback is a real path, not a formality (it is tested against the big-integer path).
+//!
+//! Work is metered ([`WorkMeter`]): one unit is about one product of two 64-bit words, so a
+//! product of an `a`-word and a `b`-word big integer costs `a·b` units. Hostile input (dozens of
+//! species with six-digit subscripts) makes the entries grow to hundreds of digits; the meter
+//! stops such an elimination at a documented bound instead of letting it run for minutes.
 
 use num_bigint::BigInt;
 use num_integer::Integer;
@@ -88,8 +93,66 @@ impl IntegerMatrix {
     }
 }
 
+/// A budget of elimination work, in units of about one 64-bit multiply (see the module
+/// documentation). Every metered computation charges it and stops once it is spent.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct WorkMeter {
+    used: u64,
+    limit: u64,
+}
+
+/// The work budget was spent before the computation finished.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct WorkLimitReached {
+    /// The budget that was spent.
+    pub limit: u64,
+}
+
+impl WorkMeter {
+    /// A meter allowing `limit` units.
+    pub fn new(limit: u64) -> WorkMeter {
+        WorkMeter { used: 0, limit }
+    }
+
+    /// Units charged so far (at most the limit, plus the last charge that crossed it).
+    pub fn used(&self) -> u64 {
+        self.used
+    }
+
+    /// The budget.
+    pub fn limit(&self) -> u64 {
+        self.limit
+    }
+
+    /// Charges `units`; an error once the total passes the limit.
+    pub fn charge(&mut self, units: u64) -> Result<(), WorkLimitReached> {
+        self.used = self.used.saturating_add(units);
+        if self.used > self.limit {
+            Err(WorkLimitReached { limit: self.limit })
+        } else {
+            Ok(())
+        }
+    }
+}
+
+/// Why an elimination in one ring stopped.
+enum Stop {
+    /// A value does not fit the ring: try a wider one.
+    Overflow,
+    /// The work budget is spent.
+    Limit(WorkLimitReached),
+}
+
+impl From<WorkLimitReached> for Stop {
+    fn from(reached: WorkLimitReached) -> Stop {
+        Stop::Limit(reached)
+    }
+}
+
 /// The integers elimination can run in: checked machine integers or big integers.
 trait Ring: Clone {
+    /// Size in 64-bit words, for the work meter (1 for machine integers).
+    fn words(&self) -> u64;
     /// `None` when the value does not fit.
     fn from_i128(value: i128) -> Option<Self>;
     fn zero_value() -> Self;
@@ -109,6 +172,9 @@ trait Ring: Clone {
 macro_rules! machine_ring {
     ($int:ty) => {
         impl Ring for $int {
+            fn words(&self) -> u64 {
+                1
+            }
             fn from_i128(value: i128) -> Option<Self> {
                 <$int>::try_from(value).ok()
             }
@@ -146,6 +212,9 @@ machine_ring!(i64);
 machine_ring!(i128);
 
 impl Ring for BigInt {
+    fn words(&self) -> u64 {
+        self.bits() / 64 + 1
+    }
     fn from_i128(value: i128) -> Option<Self> {
         Some(BigInt::from(value))
     }
@@ -189,7 +258,10 @@ pub struct RowEchelon {
     used_big_integers: bool,
 }
 
-fn eliminate<T: Ring>(matrix: &IntegerMatrix) -> Option<(Vec<Vec<T>>, Vec<usize>)> {
+fn eliminate<T: Ring>(
+    matrix: &IntegerMatrix,
+    meter: &mut WorkMeter,
+) -> Result<(Vec<Vec<T>>, Vec<usize>), Stop> {
     let columns = matrix.columns();
     let mut rows: Vec<Vec<T>> = (0..matrix.rows())
         .map(|r| {
@@ -197,7 +269,8 @@ fn eliminate<T: Ring>(matrix: &IntegerMatrix) -> Option<(Vec<Vec<T>>, Vec<usize>
                 .map(|c| T::from_i128(matrix.get(r, c)))
                 .collect::<Option<Vec<T>>>()
         })
-        .collect::<Option<_>>()?;
+        .collect::<Option<_>>()
+        .ok_or(Stop::Overflow)?;
     let mut pivot_columns = Vec::new();
     let mut rank = 0;
     for column in 0..columns {
@@ -207,7 +280,7 @@ fn eliminate<T: Ring>(matrix: &IntegerMatrix) -> Option<(Vec<Vec<T>>, Vec<usize>
         rows.swap(rank, found);
         if rows[rank][column].is_negative() {
             for entry in rows[rank].iter_mut() {
-                *entry = entry.negated()?;
+                *entry = entry.negated().ok_or(Stop::Overflow)?;
             }
         }
         let pivot_row = rows[rank].clone();
@@ -220,15 +293,23 @@ fn eliminate<T: Ring>(matrix: &IntegerMatrix) -> Option<(Vec<Vec<T>>, Vec<usize>
             let row_factor = pivot.div_exact(&g);
             let pivot_factor = row[column].div_exact(&g);
             let mut content = T::zero_value();
+            let mut work = 0u64;
             for (entry, pivot_entry) in row.iter_mut().zip(&pivot_row) {
-                *entry = T::mul_sub(entry, &row_factor, pivot_entry, &pivot_factor)?;
+                work +=
+                    entry.words() * row_factor.words() + pivot_entry.words() * pivot_factor.words();
+                *entry = T::mul_sub(entry, &row_factor, pivot_entry, &pivot_factor)
+                    .ok_or(Stop::Overflow)?;
+                // Euclid's gcd on w-word numbers costs about w² word operations.
+                work += entry.words() * content.words().max(entry.words());
                 content = content.gcd(entry);
             }
             if !content.is_zero() {
                 for entry in row.iter_mut() {
+                    work += entry.words() * content.words();
                     *entry = entry.div_exact(&content);
                 }
             }
+            meter.charge(work)?;
         }
         pivot_columns.push(column);
         rank += 1;
@@ -237,7 +318,7 @@ fn eliminate<T: Ring>(matrix: &IntegerMatrix) -> Option<(Vec<Vec<T>>, Vec<usize>
         }
     }
     rows.truncate(rank);
-    Some((rows, pivot_columns))
+    Ok((rows, pivot_columns))
 }
 
 fn widen<T: Ring>(rows: Vec<Vec<T>>) -> Vec<Vec<i128>> {
@@ -252,13 +333,29 @@ fn widen<T: Ring>(rows: Vec<Vec<T>>) -> Vec<Vec<i128>> {
 
 impl RowEchelon {
     /// Reduces `matrix`, in checked `i64` or `i128` when that suffices and in big integers
-    /// otherwise.
+    /// otherwise (unmetered: for matrices the caller knows to be small).
     pub fn new(matrix: &IntegerMatrix) -> RowEchelon {
-        let small = eliminate::<i64>(matrix)
-            .map(|(rows, pivots)| (widen(rows), pivots))
-            .or_else(|| eliminate::<i128>(matrix));
+        RowEchelon::new_within(matrix, &mut WorkMeter::new(u64::MAX))
+            .expect("an unlimited meter is never spent")
+    }
+
+    /// As [`RowEchelon::new`], charging `meter`; an error once its budget is spent. Work done
+    /// in a ring that then overflowed is charged too.
+    pub fn new_within(
+        matrix: &IntegerMatrix,
+        meter: &mut WorkMeter,
+    ) -> Result<RowEchelon, WorkLimitReached> {
+        let small = match eliminate::<i64>(matrix, meter) {
+            Ok((rows, pivots)) => Some((widen(rows), pivots)),
+            Err(Stop::Limit(reached)) => return Err(reached),
+            Err(Stop::Overflow) => match eliminate::<i128>(matrix, meter) {
+                Ok(done) => Some(done),
+                Err(Stop::Limit(reached)) => return Err(reached),
+                Err(Stop::Overflow) => None,
+            },
+        };
         match small {
-            Some((rows, pivot_columns)) => RowEchelon {
+            Some((rows, pivot_columns)) => Ok(RowEchelon {
                 columns: matrix.columns(),
                 rows: rows
                     .iter()
@@ -267,23 +364,34 @@ impl RowEchelon {
                 small_rows: Some(rows),
                 pivot_columns,
                 used_big_integers: false,
-            },
-            None => RowEchelon::new_big(matrix),
+            }),
+            None => RowEchelon::big_within(matrix, meter),
         }
     }
 
     /// Reduces `matrix` in big integers throughout (the reference the fast path is checked
     /// against).
     pub fn new_big(matrix: &IntegerMatrix) -> RowEchelon {
-        let (rows, pivot_columns) =
-            eliminate::<BigInt>(matrix).expect("big-integer elimination cannot overflow");
-        RowEchelon {
+        RowEchelon::big_within(matrix, &mut WorkMeter::new(u64::MAX))
+            .expect("an unlimited meter is never spent")
+    }
+
+    fn big_within(
+        matrix: &IntegerMatrix,
+        meter: &mut WorkMeter,
+    ) -> Result<RowEchelon, WorkLimitReached> {
+        let (rows, pivot_columns) = match eliminate::<BigInt>(matrix, meter) {
+            Ok(done) => done,
+            Err(Stop::Limit(reached)) => return Err(reached),
+            Err(Stop::Overflow) => unreachable!("big-integer elimination cannot overflow"),
+        };
+        Ok(RowEchelon {
             columns: matrix.columns(),
             rows,
             small_rows: None,
             pivot_columns,
             used_big_integers: true,
-        }
+        })
     }
 
     /// The rank: number of pivots.
@@ -326,6 +434,21 @@ impl RowEchelon {
             .into_iter()
             .map(|free| self.null_vector(free))
             .collect()
+    }
+
+    /// As [`RowEchelon::null_space`], charging `meter` for the big-integer work.
+    pub fn null_space_within(
+        &self,
+        meter: &mut WorkMeter,
+    ) -> Result<Vec<Vec<BigInt>>, WorkLimitReached> {
+        let mut basis = Vec::new();
+        for free in self.free_columns() {
+            let vector = self.null_vector(free);
+            let words = vector.iter().map(Ring::words).max().unwrap_or(1);
+            meter.charge((self.rank() as u64 + 1) * words * words)?;
+            basis.push(vector);
+        }
+        Ok(basis)
     }
 
     fn null_vector(&self, free: usize) -> Vec<BigInt> {
@@ -381,6 +504,85 @@ impl RowEchelon {
         }
         vector
     }
+}
+
+/// For every row `r`, an integer basis of the null space of `matrix` without row `r`, from one
+/// elimination instead of one per row.
+///
+/// The reduced form of `[A | I]` is `[E | T]` with `T·A = E` and `T` invertible. Dropping row
+/// `r` leaves the equations `A·x = t·e_r` for any `t`, that is `E·x = t·T·e_r`. When a zero
+/// row of `E` has a nonzero entry in column `r` of `T`, `t` must be 0 and the null space is
+/// that of `A`; otherwise back-substitution in `E` gives one more vector, with `t` the lcm of
+/// the pivots involved. The spans are those of the separate eliminations (bases may differ by
+/// an invertible change of basis, so callers compare spans, not vectors).
+pub fn null_spaces_without_each_row(
+    matrix: &IntegerMatrix,
+    meter: &mut WorkMeter,
+) -> Result<Vec<Vec<Vec<BigInt>>>, WorkLimitReached> {
+    let (rows, columns) = (matrix.rows(), matrix.columns());
+    let mut augmented = IntegerMatrix::zeros(rows, columns + rows);
+    for r in 0..rows {
+        for c in 0..columns {
+            augmented.set(r, c, matrix.get(r, c));
+        }
+        augmented.set(r, columns + r, 1);
+    }
+    let reduced = RowEchelon::new_within(&augmented, meter)?;
+    // Rows whose pivot lies in A's columns form the reduced form of A; the others are the
+    // zero rows of E.
+    let mut pivot_rows: Vec<(usize, &Vec<BigInt>)> = Vec::new();
+    let mut zero_rows: Vec<&Vec<BigInt>> = Vec::new();
+    for (row, &pivot) in reduced.rows.iter().zip(&reduced.pivot_columns) {
+        if pivot < columns {
+            pivot_rows.push((pivot, row));
+        } else {
+            zero_rows.push(row);
+        }
+    }
+    let own = RowEchelon {
+        columns,
+        rows: pivot_rows
+            .iter()
+            .map(|(_, row)| primitive_row(&row[..columns]))
+            .collect(),
+        small_rows: None,
+        pivot_columns: pivot_rows.iter().map(|&(p, _)| p).collect(),
+        used_big_integers: reduced.used_big_integers,
+    };
+    let null_space = own.null_space_within(meter)?;
+    let mut out = Vec::with_capacity(rows);
+    for r in 0..rows {
+        let t_column = columns + r;
+        let mut basis = null_space.clone();
+        if zero_rows.iter().all(|row| Zero::is_zero(&row[t_column])) {
+            let mut t = BigInt::from(1);
+            for (pivot, row) in &pivot_rows {
+                if !Zero::is_zero(&row[t_column]) {
+                    t = t.lcm(&row[*pivot]);
+                }
+            }
+            let mut extra = vec![BigInt::zero(); columns];
+            let mut words = t.words();
+            for (pivot, row) in &pivot_rows {
+                if !Zero::is_zero(&row[t_column]) {
+                    extra[*pivot] = &row[t_column] * (&t / &row[*pivot]);
+                    words = words.max(extra[*pivot].words());
+                }
+            }
+            meter.charge((pivot_rows.len() as u64 + 1) * words * words)?;
+            basis.push(primitive_row(&extra));
+        }
+        out.push(basis);
+    }
+    Ok(out)
+}
+
+fn primitive_row(row: &[BigInt]) -> Vec<BigInt> {
+    let content = row.iter().fold(BigInt::zero(), |g, x| Integer::gcd(&g, x));
+    if Zero::is_zero(&content) {
+        return row.to_vec();
+    }
+    row.iter().map(|x| x / &content).collect()
 }
 
 #[cfg(test)]
@@ -454,6 +656,67 @@ mod tests {
         assert!(!e.used_big_integers());
         assert_eq!(e.null_space(), RowEchelon::new_big(&m).null_space());
         assert_null_space_identities(&m, &e);
+    }
+
+    /// The span of a basis, for comparing bases that differ by a change of basis: its reduced
+    /// row echelon form.
+    fn span(basis: &[Vec<BigInt>], columns: usize) -> Vec<Vec<BigInt>> {
+        let rows: Vec<Vec<i128>> = basis
+            .iter()
+            .map(|v| v.iter().map(|x| i128::try_from(x).unwrap()).collect())
+            .collect();
+        if rows.is_empty() {
+            return Vec::new();
+        }
+        let m = IntegerMatrix::from_rows(&rows).unwrap();
+        assert_eq!(m.columns(), columns);
+        RowEchelon::new_big(&m).reduced_rows().to_vec()
+    }
+
+    #[test]
+    fn one_elimination_gives_the_null_space_without_each_row() {
+        // A wide matrix, a rank-deficient one and a square one of full rank: every row left
+        // out in turn, compared with the separate elimination.
+        let cases = [
+            matrix(&[
+                &[1, 0, 0, -1, 0, 0],
+                &[4, 0, 0, 0, 0, -1],
+                &[0, 1, 0, 0, -1, 0],
+                &[0, 0, 1, 0, 0, -2],
+                &[-1, 2, 1, -2, -3, 0],
+            ]),
+            matrix(&[&[1, 2, 3], &[2, 4, 6], &[0, 1, 1]]),
+            matrix(&[&[2, 1, 0], &[0, 3, 1], &[1, 0, 5]]),
+        ];
+        for m in cases {
+            let mut meter = WorkMeter::new(u64::MAX);
+            let all = null_spaces_without_each_row(&m, &mut meter).unwrap();
+            for (r, basis) in all.iter().enumerate() {
+                let separate = RowEchelon::new(&m.without_row(r)).null_space();
+                assert_eq!(basis.len(), separate.len(), "row {r} of {m:?}");
+                assert_eq!(span(basis, m.columns()), span(&separate, m.columns()));
+                let reduced = m.without_row(r);
+                for v in basis {
+                    assert!(reduced.times(v).iter().all(Zero::is_zero));
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn a_spent_meter_stops_the_elimination() {
+        let m = matrix(&[&[2, 1, 0, 4], &[0, 3, 1, 7], &[1, 0, 5, 9]]);
+        let mut meter = WorkMeter::new(2);
+        assert_eq!(
+            RowEchelon::new_within(&m, &mut meter),
+            Err(WorkLimitReached { limit: 2 })
+        );
+        let mut meter = WorkMeter::new(1_000);
+        assert_eq!(
+            RowEchelon::new_within(&m, &mut meter),
+            Ok(RowEchelon::new(&m))
+        );
+        assert!(meter.used() > 0);
     }
 
     #[test]

@@ -9,15 +9,26 @@
 //! Electrons belong to half-reactions only. With the default [`ElectronRule::HalfReactions`]:
 //! - an equation that contains `e-` is a half-reaction, and its `e-` is one of the user's
 //!   species (it keeps its side; none is added);
-//! - an equation without `e-` is first balanced without electrons; only when that is
-//!   impossible, and [`BalanceOptions::half_reaction_test`] says the equation is a
-//!   half-reaction, is `e-` added and the balance repeated. The rule is "exactly one element
-//!   changes oxidation state" ([`crate::oxidation::changes_one_element`], installed by
-//!   [`BalanceOptions::default`]). With no test installed, only a written `e-` makes a
-//!   half-reaction.
+//! - an equation without `e-` is first balanced without electrons; only when no electron-free
+//!   balance lets every written species take part (some element or the charge cannot close),
+//!   and [`BalanceOptions::half_reaction_test`] says the equation is a half-reaction, is `e-`
+//!   added and the balance repeated. The rule is "exactly one element changes oxidation state"
+//!   ([`crate::oxidation::changes_one_element`], installed by [`BalanceOptions::default`]).
+//!   With no test installed, only a written `e-` makes a half-reaction. When an electron-free
+//!   balance exists but puts a species across the arrow (`Fe3+ -> Fe2+ + Fe`), the equation is
+//!   a whole reaction written wrongly, and that is reported: adding `e-` would only turn it
+//!   into a family of half-reactions.
 //!
 //! [`ElectronRule::Always`] (a user saying "this is a half-reaction") adds `e-` whenever none
 //! is written; [`ElectronRule::Never`] never adds one.
+//!
+//! ## Work limit
+//! Exact arithmetic on hostile input (dozens of species with six-digit subscripts) can take
+//! minutes. Every balance is metered ([`matrix::WorkMeter`]; one unit is about one 64-bit
+//! multiply) and stops with [`BalanceError::Limit`] (kind `limit`) past
+//! [`BalanceOptions::work_limit`], by default [`DEFAULT_WORK_LIMIT`]. The hardest published
+//! equation of the test corpus uses under a thousand units; the default bound is reached in
+//! well under a second.
 //!
 //! ```
 //! use couplet::balance::{BalanceOptions, Medium, balance};
@@ -39,7 +50,7 @@ use crate::notation::{
     parse_species, render_caret,
 };
 use crate::reaction::{Reaction, same_species};
-use matrix::{IntegerMatrix, RowEchelon};
+use matrix::{IntegerMatrix, RowEchelon, WorkLimitReached, WorkMeter};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
@@ -124,7 +135,20 @@ pub struct BalanceOptions {
     /// n of a whole reaction; supplied by the oxidation-number module. Without it a whole
     /// reaction reports no electron count.
     pub electrons_transferred: Option<ElectronsTransferred>,
+    /// Most units of exact-arithmetic work one balance may use (see the module documentation);
+    /// past it the balance stops with [`BalanceError::Limit`].
+    pub work_limit: u64,
+    /// Whether an impossible balance says why (which species, which element or the charge).
+    /// Finding that out costs about one more elimination; a caller that only wants the
+    /// balance when there is one (a checker's suggestion) turns it off and gets
+    /// [`Impossible::NotExplained`].
+    pub explain_impossible: bool,
 }
+
+/// The default [`BalanceOptions::work_limit`]: 4 million units, about 0.15 s on one core of
+/// the project's build machine (DEVELOPERS.md has the measurement). The hardest equation of
+/// the published test corpus needs under a thousand.
+pub const DEFAULT_WORK_LIMIT: u64 = 4_000_000;
 
 impl Default for BalanceOptions {
     fn default() -> BalanceOptions {
@@ -133,6 +157,8 @@ impl Default for BalanceOptions {
             electrons: ElectronRule::HalfReactions,
             half_reaction_test: Some(crate::oxidation::changes_one_element),
             electrons_transferred: Some(electrons_from_oxidation_numbers),
+            work_limit: DEFAULT_WORK_LIMIT,
+            explain_impossible: true,
         }
     }
 }
@@ -257,6 +283,9 @@ pub enum Impossible {
     },
     /// Only the zero solution conserves everything, and no single quantity is to blame.
     NoBalance,
+    /// No balance lets every species take part; why was not asked for
+    /// ([`BalanceOptions::explain_impossible`] off).
+    NotExplained,
 }
 
 fn species_list(species: &[Species]) -> String {
@@ -298,6 +327,9 @@ impl fmt::Display for Impossible {
             Impossible::NoBalance => {
                 f.write_str("no nonzero coefficients conserve every element and the charge")
             }
+            Impossible::NotExplained => f.write_str(
+                "no balance lets every written species take part (the reason was not worked out)",
+            ),
         }
     }
 }
@@ -330,6 +362,14 @@ pub enum BalanceError {
         /// Where the second one was written.
         span: Span,
     },
+    /// The exact arithmetic needed more work than [`BalanceOptions::work_limit`] allows.
+    #[error(
+        "work limit: balancing this equation needs more than {limit} units of exact arithmetic (its numbers grow too large); the limit keeps every run short: check the formulas, or split the equation"
+    )]
+    Limit {
+        /// The limit that was reached.
+        limit: u64,
+    },
     /// The result failed the independent recount: a bug, never an answer.
     #[error("internal error: the result {0} failed the recount of atoms and charge")]
     Internal(String),
@@ -350,6 +390,7 @@ impl BalanceError {
             BalanceError::NotUnique { .. } => "not_unique",
             BalanceError::Impossible(_) => "impossible",
             BalanceError::Repeated { .. } => "syntax",
+            BalanceError::Limit { .. } => "limit",
             BalanceError::Internal(_) => "internal",
         }
     }
@@ -400,6 +441,25 @@ pub fn balance(
     equation: &Equation,
     options: &BalanceOptions,
 ) -> Result<BalancedReaction, BalanceError> {
+    balance_counting(equation, options).0
+}
+
+/// As [`balance`], also returning the units of work used (for callers that share one budget
+/// across many balances, such as the data-file checker).
+pub fn balance_counting(
+    equation: &Equation,
+    options: &BalanceOptions,
+) -> (Result<BalancedReaction, BalanceError>, u64) {
+    let mut meter = WorkMeter::new(options.work_limit);
+    let result = balance_metered(equation, options, &mut meter);
+    (result, meter.used())
+}
+
+fn balance_metered(
+    equation: &Equation,
+    options: &BalanceOptions,
+    meter: &mut WorkMeter,
+) -> Result<BalancedReaction, BalanceError> {
     let written: Vec<(&Species, i8)> = equation
         .reactants
         .iter()
@@ -415,27 +475,102 @@ pub fn balance(
         }
     }
     let electrons_written = equation.has_electrons();
-    let reaction = match options.electrons {
-        ElectronRule::Never => solve(&written, options.medium, false),
-        ElectronRule::Always => solve(&written, options.medium, !electrons_written),
+    let solved = match options.electrons {
+        ElectronRule::Never => solve(&written, options.medium, false, meter),
+        ElectronRule::Always => solve(&written, options.medium, !electrons_written, meter),
         ElectronRule::HalfReactions => {
-            let plain = solve(&written, options.medium, false);
+            let plain = solve(&written, options.medium, false, meter);
+            // Electrons are added only when no electron-free balance lets every species take
+            // part: a balance that exists but crosses the arrow is a whole reaction.
             match (&plain, options.half_reaction_test) {
-                (Err(BalanceError::Impossible(_)), Some(is_half))
+                (Err(Failure::Unexplained(_)), Some(is_half))
                     if !electrons_written && is_half(equation) =>
                 {
-                    solve(&written, options.medium, true)
+                    solve(&written, options.medium, true, meter)
                 }
                 _ => plain,
             }
         }
-    }?;
+    };
+    let reaction = solved.map_err(|failure| failure.explain(options.explain_impossible, meter))?;
     let electrons_transferred = options.electrons_transferred;
     Ok(BalancedReaction {
         reaction,
         medium: options.medium,
         electrons_transferred,
     })
+}
+
+impl From<WorkLimitReached> for BalanceError {
+    fn from(reached: WorkLimitReached) -> BalanceError {
+        BalanceError::Limit {
+            limit: reached.limit,
+        }
+    }
+}
+
+/// Why a solve failed, with the explanation of an impossible balance left for when it is
+/// reported: finding the conservation row to blame costs more than the solve itself, and a
+/// failed electron-free attempt is often followed by a successful one with electrons.
+enum Failure {
+    /// Reported as it is.
+    Final(BalanceError),
+    /// No balance lets every species take part; which row is to blame is not yet known.
+    Unexplained(Unexplained),
+}
+
+struct Unexplained {
+    /// User species forced to coefficient zero (empty when only the zero balance exists).
+    never_taking_part: Vec<Species>,
+    matrix: IntegerMatrix,
+    rows: Vec<Conserved>,
+    /// The side of each column (see [`Column`]).
+    sides: Vec<i8>,
+}
+
+impl Failure {
+    fn explain(self, wanted: bool, meter: &mut WorkMeter) -> BalanceError {
+        match self {
+            Failure::Final(error) => error,
+            Failure::Unexplained(_) if !wanted => {
+                BalanceError::Impossible(Impossible::NotExplained)
+            }
+            Failure::Unexplained(unexplained) => {
+                let blamed = match blame(
+                    &unexplained.matrix,
+                    &unexplained.rows,
+                    &unexplained.sides,
+                    meter,
+                ) {
+                    Ok(blamed) => blamed,
+                    Err(reached) => return reached.into(),
+                };
+                BalanceError::Impossible(if unexplained.never_taking_part.is_empty() {
+                    match blamed {
+                        Some(what) => Impossible::CannotClose(what),
+                        None => Impossible::NoBalance,
+                    }
+                } else {
+                    Impossible::CannotTakePart {
+                        species: unexplained.never_taking_part,
+                        because_of: blamed,
+                    }
+                })
+            }
+        }
+    }
+}
+
+impl From<BalanceError> for Failure {
+    fn from(error: BalanceError) -> Failure {
+        Failure::Final(error)
+    }
+}
+
+impl From<WorkLimitReached> for Failure {
+    fn from(reached: WorkLimitReached) -> Failure {
+        Failure::Final(reached.into())
+    }
 }
 
 /// One unknown of the system: a species and the side it must end on (−1 left, +1 right, 0 for
@@ -515,15 +650,16 @@ fn sign(x: &BigInt) -> i8 {
 }
 
 /// Flips `vector` so that as many user species as possible sit on their written side (on a
-/// tie, the first user species with a nonzero entry decides).
-fn orient(vector: &mut [BigInt], columns: &[Column]) {
+/// tie, the first user species with a nonzero entry decides). `sides` holds each column's
+/// side (see [`Column`]).
+fn orient(vector: &mut [BigInt], sides: &[i8]) {
     let mut agree = 0i64;
     let mut first: Option<bool> = None;
-    for (x, column) in vector.iter().zip(columns) {
-        if column.side == 0 || x.is_zero() {
+    for (x, &side) in vector.iter().zip(sides) {
+        if side == 0 || x.is_zero() {
             continue;
         }
-        let same = sign(x) == column.side;
+        let same = sign(x) == side;
         agree += if same { 1 } else { -1 };
         first.get_or_insert(same);
     }
@@ -558,55 +694,64 @@ fn reaction_of(vector: &[BigInt], columns: &[Column]) -> Reaction {
 }
 
 /// Whether some balance exists in which every user species takes part, judged from a null
-/// space basis (used only to find what to blame).
-fn all_user_species_can_take_part(basis: &[Vec<BigInt>], columns: &[Column]) -> bool {
+/// space basis (used only to find what to blame; it depends on the span only, not on the
+/// basis chosen).
+fn all_user_species_can_take_part(basis: &[Vec<BigInt>], sides: &[i8]) -> bool {
     !basis.is_empty()
-        && columns
+        && sides
             .iter()
             .enumerate()
-            .filter(|(_, c)| c.side != 0)
+            .filter(|(_, side)| **side != 0)
             .all(|(i, _)| basis.iter().any(|v| !v[i].is_zero()))
 }
 
 /// The one conservation row without which every user species could take part. The charge is
 /// tried first (a missing `e-` is the usual cause), and a row whose removal leaves a balance
 /// with every species on its written side beats one that only lets every species take part.
-fn blame(matrix: &IntegerMatrix, rows: &[Conserved], columns: &[Column]) -> Option<Conserved> {
-    let mut order: Vec<usize> = (0..rows.len()).collect();
-    order.sort_by_key(|&r| rows[r] != Conserved::Charge);
-    let relaxed: Vec<(usize, Vec<Vec<BigInt>>)> = order
-        .into_iter()
-        .map(|r| (r, RowEchelon::new(&matrix.without_row(r)).null_space()))
-        .collect();
+/// The null spaces without each row come from one elimination
+/// ([`matrix::null_spaces_without_each_row`]), not one per row.
+fn blame(
+    matrix: &IntegerMatrix,
+    rows: &[Conserved],
+    sides: &[i8],
+    meter: &mut WorkMeter,
+) -> Result<Option<Conserved>, WorkLimitReached> {
+    let mut relaxed: Vec<(usize, Vec<Vec<BigInt>>)> =
+        matrix::null_spaces_without_each_row(matrix, meter)?
+            .into_iter()
+            .enumerate()
+            .collect();
+    // Stable: the charge first, then the elements in order of first appearance.
+    relaxed.sort_by_key(|(r, _)| rows[*r] != Conserved::Charge);
     let keeps_sides = |basis: &Vec<Vec<BigInt>>| {
-        basis.len() == 1 && all_user_species_can_take_part(basis, columns) && {
+        basis.len() == 1 && all_user_species_can_take_part(basis, sides) && {
             let mut vector = basis[0].clone();
-            orient(&mut vector, columns);
+            orient(&mut vector, sides);
             vector
                 .iter()
-                .zip(columns)
-                .all(|(x, c)| c.side == 0 || sign(x) == c.side)
+                .zip(sides)
+                .all(|(x, &side)| side == 0 || sign(x) == side)
         }
     };
-    relaxed
+    Ok(relaxed
         .iter()
         .find(|(_, basis)| keeps_sides(basis))
         .or_else(|| {
             relaxed
                 .iter()
-                .find(|(_, basis)| all_user_species_can_take_part(basis, columns))
+                .find(|(_, basis)| all_user_species_can_take_part(basis, sides))
         })
-        .map(|(r, _)| rows[*r])
+        .map(|(r, _)| rows[*r]))
 }
 
 /// How well a reaction respects the written sides: species on their side count for it, species
 /// on the wrong side count twice against it.
-fn side_score(vector: &[BigInt], columns: &[Column]) -> i64 {
+fn side_score(vector: &[BigInt], sides: &[i8]) -> i64 {
     vector
         .iter()
-        .zip(columns)
-        .filter(|(x, c)| c.side != 0 && !x.is_zero())
-        .map(|(x, c)| if sign(x) == c.side { 1 } else { -2 })
+        .zip(sides)
+        .filter(|(x, side)| **side != 0 && !x.is_zero())
+        .map(|(x, &side)| if sign(x) == side { 1 } else { -2 })
         .sum()
 }
 
@@ -623,17 +768,35 @@ fn primitive(vector: Vec<BigInt>) -> Vec<BigInt> {
 /// Rewrites a null-space basis so that each vector keeps as many user species on their written
 /// side as small combinations `a·vᵢ + b·vⱼ` (a ≠ 0, so the span is unchanged) allow: a chemist
 /// reads "these reactions, in any positive mix" far more easily than vectors with species
-/// thrown across the arrow.
-fn prefer_written_sides(basis: &mut [Vec<BigInt>], columns: &[Column]) {
+/// thrown across the arrow. The rewriting is cosmetic, so a spent meter ends it early (the
+/// basis stays a basis of the same family) instead of failing the balance.
+fn prefer_written_sides(basis: &mut [Vec<BigInt>], sides: &[i8], meter: &mut WorkMeter) {
     const MAX_A: i64 = 4;
     const MAX_B: i64 = 8;
     for i in 0..basis.len() {
         let mut best = basis[i].clone();
         let mut best_key = (
-            side_score(&best, columns),
+            side_score(&best, sides),
             std::cmp::Reverse(max_magnitude(&best)),
         );
         for j in (0..basis.len()).filter(|&j| j != i) {
+            // Each candidate: a combination, an orientation, and a gcd and a division over the
+            // vector (quadratic in the words of each entry, plus an allocation per entry).
+            let per_candidate: u64 = basis[i]
+                .iter()
+                .zip(&basis[j])
+                .map(|(x, y)| {
+                    let words = x.bits().max(y.bits()) / 64 + 2;
+                    8 * words * words
+                })
+                .sum();
+            if meter
+                .charge(per_candidate * (MAX_A * (2 * MAX_B + 1)) as u64)
+                .is_err()
+            {
+                basis[i] = best;
+                return;
+            }
             for a in 1..=MAX_A {
                 for b in -MAX_B..=MAX_B {
                     let mut candidate: Vec<BigInt> = basis[i]
@@ -641,10 +804,10 @@ fn prefer_written_sides(basis: &mut [Vec<BigInt>], columns: &[Column]) {
                         .zip(&basis[j])
                         .map(|(x, y)| x * a + y * b)
                         .collect();
-                    orient(&mut candidate, columns);
+                    orient(&mut candidate, sides);
                     let candidate = primitive(candidate);
                     let key = (
-                        side_score(&candidate, columns),
+                        side_score(&candidate, sides),
                         std::cmp::Reverse(max_magnitude(&candidate)),
                     );
                     if key > best_key {
@@ -666,38 +829,41 @@ fn solve(
     written: &[(&Species, i8)],
     medium: Medium,
     add_electrons: bool,
-) -> Result<Reaction, BalanceError> {
+    meter: &mut WorkMeter,
+) -> Result<Reaction, Failure> {
     let columns = columns(written, medium, add_electrons);
+    let sides: Vec<i8> = columns.iter().map(|c| c.side).collect();
     let (matrix, rows) = conservation_matrix(&columns);
-    let echelon = RowEchelon::new(&matrix);
-    let mut basis = echelon.null_space();
-    let impossible = |reason| Err(BalanceError::Impossible(reason));
-    if basis.is_empty() {
-        return impossible(match blame(&matrix, &rows, &columns) {
-            Some(what) => Impossible::CannotClose(what),
-            None => Impossible::NoBalance,
-        });
-    }
+    let echelon = RowEchelon::new_within(&matrix, meter)?;
+    let mut basis = echelon.null_space_within(meter)?;
     let never_taking_part: Vec<Species> = columns
         .iter()
         .enumerate()
         .filter(|(i, c)| c.side != 0 && basis.iter().all(|v| v[*i].is_zero()))
         .map(|(_, c)| c.species.clone())
         .collect();
-    if !never_taking_part.is_empty() {
-        return impossible(Impossible::CannotTakePart {
-            species: never_taking_part,
-            because_of: blame(&matrix, &rows, &columns),
-        });
+    if basis.is_empty() || !never_taking_part.is_empty() {
+        return Err(Failure::Unexplained(Unexplained {
+            // With no balance at all, no species is singled out.
+            never_taking_part: if basis.is_empty() {
+                Vec::new()
+            } else {
+                never_taking_part
+            },
+            matrix,
+            rows,
+            sides,
+        }));
     }
     for vector in basis.iter_mut() {
-        orient(vector, &columns);
+        orient(vector, &sides);
     }
     if basis.len() >= 2 {
-        prefer_written_sides(&mut basis, &columns);
+        prefer_written_sides(&mut basis, &sides, meter);
         return Err(BalanceError::NotUnique {
             basis: basis.iter().map(|v| reaction_of(v, &columns)).collect(),
-        });
+        }
+        .into());
     }
     let vector = &basis[0];
     let wrong_side: Vec<Species> = vector
@@ -708,10 +874,11 @@ fn solve(
         .collect();
     let reaction = reaction_of(vector, &columns);
     if !wrong_side.is_empty() {
-        return impossible(Impossible::WrongSide {
+        return Err(BalanceError::Impossible(Impossible::WrongSide {
             species: wrong_side,
             moved: reaction,
-        });
+        })
+        .into());
     }
     self_check(&reaction, written)?;
     Ok(reaction)

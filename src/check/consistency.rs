@@ -10,7 +10,8 @@
 
 use super::entry::JudgedEntry;
 use super::{CheckOptions, Finding, Rule, SourceFile};
-use crate::notation::{Span, Species, State, Style, species_to_string};
+use crate::notation::{Span, Species, Style, species_to_string};
+use crate::quotient::{Phase, phase};
 use crate::reaction::Reaction;
 use num_rational::BigRational;
 use num_traits::{Signed, ToPrimitive, Zero};
@@ -21,18 +22,21 @@ use std::collections::{HashMap, HashSet};
 pub const MAX_COUPLES_PER_LINK: usize = 500;
 
 /// A couple in a form that does not depend on how it was written: lowest integers, electrons on
-/// the left, species in a fixed order, `(aq)` on ions and `(l)` on water left out.
+/// the left, species in a fixed order, and each species with the phase it has in Q and in the
+/// cell engine ([`crate::quotient::phase`], the one rule of state defaults): `Fe` and `Fe(s)`
+/// are one species, `Cu2+` and `Cu2+(aq)` one, `H2O` and `H2O(l)` one, `Br2(l)` and
+/// `Br2(aq)` two.
 #[derive(Clone, Debug, PartialEq, Eq, Hash)]
 pub struct CoupleKey(String);
 
 fn species_key(species: &Species) -> String {
-    let plain = species.state.is_none()
-        || species.state == Some(State::Aqueous)
-        || (species.state == Some(State::Liquid) && species.without_state().ascii() == "H2O");
-    if plain {
-        species_to_string(&species.without_state(), Style::Ascii)
-    } else {
-        species_to_string(species, Style::Ascii)
+    let plain = species_to_string(&species.without_state(), Style::Ascii);
+    match phase(species) {
+        // Solutes and the solvent are how unlabelled ions and water are read: no tag.
+        Phase::Solute | Phase::Solvent => plain,
+        Phase::Solid => format!("{plain}(s)"),
+        Phase::PureLiquid => format!("{plain}(l)"),
+        Phase::Gas => format!("{plain}(g)"),
     }
 }
 
@@ -189,11 +193,23 @@ pub fn check_table(
     }
 
     // Links: species (other than e-, H+, OH-, H2O) to the couples they appear in.
+    // Each couple's species keys, made once: the pair loop below looks them up millions of
+    // times.
+    let species_keys: Vec<Vec<String>> = couples
+        .iter()
+        .map(|c| {
+            c.reaction
+                .entries()
+                .iter()
+                .map(|e| species_key(&e.species))
+                .collect()
+        })
+        .collect();
     let mut links: HashMap<String, Vec<usize>> = HashMap::new();
     for (index, couple) in couples.iter().enumerate() {
-        for e in couple.reaction.entries() {
+        for (e, key) in couple.reaction.entries().iter().zip(&species_keys[index]) {
             if !is_solvent_or_electron(&e.species) {
-                let list = links.entry(species_key(&e.species)).or_default();
+                let list = links.entry(key.clone()).or_default();
                 if list.last() != Some(&index) {
                     list.push(index);
                 }
@@ -203,31 +219,50 @@ pub fn check_table(
     let mut link_names: Vec<&String> = links.keys().collect();
     link_names.sort();
     let mut seen: HashSet<[usize; 3]> = HashSet::new();
-    for name in link_names {
+    let mut pairs = 0usize;
+    'links: for name in link_names {
         let members = &links[name];
         if members.len() > MAX_COUPLES_PER_LINK {
             continue;
         }
         for (a, &i) in members.iter().enumerate() {
             for &j in &members[a + 1..] {
+                if pairs == options.additivity_pair_limit {
+                    let entry = couples[i].entry;
+                    findings.push(Finding {
+                        rule: Rule::AdditivityCutShort,
+                        file: entry.file,
+                        span: Span::new(entry.span.start, entry.span.start + 1),
+                        message: format!(
+                            "the additivity check stopped after {pairs} pairs of couples (its limit); couples linked through {name} and later links were not all compared"
+                        ),
+                        suggestion: None,
+                        fix: None,
+                    });
+                    break 'links;
+                }
+                pairs += 1;
                 let (first, second) = (&couples[i], &couples[j]);
-                let shared = first
-                    .reaction
-                    .entries()
-                    .iter()
-                    .find(|e| species_key(&e.species) == *name);
-                let other = second
-                    .reaction
-                    .entries()
-                    .iter()
-                    .find(|e| species_key(&e.species) == *name);
-                let (Some(shared), Some(other)) = (shared, other) else {
+                let find = |couple: usize| {
+                    couples[couple]
+                        .reaction
+                        .entries()
+                        .iter()
+                        .zip(&species_keys[couple])
+                        .find(|(_, key)| *key == name)
+                        .map(|(e, _)| e)
+                };
+                let (Some(shared), Some(other)) = (find(i), find(j)) else {
                     continue;
                 };
                 let factor = -(&shared.nu / &other.nu);
-                let combined = first.reaction.plus(&second.reaction.scaled(&factor));
+                // A combination without electrons is no couple: known before building it.
                 let electrons = &first.electrons + &factor * &second.electrons;
-                if electrons.is_zero() || !combined.imbalance().is_balanced() {
+                if electrons.is_zero() {
+                    continue;
+                }
+                let combined = first.reaction.plus(&second.reaction.scaled(&factor));
+                if !combined.imbalance().is_balanced() {
                     continue;
                 }
                 let Some(key) = couple_key(&combined) else {
@@ -330,6 +365,13 @@ mod tests {
             key("Br2(l) + 2 e- -> 2 Br-"),
             key("Br2(aq) + 2 e- -> 2 Br-")
         );
+        // Unlabelled species take the phase Q gives them: a metal is its solid, a gaseous
+        // element its gas, liquid bromine its liquid, a neutral molecule of the solute list
+        // its solution.
+        assert_eq!(key("Cu2+ + 2 e- -> Cu"), key("Cu2+(aq) + 2 e- -> Cu(s)"));
+        assert_eq!(key("Cl2 + 2 e- -> 2 Cl-"), key("Cl2(g) + 2 e- -> 2 Cl-"));
+        assert_eq!(key("Br2 + 2 e- -> 2 Br-"), key("Br2(l) + 2 e- -> 2 Br-"));
+        assert_ne!(key("Cl2 + 2 e- -> 2 Cl-"), key("Cl2(aq) + 2 e- -> 2 Cl-"));
         assert_eq!(key("Ag+ -> Ag(s)"), None);
     }
 

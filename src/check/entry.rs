@@ -8,11 +8,15 @@
 //! - dedt within ±5 mV/K. Isothermal coefficients of tabulated couples stay within about
 //!   ±2 mV/K (from memory): a larger value is most often µV/K typed as mV/K.
 
+use super::WorkBudget;
 use super::{CheckOptions, Finding, Fix, Rule};
-use crate::balance::{BalanceOptions, ElectronRule, Medium, balance};
+use crate::balance::{
+    BalanceError, BalanceOptions, BalancedReaction, ElectronRule, Medium, balance_counting,
+};
 use crate::notation::{Equation, Span, Species, parse_equation, parse_species};
 use crate::reaction::Reaction;
 use crate::table::{CoupleFile, CoupleRecord, Field, ProblemKind};
+use num_rational::BigRational;
 use num_traits::{Signed, Zero};
 use std::sync::LazyLock;
 
@@ -38,7 +42,8 @@ pub struct JudgedEntry {
     pub record: usize,
     /// The id and where it was written.
     pub id: Option<(String, Span)>,
-    /// The reaction, when it is a balanced reduction.
+    /// The reaction, when it is a balanced reduction with a usable e0 (what the table-wide
+    /// checks compare).
     pub reduction: Option<Reaction>,
     /// e0 in volts when present and finite, with its span.
     pub e0_volts: Option<(f64, Span)>,
@@ -59,6 +64,7 @@ pub fn check_file(
     file_index: usize,
     file: &CoupleFile,
     options: &CheckOptions,
+    budget: &WorkBudget,
 ) -> (Vec<Finding>, Vec<JudgedEntry>) {
     let mut findings = Vec::new();
     let finding = |rule, span, message: String| Finding {
@@ -114,7 +120,7 @@ pub fn check_file(
         let mut findings = Vec::new();
         let mut judged = Vec::with_capacity(records.len());
         for record in records {
-            let (entry_findings, entry) = check_record(file_index, record, options);
+            let (entry_findings, entry) = check_record(file_index, record, options, budget);
             findings.extend(entry_findings);
             judged.push(entry);
         }
@@ -181,6 +187,7 @@ fn check_record(
     file_index: usize,
     record: &CoupleRecord,
     options: &CheckOptions,
+    budget: &WorkBudget,
 ) -> (Vec<Finding>, JudgedEntry) {
     let mut findings = Vec::new();
     let mut push = |rule, span, message: String, suggestion: Option<String>, fix| {
@@ -242,7 +249,7 @@ fn check_record(
             }
             Ok(equation) => {
                 let (chemistry, is_reduction) =
-                    check_chemistry(record.index, field, &equation, medium, options);
+                    check_chemistry(record.index, field, &equation, medium, options, budget);
                 for (rule, span, message, suggestion, fix) in chemistry {
                     push(rule, span, message, suggestion, fix);
                 }
@@ -344,7 +351,9 @@ fn check_record(
         file: file_index,
         record: record.index,
         id: record.id.as_ref().map(|f| (f.value.clone(), f.span)),
-        reduction,
+        // The table-wide checks compare potentials: a reaction without a usable e0 takes no
+        // part in them, so it is not kept (a parsed reaction is the largest part of an entry).
+        reduction: reduction.filter(|_| e0_volts.is_some()),
         e0_volts,
         span: record.span,
     };
@@ -368,6 +377,7 @@ fn check_chemistry(
     equation: &Equation,
     medium: Option<DeclaredMedium>,
     options: &CheckOptions,
+    budget: &WorkBudget,
 ) -> (Vec<ChemistryFinding>, bool) {
     let mut findings: Vec<ChemistryFinding> = Vec::new();
     let whole = field.span;
@@ -426,15 +436,28 @@ fn check_chemistry(
         (None, None, Some(_)) => Medium::Base,
         _ => Medium::None,
     };
-    let suggest = || {
+    let suggest = || -> Suggestion {
+        let wanted = options.reaction_work_limit;
+        let granted = budget.take(wanted);
+        if granted == 0 {
+            return Suggestion::BudgetSpent;
+        }
         let options = BalanceOptions {
             medium: balance_medium,
             electrons: ElectronRule::Always,
+            work_limit: granted,
+            // Only the balance is wanted, never why there is none.
+            explain_impossible: false,
             ..BalanceOptions::default()
         };
-        balance(equation, &options)
-            .ok()
-            .filter(|b| b.reaction().electron_nu().is_negative())
+        let (result, used) = balance_counting(equation, &options);
+        budget.give_back(granted.saturating_sub(used));
+        match result {
+            Ok(b) if b.reaction().electron_nu().is_negative() => Suggestion::Balanced(b),
+            Err(BalanceError::Limit { .. }) if granted < wanted => Suggestion::BudgetSpent,
+            Err(BalanceError::Limit { limit }) => Suggestion::TooMuchWork(limit),
+            _ => Suggestion::None,
+        }
     };
 
     let electrons = reaction.electron_nu();
@@ -442,17 +465,10 @@ fn check_chemistry(
     if electrons.is_zero() {
         // The missing electrons are also why the charge does not close: one finding, and the
         // balancer's half-reaction (electrons added) as the fix.
-        let balanced = suggest();
-        findings.push((
-            Rule::NoElectrons,
-            whole,
-            "no e- is written: a couple is a half-reaction, written as a reduction".to_owned(),
-            balanced.as_ref().map(|b| b.ascii()),
-            balanced.map(|b| Fix {
-                record: record_index,
-                reaction: b.ascii(),
-            }),
-        ));
+        let suggested = suggest();
+        let message = "no e- is written: a couple is a half-reaction, written as a reduction";
+        let (message, suggestion, fix) = suggested.into_parts(message, equation, record_index);
+        findings.push((Rule::NoElectrons, whole, message, suggestion, fix));
         return (findings, false);
     } else if electrons.is_positive() {
         is_reduction = false;
@@ -480,18 +496,18 @@ fn check_chemistry(
     };
     if let Some(imbalance) = imbalance {
         is_reduction = false;
-        let balanced = suggest();
-        let suggestion = balanced.as_ref().map(|b| b.ascii());
-        let fix = balanced.map(|b| Fix {
-            record: record_index,
-            reaction: b.ascii(),
-        });
+        let suggested = suggest();
         let (rule, message) = if imbalance.elements.is_empty() {
             (
                 Rule::ChargeNotConserved,
                 format!(
-                    "charge not conserved: the right side carries {} more than the left",
-                    imbalance.charge
+                    "charge not conserved: the right side carries {} {} than the left",
+                    imbalance.charge.abs(),
+                    if imbalance.charge.is_negative() {
+                        "less"
+                    } else {
+                        "more"
+                    }
                 ),
             )
         } else {
@@ -517,6 +533,7 @@ fn check_chemistry(
             }
             (Rule::AtomsNotConserved, message)
         };
+        let (message, suggestion, fix) = suggested.into_parts(&message, equation, record_index);
         findings.push((rule, whole, message, suggestion, fix));
     }
 
@@ -537,6 +554,101 @@ fn check_chemistry(
         }
     }
     (findings, is_reduction)
+}
+
+/// What the balancer offers for a faulty reaction.
+enum Suggestion {
+    /// A balanced reduction.
+    Balanced(BalancedReaction),
+    /// This reaction needs more than the balancer's work limit (in units).
+    TooMuchWork(u64),
+    /// The check's shared balancing budget ([`super::CheckOptions::work_limit`]) is spent.
+    BudgetSpent,
+    /// No balanced reduction (impossible, not unique, or an oxidation).
+    None,
+}
+
+impl Suggestion {
+    /// The finding's message, suggestion and fix. The balanced form is an automatic fix only
+    /// when it keeps the couple the entry is: no electrons were written (they are completed),
+    /// or the first reactant other than H+, OH- and H2O (the oxidant) takes as many electrons
+    /// per formula unit as written. Otherwise e0 may belong to another couple (`Fe3+ + e- ->
+    /// Fe` with the Fe3+/Fe2+ value), so the form is only suggested and the message says why.
+    fn into_parts(
+        self,
+        message: &str,
+        written: &Equation,
+        record: usize,
+    ) -> (String, Option<String>, Option<Fix>) {
+        match self {
+            Suggestion::Balanced(balanced) => {
+                let text = balanced.ascii();
+                match electrons_per_oxidant_changed(written, balanced.reaction()) {
+                    None => (
+                        message.to_owned(),
+                        Some(text.clone()),
+                        Some(Fix {
+                            record,
+                            reaction: text,
+                        }),
+                    ),
+                    Some((from, to)) => (
+                        format!(
+                            "{message}; not fixed automatically: the balanced form changes the electrons per oxidant from {from} to {to}, so check that e0 belongs to it"
+                        ),
+                        Some(text),
+                        None,
+                    ),
+                }
+            }
+            Suggestion::TooMuchWork(limit) => (
+                format!(
+                    "{message} (no suggestion: balancing it needs more than the work limit of {limit} units)"
+                ),
+                None,
+                None,
+            ),
+            Suggestion::BudgetSpent => (
+                format!(
+                    "{message} (no suggestion: this check has spent its balancing budget on other entries)"
+                ),
+                None,
+                None,
+            ),
+            Suggestion::None => (message.to_owned(), None, None),
+        }
+    }
+}
+
+/// When electrons were written and the balanced reaction gives the oxidant (the first
+/// reactant other than e-, H+, OH- and H2O) a different number of electrons per formula unit,
+/// the written and the balanced number.
+fn electrons_per_oxidant_changed(
+    written: &Equation,
+    balanced: &Reaction,
+) -> Option<(BigRational, BigRational)> {
+    let written_reaction = Reaction::from_equation(written);
+    let written_electrons = -written_reaction.electron_nu();
+    if written_electrons.is_zero() {
+        return None;
+    }
+    let oxidant = written
+        .reactants
+        .iter()
+        .map(|t| &t.species)
+        .find(|s| !s.is_electron() && !is_solvent_ion_or_water(s))?;
+    let per = |reaction: &Reaction, electrons: BigRational| {
+        let nu = reaction.nu(oxidant);
+        (!nu.is_zero()).then(|| electrons / -nu)
+    };
+    let before = per(&written_reaction, written_electrons)?;
+    let after = per(balanced, -balanced.electron_nu()).unwrap_or_else(BigRational::zero);
+    (before != after).then_some((before, after))
+}
+
+fn is_solvent_ion_or_water(species: &Species) -> bool {
+    let plain = species.without_state();
+    plain.kind == PROTON.kind || plain.kind == HYDROXIDE.kind || plain.ascii() == "H2O"
 }
 
 /// Whether atoms and charge are conserved, counted in i128 on the written coefficients: the

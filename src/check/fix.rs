@@ -2,6 +2,19 @@
 //! changed (TOML through toml_edit, which keeps comments, key order and formatting; CSV by
 //! replacing the one field), a unified diff for `--dry-run`, and writing every file through a
 //! temporary file that is renamed over the original only when all were written.
+//!
+//! What a fix will not do, each refused with the file named and nothing written:
+//! - overwrite a file that changed since it was read (a couple appended meanwhile would be
+//!   lost): the original is read again just before the renames and compared byte for byte;
+//! - write a read-only file;
+//! - split a hard link: renaming a new file over one name would leave the other names with
+//!   the old text, so a file with more than one link is refused (fix the file by hand, or
+//!   copy it to break the link on purpose).
+//!
+//! A symbolic link is followed: its target is fixed and the link stays a link. Temporary files
+//! are named `.<file>.couplet-fix-<random>.tmp` beside the target, so that a run killed
+//! between write and rename leaves something recognisable; such leftovers older than
+//! [`STALE_TEMPORARY`] are removed by the next fix of the same file.
 
 use super::Fix;
 use crate::table::{CoupleFile, FileFormat};
@@ -22,6 +35,28 @@ pub enum FixError {
     /// Reading the rewritten text back did not give the fixed values: nothing is written.
     #[error("the rewritten file does not read back as intended")]
     ReadBack,
+    /// The file changed after it was read; nothing was written.
+    #[error("{path}: changed while it was being fixed; run the fix again")]
+    Changed {
+        /// The file.
+        path: String,
+    },
+    /// The file is read-only; nothing was written.
+    #[error("{path}: is read-only; make it writable to fix it")]
+    ReadOnly {
+        /// The file.
+        path: String,
+    },
+    /// The file has several hard links; nothing was written.
+    #[error(
+        "{path}: has {links} hard links, and a fix would split them (the other names would keep the old text); fix it by hand"
+    )]
+    HardLinked {
+        /// The file.
+        path: String,
+        /// Its link count.
+        links: u64,
+    },
     /// Writing failed; nothing was renamed over an original.
     #[error("{path}: cannot write: {source}")]
     Write {
@@ -32,13 +67,25 @@ pub enum FixError {
     },
 }
 
-/// A reaction text as the file format writes a value: a TOML string, or a CSV field (quoted when
-/// it needs to be).
-pub fn written_value(format: FileFormat, reaction: &str) -> String {
+/// A reaction text as the file format writes a value in place of `written` (the value as it
+/// is written now, quotes included): a TOML string in the same quoting style where the text
+/// allows it (a literal `'…'` string stays literal), or a CSV field quoted when it was or
+/// needs to be.
+pub fn written_value(format: FileFormat, written: &str, reaction: &str) -> String {
     match format {
-        FileFormat::Toml => toml_edit::Value::from(reaction).to_string(),
-        FileFormat::Csv => csv_field(reaction, false),
+        FileFormat::Toml => toml_string_like(written, reaction),
+        FileFormat::Csv => csv_field(reaction, written.starts_with('"')),
     }
+}
+
+fn toml_string_like(written: &str, text: &str) -> String {
+    let literal_fits = !text.contains('\'') && !text.chars().any(|c| c.is_control() && c != '\t');
+    for quote in ["'''", "'"] {
+        if written.starts_with(quote) && literal_fits {
+            return format!("{quote}{text}{quote}");
+        }
+    }
+    toml_edit::Value::from(text).to_string()
 }
 
 fn csv_field(text: &str, was_quoted: bool) -> String {
@@ -75,7 +122,17 @@ pub fn apply(file: &CoupleFile, fixes: &[&Fix]) -> Result<String, FixError> {
 
 fn replace_keeping_decor(value: &mut toml_edit::Value, text: &str) {
     let decor = value.decor().clone();
-    let mut new = toml_edit::Value::from(text);
+    let written = match value {
+        toml_edit::Value::String(formatted) => formatted
+            .as_repr()
+            .and_then(|repr| repr.as_raw().as_str())
+            .unwrap_or("")
+            .to_owned(),
+        _ => String::new(),
+    };
+    let mut new = toml_string_like(&written, text)
+        .parse::<toml_edit::Value>()
+        .unwrap_or_else(|_| toml_edit::Value::from(text));
     *new.decor_mut() = decor;
     *value = new;
 }
@@ -149,33 +206,131 @@ pub fn unified_diff(path: &str, old: &str, new: &str) -> String {
         .to_string()
 }
 
-/// Writes every file to a temporary file beside it, then renames each over its original. When
-/// any write fails, every temporary file is removed and no original is touched.
-pub fn write_all(files: &[(PathBuf, String)]) -> Result<(), FixError> {
+/// How old a leftover temporary file of a killed fix must be before a later fix removes it
+/// (a running fix keeps its temporary file for milliseconds).
+pub const STALE_TEMPORARY: std::time::Duration = std::time::Duration::from_secs(600);
+
+/// One file to rewrite: where, the text it held when it was read, and the new text.
+#[derive(Clone, Debug)]
+pub struct Rewrite {
+    /// The path as given (a symbolic link is followed to its target).
+    pub path: PathBuf,
+    /// The text the checker read and the fix was computed from.
+    pub original: String,
+    /// The fixed text.
+    pub text: String,
+}
+
+fn temporary_prefix(target: &Path) -> String {
+    let name = target
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    format!(".{name}.couplet-fix-")
+}
+
+/// Removes leftovers of killed fixes of `target` (named by [`temporary_prefix`], older than
+/// [`STALE_TEMPORARY`]). Best effort: a leftover that cannot be removed is left.
+fn remove_stale_temporaries(dir: &Path, target: &Path) {
+    let prefix = temporary_prefix(target);
+    let Ok(entries) = std::fs::read_dir(dir) else {
+        return;
+    };
+    for entry in entries.flatten() {
+        let name = entry.file_name();
+        let name = name.to_string_lossy();
+        if !(name.starts_with(&prefix) && name.ends_with(".tmp")) {
+            continue;
+        }
+        let stale = entry
+            .metadata()
+            .ok()
+            .filter(|m| m.is_file())
+            .and_then(|m| m.modified().ok())
+            .and_then(|t| t.elapsed().ok())
+            .is_some_and(|age| age > STALE_TEMPORARY);
+        if stale {
+            let _ = std::fs::remove_file(entry.path());
+        }
+    }
+}
+
+/// Whether the file at `target` still holds exactly `original`, read with a bound so that a
+/// file grown huge meanwhile is not read whole.
+fn unchanged(target: &Path, original: &str) -> std::io::Result<bool> {
+    use std::io::Read;
+    let mut now = Vec::with_capacity(original.len() + 1);
+    std::fs::File::open(target)?
+        .take(original.len() as u64 + 1)
+        .read_to_end(&mut now)?;
+    Ok(now == original.as_bytes())
+}
+
+#[cfg(unix)]
+fn link_count(metadata: &std::fs::Metadata) -> u64 {
+    use std::os::unix::fs::MetadataExt;
+    metadata.nlink()
+}
+
+#[cfg(not(unix))]
+fn link_count(_: &std::fs::Metadata) -> u64 {
+    1
+}
+
+/// Writes every file to a temporary file beside its target, checks that no original changed
+/// since it was read, then renames each over its original. When any step fails before the
+/// renames, every temporary file is removed and no original is touched.
+pub fn write_all(files: &[Rewrite]) -> Result<(), FixError> {
     let mut staged = Vec::new();
-    for (path, text) in files {
+    for rewrite in files {
+        let shown = rewrite.path.display().to_string();
         let error = |source| FixError::Write {
-            path: path.display().to_string(),
+            path: shown.clone(),
             source,
         };
-        let dir = path
+        // A symbolic link is followed: the target is what holds the couples.
+        let target = std::fs::canonicalize(&rewrite.path).map_err(error)?;
+        let metadata = std::fs::metadata(&target).map_err(error)?;
+        if metadata.permissions().readonly() {
+            return Err(FixError::ReadOnly { path: shown });
+        }
+        let links = link_count(&metadata);
+        if links > 1 {
+            return Err(FixError::HardLinked { path: shown, links });
+        }
+        let dir = target
             .parent()
             .filter(|d| !d.as_os_str().is_empty())
-            .unwrap_or(Path::new("."));
-        let mut temp = tempfile::NamedTempFile::new_in(dir).map_err(error)?;
-        temp.write_all(text.as_bytes()).map_err(error)?;
+            .unwrap_or(Path::new("."))
+            .to_path_buf();
+        remove_stale_temporaries(&dir, &target);
+        let mut temp = tempfile::Builder::new()
+            .prefix(&temporary_prefix(&target))
+            .suffix(".tmp")
+            .tempfile_in(&dir)
+            .map_err(error)?;
+        temp.write_all(rewrite.text.as_bytes()).map_err(error)?;
         temp.as_file().sync_all().map_err(error)?;
-        if let Ok(metadata) = std::fs::metadata(path) {
-            temp.as_file()
-                .set_permissions(metadata.permissions())
-                .map_err(error)?;
-        }
-        staged.push((temp, path));
+        temp.as_file()
+            .set_permissions(metadata.permissions())
+            .map_err(error)?;
+        staged.push((temp, target, rewrite));
     }
     // Dropping `staged` on an early return removes the temporary files.
-    for (temp, path) in staged {
-        temp.persist(path).map_err(|e| FixError::Write {
-            path: path.display().to_string(),
+    for (_, target, rewrite) in &staged {
+        let same = unchanged(target, &rewrite.original).map_err(|source| FixError::Write {
+            path: rewrite.path.display().to_string(),
+            source,
+        })?;
+        if !same {
+            return Err(FixError::Changed {
+                path: rewrite.path.display().to_string(),
+            });
+        }
+    }
+    for (temp, target, rewrite) in staged {
+        temp.persist(&target).map_err(|e| FixError::Write {
+            path: rewrite.path.display().to_string(),
             source: e.error,
         })?;
     }

@@ -6,9 +6,10 @@ use crate::table::{CoupleFile, FileFormat};
 use std::io::Read;
 use std::path::{Path, PathBuf};
 
-/// The largest file the checker reads: 32 MiB, about 200,000 couples. Larger files are reported
-/// (rule `CPL106`) without being read, so memory stays bounded.
-pub const MAX_FILE_BYTES: u64 = 32 * 1024 * 1024;
+/// The largest file the checker reads: 32 MiB, about 200,000 couples (the couple-file
+/// reader's own limit). Larger files are reported (rule `CPL106`) without being read, so
+/// memory stays bounded.
+pub const MAX_FILE_BYTES: u64 = crate::table::record::MAX_COUPLE_FILE_BYTES;
 
 /// Why the checker could not run on a path (exit status 2).
 #[derive(Debug, thiserror::Error)]
@@ -17,6 +18,12 @@ pub enum LoadError {
     /// The path does not exist.
     #[error("{path}: no such file or directory")]
     Missing {
+        /// As given.
+        path: String,
+    },
+    /// The path is a FIFO, a device or a socket: reading it could block forever or never end.
+    #[error("{path}: not a regular file (a pipe, device or socket): give a file or a directory")]
+    NotRegular {
         /// As given.
         path: String,
     },
@@ -33,7 +40,22 @@ pub enum LoadError {
 /// The files to check under the given paths: a file is taken as given; a directory is searched
 /// (recursively, in name order, skipping names that start with `.`) for `*.toml` and `*.csv`.
 /// Found files are returned with `true` (found under a directory), given files with `false`.
+/// A file reached by two paths (`t.toml` and `./t.toml`, a directory and a file in it, a
+/// symbolic link and its target) is returned once, under the first path that reached it, so
+/// that its ids are not reported as used twice.
 pub fn expand_paths(paths: &[PathBuf]) -> Result<Vec<(PathBuf, bool)>, LoadError> {
+    let mut seen = std::collections::HashSet::new();
+    let mut unique = Vec::new();
+    for (path, under_directory) in expand_all(paths)? {
+        let identity = std::fs::canonicalize(&path).unwrap_or_else(|_| path.clone());
+        if seen.insert(identity) {
+            unique.push((path, under_directory));
+        }
+    }
+    Ok(unique)
+}
+
+fn expand_all(paths: &[PathBuf]) -> Result<Vec<(PathBuf, bool)>, LoadError> {
     let mut out = Vec::new();
     for path in paths {
         let metadata = std::fs::metadata(path).map_err(|source| match source.kind() {
@@ -97,8 +119,17 @@ pub fn load_file(path: &Path) -> Result<SourceFile, LoadError> {
         path: name.clone(),
         source,
     };
+    // Judged before opening: opening a FIFO for reading blocks until someone writes to it.
+    let not_regular = || LoadError::NotRegular { path: name.clone() };
+    if !std::fs::metadata(path).map_err(unreadable)?.is_file() {
+        return Err(not_regular());
+    }
     let handle = std::fs::File::open(path).map_err(unreadable)?;
-    let size = handle.metadata().map_err(unreadable)?.len();
+    let metadata = handle.metadata().map_err(unreadable)?;
+    if !metadata.is_file() {
+        return Err(not_regular());
+    }
+    let size = metadata.len();
     let format = FileFormat::from_path(path);
     if size > MAX_FILE_BYTES {
         return Ok(SourceFile::unread(
@@ -118,11 +149,28 @@ pub fn load_file(path: &Path) -> Result<SourceFile, LoadError> {
         .take(MAX_FILE_BYTES + 1)
         .read_to_end(&mut bytes)
         .map_err(unreadable)?;
-    Ok(source_from_bytes(&name, &bytes, format))
+    if bytes.len() as u64 > MAX_FILE_BYTES {
+        return Ok(SourceFile::unread(
+            name,
+            format,
+            Rule::FileTooLarge,
+            format!(
+                "the file grew past {} MiB while it was read: split the table into several files",
+                MAX_FILE_BYTES / 1024 / 1024
+            ),
+        ));
+    }
+    Ok(source_from_owned_bytes(&name, bytes, format))
 }
 
 /// A file to check from bytes already in memory (binary files recognised by a NUL byte).
 pub fn source_from_bytes(name: &str, bytes: &[u8], format: FileFormat) -> SourceFile {
+    source_from_owned_bytes(name, bytes.to_vec(), format)
+}
+
+/// As [`source_from_bytes`], taking the bytes: valid UTF-8 becomes the file's text without a
+/// copy (a 32 MiB file is held once, not twice).
+fn source_from_owned_bytes(name: &str, bytes: Vec<u8>, format: FileFormat) -> SourceFile {
     if let Some(at) = bytes.iter().position(|&b| b == 0) {
         return SourceFile::unread(
             name,
@@ -131,7 +179,10 @@ pub fn source_from_bytes(name: &str, bytes: &[u8], format: FileFormat) -> Source
             format!("binary file (NUL byte at offset {at}): a couple file is text"),
         );
     }
-    SourceFile::new(name, CoupleFile::from_bytes(bytes, format))
+    match String::from_utf8(bytes) {
+        Ok(text) => SourceFile::new(name, CoupleFile::from_string(text, format)),
+        Err(error) => SourceFile::new(name, CoupleFile::from_bytes(error.as_bytes(), format)),
+    }
 }
 
 /// Whether a file found under a directory holds couples: TOML with a `couple` key (or that

@@ -59,6 +59,52 @@ pub struct CheckOptions {
     pub formation: Option<formation::FormationCheck>,
     /// Rule [`Rule::UnverifiedValue`]: refuse couples marked `verified = false`.
     pub refuse_unverified: bool,
+    /// Units of balancing work (see [`crate::balance`], work limit) the whole check may spend
+    /// on suggestions for faulty reactions. Once spent, findings say that no suggestion was
+    /// worked out. The checks themselves are linear in the file and need no budget.
+    pub work_limit: u64,
+    /// Units one reaction's suggestion may use (by default the balancer's own
+    /// [`crate::balance::DEFAULT_WORK_LIMIT`]); past it the finding says so.
+    pub reaction_work_limit: u64,
+    /// Most pairs of linked couples the additivity check (CPL403) compares; past it the check
+    /// stops with a CPL405 warning. Pairs grow with the square of the couples sharing a
+    /// species, so without a bound a large table could keep a CI job busy for minutes.
+    pub additivity_pair_limit: usize,
+}
+
+/// The default [`CheckOptions::additivity_pair_limit`]: two million pairs, a few seconds.
+pub const DEFAULT_ADDITIVITY_PAIRS: usize = 2_000_000;
+
+/// The default [`CheckOptions::work_limit`]: ten reactions at the balancer's own limit, about
+/// 1.5 s on the project's build machine however hostile the files are.
+pub const DEFAULT_CHECK_WORK_LIMIT: u64 = 10 * crate::balance::DEFAULT_WORK_LIMIT;
+
+/// What is left of a check's balancing budget, shared by the threads that judge entries.
+/// Which entries get a suggestion depends on the thread split only once the budget runs out.
+#[derive(Debug)]
+pub struct WorkBudget(std::sync::atomic::AtomicU64);
+
+impl WorkBudget {
+    /// A budget of `units`.
+    pub fn new(units: u64) -> WorkBudget {
+        WorkBudget(std::sync::atomic::AtomicU64::new(units))
+    }
+
+    /// Takes up to `wanted` units; returns how many were granted (0 when spent).
+    pub fn take(&self, wanted: u64) -> u64 {
+        use std::sync::atomic::Ordering::Relaxed;
+        let previous = self
+            .0
+            .fetch_update(Relaxed, Relaxed, |left| Some(left.saturating_sub(wanted)))
+            .unwrap_or(0);
+        previous.min(wanted)
+    }
+
+    /// Returns units taken but not used.
+    pub fn give_back(&self, units: u64) {
+        self.0
+            .fetch_add(units, std::sync::atomic::Ordering::Relaxed);
+    }
 }
 
 impl Default for CheckOptions {
@@ -68,6 +114,9 @@ impl Default for CheckOptions {
             oxidation_number_change: Some(crate::oxidation::oxidation_number_electrons),
             formation: Some(formation::FormationCheck::default()),
             refuse_unverified: false,
+            work_limit: DEFAULT_CHECK_WORK_LIMIT,
+            reaction_work_limit: crate::balance::DEFAULT_WORK_LIMIT,
+            additivity_pair_limit: DEFAULT_ADDITIVITY_PAIRS,
         }
     }
 }
@@ -224,6 +273,7 @@ impl Report {
 pub fn check(files: Vec<SourceFile>, options: &CheckOptions) -> Report {
     let mut findings = Vec::new();
     let mut judged = Vec::new();
+    let budget = WorkBudget::new(options.work_limit);
     for (index, source) in files.iter().enumerate() {
         if let Some((rule, message)) = &source.load_finding {
             findings.push(Finding {
@@ -236,7 +286,7 @@ pub fn check(files: Vec<SourceFile>, options: &CheckOptions) -> Report {
             });
             continue;
         }
-        let (file_findings, entries) = entry::check_file(index, &source.file, options);
+        let (file_findings, entries) = entry::check_file(index, &source.file, options, &budget);
         findings.extend(file_findings);
         judged.extend(entries);
     }

@@ -72,11 +72,13 @@ pub enum Rule {
     E0VsFormationData,
     /// A couple marked `verified = false`, when the checker is told to refuse them.
     UnverifiedValue,
+    /// The additivity check stopped at its limit of pairs before comparing every pair.
+    AdditivityCutShort,
 }
 
 impl Rule {
     /// Every rule, in code order.
-    pub const ALL: [Rule; 24] = [
+    pub const ALL: [Rule; 25] = [
         Rule::FileSyntax,
         Rule::WrongType,
         Rule::MissingReaction,
@@ -101,6 +103,7 @@ impl Rule {
         Rule::MissingSource,
         Rule::E0VsFormationData,
         Rule::UnverifiedValue,
+        Rule::AdditivityCutShort,
     ];
 
     /// The stable code, e.g. `CPL201`.
@@ -264,6 +267,12 @@ impl Rule {
                 "unverified-value",
                 Error,
                 "with --refuse-unverified: no couple is marked verified = false (a value no read source confirms)",
+            ),
+            Rule::AdditivityCutShort => (
+                "CPL405",
+                "additivity-cut-short",
+                Warning,
+                "the additivity check compared every pair of linked couples (it stops at a documented number of pairs so that a check stays bounded)",
             ),
         }
     }

@@ -36,6 +36,10 @@ pub struct CheckArgs {
     /// With --fix: print the changes as a unified diff and write nothing
     #[arg(long, requires = "fix")]
     dry_run: bool,
+    /// Fail (exit status 1) when the paths hold no couples at all, instead of passing with a
+    /// note: catches a CI job pointed at the wrong directory
+    #[arg(long)]
+    expect_couples: bool,
 }
 
 fn parse_tolerance(text: &str) -> Result<f64, String> {
@@ -51,7 +55,7 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
     let found = match expand_paths(&args.paths) {
         Ok(found) => found,
         Err(error) => {
-            eprintln!("error: {error}");
+            say!("error: {error}");
             return Ok(EXIT_USAGE);
         }
     };
@@ -67,7 +71,7 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
                 paths.push(path);
             }
             Err(error) => {
-                eprintln!("error: {error}");
+                say!("error: {error}");
                 return Ok(EXIT_USAGE);
             }
         }
@@ -102,16 +106,20 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
                 .iter()
                 .any(|p| p.kind == ProblemKind::Syntax)
             {
-                eprintln!("{}: not fixed: the file has syntax errors", source.name);
+                say!("{}: not fixed: the file has syntax errors", source.name);
                 continue;
             }
             match fix::apply(&source.file, &fixes) {
                 Ok(text) => {
                     diff.push_str(&fix::unified_diff(&source.name, &source.file.text, &text));
-                    rewritten.push((paths[index].clone(), text));
+                    rewritten.push(fix::Rewrite {
+                        path: paths[index].clone(),
+                        original: source.file.text.clone(),
+                        text,
+                    });
                 }
                 Err(error) => {
-                    eprintln!("error: {}: {error}", source.name);
+                    say!("error: {}: {error}", source.name);
                     return Ok(EXIT_USAGE);
                 }
             }
@@ -120,24 +128,26 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
             out.write_all(diff.as_bytes())?;
             // The status is that of the files as --fix would leave them.
             let mut sources: Vec<_> = report.files.clone();
-            for (path, text) in &rewritten {
-                let index = paths
-                    .iter()
-                    .position(|p| p == path)
-                    .expect("a path checked");
+            for rewrite in &rewritten {
+                let Some(index) = paths.iter().position(|p| *p == rewrite.path) else {
+                    continue;
+                };
                 let name = sources[index].name.clone();
-                sources[index] =
-                    source_from_bytes(&name, text.as_bytes(), FileFormat::from_path(path));
+                sources[index] = source_from_bytes(
+                    &name,
+                    rewrite.text.as_bytes(),
+                    FileFormat::from_path(&rewrite.path),
+                );
             }
             let after = check(sources, &options);
             return Ok(status(&after, args.deny_warnings));
         }
         if let Err(error) = fix::write_all(&rewritten) {
-            eprintln!("error: {error}; no file was changed");
+            say!("error: {error}; no file was changed");
             return Ok(EXIT_USAGE);
         }
         if !rewritten.is_empty() {
-            eprintln!(
+            say!(
                 "fixed {} file{}; checking again",
                 rewritten.len(),
                 if rewritten.len() == 1 { "" } else { "s" }
@@ -147,7 +157,7 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
                 match load_file(path) {
                     Ok(source) => sources.push(source),
                     Err(error) => {
-                        eprintln!("error: {error}");
+                        say!("error: {error}");
                         return Ok(EXIT_USAGE);
                     }
                 }
@@ -156,28 +166,43 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
         }
     }
 
-    let text = match args.format.as_str() {
-        "json" => format!(
-            "{}\n",
-            serde_json::to_string(&output::json(&report)).expect("JSON values always serialise")
-        ),
-        "sarif" => format!(
-            "{}\n",
-            serde_json::to_string_pretty(&output::sarif(&report))
-                .expect("JSON values always serialise")
-        ),
-        _ => {
-            let stdout = std::io::stdout();
-            let no_color = std::env::var_os("NO_COLOR").is_some_and(|v| !v.is_empty());
-            let colour = if stdout.is_terminal() && !no_color {
-                Colour::Always
-            } else {
-                Colour::Never
-            };
-            output::human(&report, colour)
-        }
+    // Written piece by piece: a report of a million findings is never held whole. A closed
+    // pipe (`| head`) ends the output quietly (the shared writer absorbs it); a failed write
+    // is an error (exit 2).
+    let stdout = std::io::stdout();
+    // NO_COLOR set to anything but the empty string turns colour off.
+    let colour_allowed = std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty());
+    let colour = if stdout.is_terminal() && colour_allowed {
+        Colour::Always
+    } else {
+        Colour::Never
     };
-    out.write_all(text.as_bytes())?;
+    let written = match args.format.as_str() {
+        "json" => output::write_json(&report, &mut *out),
+        "sarif" => output::write_sarif(&report, &mut *out),
+        _ => output::write_human(&report, colour, &mut *out),
+    };
+    written?;
+    // An empty run passes silently otherwise: say so on standard error (standard output
+    // stays the report a program reads).
+    let summary = report.summary();
+    let empty = summary.entries == 0 && summary.errors == 0;
+    if empty {
+        let what = if summary.files == 0 {
+            "no couple files were found under the paths given"
+        } else {
+            "the files given hold no couples"
+        };
+        let outcome = if args.expect_couples {
+            "failing because of --expect-couples"
+        } else {
+            "passing; --expect-couples makes this fail"
+        };
+        say!("note: nothing to check: {what} ({outcome})");
+        if args.expect_couples {
+            return Ok(EXIT_FINDINGS);
+        }
+    }
     Ok(status(&report, args.deny_warnings))
 }
 

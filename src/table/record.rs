@@ -201,15 +201,24 @@ impl CoupleFile {
 
     /// Reads text in the given format.
     pub fn from_text(text: &str, format: FileFormat) -> CoupleFile {
-        match format {
-            FileFormat::Toml => read_toml(text),
-            FileFormat::Csv => read_csv(text),
-        }
+        CoupleFile::from_string(text.to_owned(), format)
     }
 
-    /// Reads a file from disk, choosing the format from its extension.
+    /// Reads text in the given format, keeping the string as the file's text (no copy).
+    pub fn from_string(text: String, format: FileFormat) -> CoupleFile {
+        let mut file = match format {
+            FileFormat::Toml => read_toml(&text),
+            FileFormat::Csv => read_csv(&text),
+        };
+        file.text = text;
+        file
+    }
+
+    /// Reads a file from disk, choosing the format from its extension. At most
+    /// [`MAX_COUPLE_FILE_BYTES`] are read: a larger file (or a device such as `/dev/zero`)
+    /// is an error of kind `InvalidData`, found without reading more than the limit.
     pub fn read(path: &std::path::Path) -> std::io::Result<CoupleFile> {
-        let bytes = std::fs::read(path)?;
+        let bytes = read_bounded(std::fs::File::open(path)?)?;
         Ok(CoupleFile::from_bytes(&bytes, FileFormat::from_path(path)))
     }
 
@@ -217,6 +226,29 @@ impl CoupleFile {
     pub fn line_column(&self, offset: usize) -> (usize, usize) {
         line_column(&self.text, offset)
     }
+}
+
+/// The largest couple file read: 32 MiB, about 200,000 couples.
+pub const MAX_COUPLE_FILE_BYTES: u64 = 32 * 1024 * 1024;
+
+/// All of `source` when it holds at most [`MAX_COUPLE_FILE_BYTES`]; an `InvalidData` error
+/// after reading one byte more otherwise.
+pub fn read_bounded(source: impl std::io::Read) -> std::io::Result<Vec<u8>> {
+    use std::io::Read;
+    let mut bytes = Vec::new();
+    source
+        .take(MAX_COUPLE_FILE_BYTES + 1)
+        .read_to_end(&mut bytes)?;
+    if bytes.len() as u64 > MAX_COUPLE_FILE_BYTES {
+        return Err(std::io::Error::new(
+            std::io::ErrorKind::InvalidData,
+            format!(
+                "more than {} MiB: a couple file is at most that large (split the table)",
+                MAX_COUPLE_FILE_BYTES / 1024 / 1024
+            ),
+        ));
+    }
+    Ok(bytes)
 }
 
 /// 1-based line and column (in characters) of byte `offset` in `text`.
@@ -345,10 +377,146 @@ fn toml_number(value: &DeValue<'_>) -> Option<f64> {
     }
 }
 
+/// TOML files at least this large are parsed in pieces when that is safe (see
+/// [`read_toml_in_pieces`]).
+const PIECEWISE_FROM_BYTES: usize = 1 << 20;
+
+/// Couples per piece of a piecewise parse.
+const COUPLES_PER_PIECE: usize = 1024;
+
 fn read_toml(text: &str) -> CoupleFile {
+    if text.len() >= PIECEWISE_FROM_BYTES {
+        if let Some(file) = read_toml_in_pieces(text) {
+            return file;
+        }
+    }
+    read_toml_whole(text)
+}
+
+/// Whether a line (leading spaces removed) is exactly a `[[couple]]` header, perhaps with a
+/// comment after it.
+fn is_couple_header(line: &str) -> bool {
+    line.strip_prefix("[[couple]]")
+        .is_some_and(|rest| rest.trim().is_empty() || rest.trim_start().starts_with('#'))
+}
+
+/// Parses a large file a thousand couples at a time. The TOML parser holds about twenty times
+/// the text it parses (tokens, tables, maps); piece by piece, a 31 MiB file needs that only for
+/// one piece. Done only when the pieces are certain to be the file's own tables: no multi-line
+/// strings, every line that starts with `[` a plain `[[couple]]` header, and every piece free
+/// of syntax errors; otherwise (`None`) the whole file is parsed at once, so that errors are
+/// reported exactly as the parser sees them.
+fn read_toml_in_pieces(text: &str) -> Option<CoupleFile> {
+    if text.contains("'''") || text.contains("\"\"\"") {
+        return None;
+    }
+    let mut headers = Vec::new();
+    let mut offset = 0;
+    for line in text.split_inclusive('\n') {
+        let trimmed = line.trim_start();
+        if trimmed.starts_with('[') {
+            if !is_couple_header(trimmed) {
+                return None;
+            }
+            headers.push(offset);
+        }
+        offset += line.len();
+    }
+    let mut bounds: Vec<usize> = std::iter::once(0)
+        .chain(
+            headers
+                .iter()
+                .copied()
+                .skip(COUPLES_PER_PIECE)
+                .step_by(COUPLES_PER_PIECE),
+        )
+        .collect();
+    bounds.push(text.len());
+    let mut file = read_toml_whole("");
+    // Exactly as many records as headers (a doubling vector would hold up to twice that).
+    file.records.reserve_exact(headers.len());
+    for piece in bounds.windows(2) {
+        let (start, end) = (piece[0], piece[1]);
+        let part = read_toml_whole(&text[start..end]);
+        if part.problems.iter().any(|p| p.kind == ProblemKind::Syntax) {
+            return None;
+        }
+        let first_record = file.records.len();
+        file.records
+            .extend(part.records.into_iter().map(|mut record| {
+                record.shift(start, first_record);
+                record
+            }));
+        file.problems
+            .extend(part.problems.into_iter().map(|mut problem| {
+                problem.span = problem.span.shifted(start);
+                problem.record = problem.record.map(|r| r + first_record);
+                problem
+            }));
+        file.unknown_keys
+            .extend(part.unknown_keys.into_iter().map(|mut key| {
+                key.shift(start);
+                key
+            }));
+    }
+    Some(file)
+}
+
+impl CoupleRecord {
+    /// Moves every span by `offset` bytes and the index by `first_index`: the record was read
+    /// from a piece of the file starting at `offset`, after `first_index` couples.
+    fn shift(&mut self, offset: usize, first_index: usize) {
+        self.index += first_index;
+        self.span = self.span.shifted(offset);
+        for field in [
+            &mut self.id,
+            &mut self.reaction,
+            &mut self.medium,
+            &mut self.source,
+            &mut self.note,
+        ]
+        .into_iter()
+        .flatten()
+        {
+            field.shift(offset);
+        }
+        for field in [&mut self.e0_volts, &mut self.dedt_millivolts_per_kelvin]
+            .into_iter()
+            .flatten()
+        {
+            field.shift(offset);
+        }
+        for key in &mut self.unknown_keys {
+            key.shift(offset);
+        }
+    }
+}
+
+impl<T> Field<T> {
+    fn shift(&mut self, offset: usize) {
+        self.span = self.span.shifted(offset);
+        self.content_start = self.content_start.map(|start| start + offset);
+        for (_, file) in &mut self.escapes {
+            *file += offset;
+        }
+    }
+}
+
+trait Shifted {
+    fn shifted(self, offset: usize) -> Self;
+}
+
+impl Shifted for Span {
+    fn shifted(self, offset: usize) -> Span {
+        Span::new(self.start + offset, self.end + offset)
+    }
+}
+
+fn read_toml_whole(text: &str) -> CoupleFile {
     let mut file = CoupleFile {
         format: FileFormat::Toml,
-        text: text.to_owned(),
+        // The caller stores the text it owns.
+        text: String::new(),
         records: Vec::new(),
         problems: Vec::new(),
         unknown_keys: Vec::new(),
@@ -532,158 +700,227 @@ fn first_line_lower(message: &str) -> String {
     }
 }
 
-/// Byte spans of the fields of one CSV row starting at `start` (standard quoting: `""` inside
-/// quotes is a quote). Returns the spans of the field contents and the end of the row.
-fn csv_field_spans(text: &str, start: usize) -> (Vec<(Span, Option<usize>)>, usize) {
+/// One field of a CSV row as written.
+struct CsvField {
+    /// The field in the file, quotes included.
+    span: Span,
+    /// The decoded text (quotes removed, `""` read as `"`).
+    value: String,
+    /// Where the text starts in the file when it maps one to one (no `""` inside).
+    content_start: Option<usize>,
+}
+
+/// One CSV row: where it is and its fields.
+struct CsvRow {
+    span: Span,
+    fields: Vec<CsvField>,
+}
+
+/// The rows of a CSV text with exact byte spans, read by hand rather than through a CSV
+/// library so that every span is a position in the text itself: lines starting with `#` and
+/// blank lines are skipped, `\r\n`, `\n` and `\r` all end a row, and a quoted field may hold
+/// commas, quotes written `""` and line breaks. An unterminated quote is returned as a problem
+/// (the rows before it are kept).
+fn csv_rows(text: &str) -> (Vec<CsvRow>, Option<ReadProblem>) {
     let bytes = text.as_bytes();
-    let mut spans = Vec::new();
-    let mut i = start;
-    loop {
-        let field_start = i;
-        let mut quoted_clean = true;
-        if bytes.get(i) == Some(&b'"') {
-            i += 1;
-            while i < bytes.len() {
-                if bytes[i] == b'"' {
+    let mut rows = Vec::new();
+    let mut i = 0;
+    while i < bytes.len() {
+        let line_end = text[i..].find(['\n', '\r']).map_or(bytes.len(), |n| i + n);
+        let line = &text[i..line_end];
+        if line.trim().is_empty() || line.starts_with('#') {
+            i = skip_line_break(bytes, line_end);
+            continue;
+        }
+        let row_start = i;
+        let mut fields = Vec::new();
+        loop {
+            let field_start = i;
+            let field = if bytes.get(i) == Some(&b'"') {
+                let mut value = String::new();
+                let mut clean = true;
+                let mut closed = false;
+                i += 1;
+                while i < bytes.len() {
+                    let next = text[i..].find('"').map_or(bytes.len(), |n| i + n);
+                    value.push_str(&text[i..next]);
+                    i = next;
+                    if i >= bytes.len() {
+                        break;
+                    }
                     if bytes.get(i + 1) == Some(&b'"') {
-                        quoted_clean = false;
+                        value.push('"');
+                        clean = false;
                         i += 2;
                         continue;
                     }
                     i += 1;
+                    closed = true;
                     break;
                 }
+                if !closed {
+                    let problem = ReadProblem {
+                        kind: ProblemKind::Syntax,
+                        key: None,
+                        message: "a quoted field is never closed: add the closing '\"'".to_owned(),
+                        span: Span::new(field_start, field_start + 1),
+                        record: None,
+                    };
+                    return (rows, Some(problem));
+                }
+                // Text after the closing quote belongs to the field, as written.
+                let rest_end = text[i..]
+                    .find([',', '\n', '\r'])
+                    .map_or(bytes.len(), |n| i + n);
+                if rest_end > i {
+                    value.push_str(&text[i..rest_end]);
+                    clean = false;
+                    i = rest_end;
+                }
+                CsvField {
+                    span: Span::new(field_start, i),
+                    value,
+                    content_start: clean.then_some(field_start + 1),
+                }
+            } else {
+                let field_end = text[i..]
+                    .find([',', '\n', '\r'])
+                    .map_or(bytes.len(), |n| i + n);
+                i = field_end;
+                CsvField {
+                    span: Span::new(field_start, field_end),
+                    value: text[field_start..field_end].to_owned(),
+                    content_start: Some(field_start),
+                }
+            };
+            fields.push(field);
+            if bytes.get(i) == Some(&b',') {
                 i += 1;
+                continue;
             }
-            while i < bytes.len() && !matches!(bytes[i], b',' | b'\n' | b'\r') {
-                i += 1;
-            }
-            let content = (quoted_clean && i > field_start + 1).then_some(field_start + 1);
-            spans.push((Span::new(field_start, i), content));
-        } else {
-            while i < bytes.len() && !matches!(bytes[i], b',' | b'\n' | b'\r') {
-                i += 1;
-            }
-            spans.push((Span::new(field_start, i), Some(field_start)));
+            break;
         }
-        if bytes.get(i) == Some(&b',') {
-            i += 1;
-            continue;
-        }
-        return (spans, i);
+        rows.push(CsvRow {
+            span: Span::new(row_start, i),
+            fields,
+        });
+        i = skip_line_break(bytes, i);
+    }
+    (rows, None)
+}
+
+/// The offset after the line break at `at` (`\r\n`, `\n` or `\r`), or `at` at the end.
+fn skip_line_break(bytes: &[u8], at: usize) -> usize {
+    match (bytes.get(at), bytes.get(at + 1)) {
+        (Some(b'\r'), Some(b'\n')) => at + 2,
+        (Some(b'\r' | b'\n'), _) => at + 1,
+        _ => at,
     }
 }
 
 fn read_csv(text: &str) -> CoupleFile {
     let mut file = CoupleFile {
         format: FileFormat::Csv,
-        text: text.to_owned(),
+        // The caller stores the text it owns.
+        text: String::new(),
         records: Vec::new(),
         problems: Vec::new(),
         unknown_keys: Vec::new(),
     };
-    let mut reader = csv::ReaderBuilder::new()
-        .has_headers(false)
-        .flexible(true)
-        .comment(Some(b'#'))
-        .from_reader(text.as_bytes());
-    let mut header: Option<Vec<String>> = None;
-    for row in reader.records() {
-        let row = match row {
-            Ok(row) => row,
-            Err(error) => {
-                let at = error.position().map_or(0, |p| p.byte() as usize);
-                file.problems.push(ReadProblem {
-                    kind: ProblemKind::Syntax,
-                    key: None,
-                    message: first_line_lower(&error.to_string()),
-                    span: Span::new(at, at + 1),
-                    record: None,
-                });
-                break;
-            }
-        };
-        let start = row.position().map_or(0, |p| p.byte() as usize);
-        let (spans, end) = csv_field_spans(text, start);
-        let spans_fit = spans.len() == row.len();
-        let field_span = |i: usize| -> (Span, Option<usize>) {
-            if spans_fit {
-                spans[i]
-            } else {
-                (Span::new(start, end), None)
-            }
-        };
-        let Some(columns) = &header else {
-            let names: Vec<String> = row.iter().map(|c| c.trim().to_owned()).collect();
-            for (i, name) in names.iter().enumerate() {
-                if !KNOWN_KEYS.contains(&name.as_str()) {
-                    let (span, content_start) = field_span(i);
-                    file.unknown_keys.push(Field {
-                        value: name.clone(),
-                        span,
-                        content_start,
-                        escapes: Vec::new(),
-                    });
-                }
-            }
-            for key in REQUIRED_KEYS {
-                if !names.iter().any(|n| n == key) {
-                    file.problems.push(ReadProblem {
-                        kind: ProblemKind::MissingKey,
-                        key: Some(key.to_owned()),
-                        message: format!("the header row has no '{key}' column"),
-                        span: Span::new(start, end),
-                        record: None,
-                    });
-                }
-            }
-            header = Some(names);
+    let (rows, problem) = csv_rows(text);
+    let mut rows = rows.into_iter();
+    let Some(header) = rows.next() else {
+        file.problems.extend(problem);
+        return file;
+    };
+    let columns: Vec<String> = header
+        .fields
+        .iter()
+        .map(|f| f.value.trim().to_owned())
+        .collect();
+    // A column named twice would let one value silently win over the other: an error, and
+    // only the first column of that name is read.
+    let mut read_column = vec![true; columns.len()];
+    for (i, name) in columns.iter().enumerate() {
+        let field = &header.fields[i];
+        if let Some(first) = columns[..i].iter().position(|n| n == name && !n.is_empty()) {
+            read_column[i] = false;
+            file.problems.push(ReadProblem {
+                kind: ProblemKind::Syntax,
+                key: Some(name.clone()),
+                message: format!(
+                    "column '{name}' is named twice in the header (columns {} and {}): name each column once",
+                    first + 1,
+                    i + 1
+                ),
+                span: field.span,
+                record: None,
+            });
             continue;
-        };
+        }
+        if !KNOWN_KEYS.contains(&name.as_str()) {
+            file.unknown_keys.push(Field {
+                value: name.clone(),
+                span: field.span,
+                content_start: field.content_start,
+                escapes: Vec::new(),
+            });
+        }
+    }
+    for key in REQUIRED_KEYS {
+        if !columns.iter().any(|n| n == key) {
+            file.problems.push(ReadProblem {
+                kind: ProblemKind::MissingKey,
+                key: Some(key.to_owned()),
+                message: format!("the header row has no '{key}' column"),
+                span: header.span,
+                record: None,
+            });
+        }
+    }
+    for row in rows {
         let index = file.records.len();
         let mut record = CoupleRecord {
             index,
-            span: Span::new(start, end),
+            span: row.span,
             ..CoupleRecord::default()
         };
-        if row.len() != columns.len() {
+        if row.fields.len() != columns.len() {
             file.problems.push(ReadProblem {
                 kind: ProblemKind::Syntax,
                 key: None,
                 message: format!(
                     "row has {} fields, the header has {}",
-                    row.len(),
+                    row.fields.len(),
                     columns.len()
                 ),
-                span: Span::new(start, end),
+                span: row.span,
                 record: Some(index),
             });
         }
-        for (i, (name, cell)) in columns.iter().zip(row.iter()).enumerate() {
+        let mut wrong_type = false;
+        for ((name, cell), _) in columns
+            .iter()
+            .zip(row.fields)
+            .zip(&read_column)
+            .filter(|(_, read)| **read)
+        {
             // An empty cell is an absent key: spreadsheets have no other way to leave one out.
-            if cell.trim().is_empty() {
+            if cell.value.trim().is_empty() {
                 continue;
             }
-            let (span, content_start) = field_span(i);
-            let string = || {
-                Some(Field {
-                    value: cell.to_owned(),
-                    span,
-                    content_start,
-                    escapes: Vec::new(),
-                })
+            let span = cell.span;
+            let number_field = |value: f64| Field {
+                value,
+                span,
+                content_start: None,
+                escapes: Vec::new(),
             };
             match name.as_str() {
-                "id" => record.id = string(),
-                "reaction" => record.reaction = string(),
-                "medium" => record.medium = string(),
-                "source" => record.source = string(),
-                "note" => record.note = string(),
-                "confirmed_by" => record.confirmed_by = string(),
-                "verified" => match cell.trim() {
+                "verified" => match cell.value.trim() {
                     "true" | "false" => {
                         record.verified = Some(Field {
-                            value: cell.trim() == "true",
+                            value: cell.value.trim() == "true",
                             span,
                             content_start: None,
                             escapes: Vec::new(),
@@ -697,41 +934,51 @@ fn read_csv(text: &str) -> CoupleFile {
                         record: Some(index),
                     }),
                 },
-                "e0" | "dedt" => match cell.trim().parse::<f64>() {
+                "e0" | "dedt" => match cell.value.trim().parse::<f64>() {
                     Ok(number) => {
-                        let field = Some(Field {
-                            value: number,
-                            span,
-                            content_start: None,
-                            escapes: Vec::new(),
-                        });
                         if name == "e0" {
-                            record.e0_volts = field;
+                            record.e0_volts = Some(number_field(number));
                         } else {
-                            record.dedt_millivolts_per_kelvin = field;
+                            record.dedt_millivolts_per_kelvin = Some(number_field(number));
                         }
                     }
-                    Err(_) => file.problems.push(ReadProblem {
-                        kind: ProblemKind::WrongType,
-                        key: Some(name.clone()),
-                        message: format!("'{name}' must be a number, found '{}'", cell.trim()),
-                        span,
-                        record: Some(index),
-                    }),
+                    Err(_) => {
+                        wrong_type = true;
+                        file.problems.push(ReadProblem {
+                            kind: ProblemKind::WrongType,
+                            key: Some(name.clone()),
+                            message: format!(
+                                "'{name}' must be a number, found '{}'",
+                                cell.value.trim()
+                            ),
+                            span,
+                            record: Some(index),
+                        });
+                    }
                 },
+                "id" | "reaction" | "medium" | "source" | "note" | "confirmed_by" => {
+                    let field = Some(Field {
+                        value: cell.value,
+                        span,
+                        content_start: cell.content_start,
+                        escapes: Vec::new(),
+                    });
+                    match name.as_str() {
+                        "id" => record.id = field,
+                        "reaction" => record.reaction = field,
+                        "medium" => record.medium = field,
+                        "source" => record.source = field,
+                        "confirmed_by" => record.confirmed_by = field,
+                        _ => record.note = field,
+                    }
+                }
                 _ => {}
             }
         }
         for key in REQUIRED_KEYS {
             let present = match key {
                 "reaction" => record.reaction.is_some(),
-                _ => {
-                    record.e0_volts.is_some()
-                        || file
-                            .problems
-                            .iter()
-                            .any(|p| p.record == Some(index) && p.kind == ProblemKind::WrongType)
-                }
+                _ => record.e0_volts.is_some() || wrong_type,
             };
             if !present && columns.iter().any(|c| c == key) {
                 file.problems.push(missing_key(key, index, record.span));
@@ -739,6 +986,7 @@ fn read_csv(text: &str) -> CoupleFile {
         }
         file.records.push(record);
     }
+    file.problems.extend(problem);
     file
 }
 
@@ -813,6 +1061,82 @@ mod tests {
         let file = CoupleFile::from_bytes(b"[[couple]]\nid = \"\xff\"\n", FileFormat::Toml);
         assert_eq!(file.problems[0].kind, ProblemKind::Syntax);
         assert_eq!(file.problems[0].span.start, 17);
+    }
+
+    #[test]
+    fn a_large_file_read_in_pieces_reads_like_the_whole() {
+        // Invented entries, enough for several pieces; one escape, one wrong type, one
+        // unknown key, so that every kind of span is shifted.
+        let mut text = String::from("# invented\ntitle = \"t\"\n");
+        let mut k = 0;
+        while text.len() < PIECEWISE_FROM_BYTES + 200_000 {
+            let e0 = if k == 2500 { "\"0.8\"" } else { "0.7996" };
+            text.push_str(&format!(
+                "\n[[couple]]\nid = \"ag-{k}\"\nreaction = \"Ag+ + e- \\u002D> Ag(s)\"\ne0 = {e0}\ncolour = \"x\"\n"
+            ));
+            k += 1;
+        }
+        let pieces = read_toml_in_pieces(&text).expect("safe to read in pieces");
+        let whole = read_toml_whole(&text);
+        assert!(pieces.records.len() > 2 * COUPLES_PER_PIECE);
+        assert_eq!(pieces.records, whole.records);
+        assert_eq!(pieces.problems, whole.problems);
+        assert_eq!(pieces.unknown_keys, whole.unknown_keys);
+        // A line starting with `[` that is not a couple header: the whole file at once.
+        assert!(read_toml_in_pieces(&format!("{text}[other]\nx = 1\n")).is_none());
+    }
+
+    #[test]
+    fn csv_spans_hold_after_comments_blank_lines_and_crlf() {
+        // Invented rows: a comment, blank lines and CRLF endings before and between rows.
+        let text = "# invented\r\n\r\nid,reaction,e0\r\n# between\r\n\r\nx,\"Ag+ + e- -> Ag(s)\",0.8\r\n  \r\ny,Cu2+ + 2 e- -> Cu(s),abc\r\n";
+        let file = CoupleFile::from_text(text, FileFormat::Csv);
+        assert_eq!(file.records.len(), 2);
+        let reaction = file.records[0].reaction.as_ref().unwrap();
+        assert_eq!(slice(&file, reaction.span), "\"Ag+ + e- -> Ag(s)\"");
+        assert_eq!(file.line_column(reaction.span.start), (6, 3));
+        let second = file.records[1].reaction.as_ref().unwrap();
+        assert_eq!(slice(&file, second.span), "Cu2+ + 2 e- -> Cu(s)");
+        assert_eq!(file.line_column(second.span.start).0, 8);
+        assert_eq!(slice(&file, file.problems[0].span), "abc");
+        assert_eq!(
+            slice(&file, file.records[0].span),
+            "x,\"Ag+ + e- -> Ag(s)\",0.8"
+        );
+    }
+
+    #[test]
+    fn csv_quoted_fields_hold_commas_quotes_and_line_breaks() {
+        let text = "id,reaction,e0,note\na,\"Ag+ + e- -> Ag(s)\",0.8,\"says \"\"hi\"\",\nthen more\"\nb,\"Cu2+ + 2 e- -> Cu(s)\",0.34,\n";
+        let file = CoupleFile::from_text(text, FileFormat::Csv);
+        assert!(file.problems.is_empty(), "{:?}", file.problems);
+        assert_eq!(file.records.len(), 2);
+        assert_eq!(
+            file.records[0].note.as_ref().unwrap().value,
+            "says \"hi\",\nthen more"
+        );
+        assert_eq!(file.records[1].e0_volts.as_ref().unwrap().value, 0.34);
+        let unterminated =
+            CoupleFile::from_text("id,reaction,e0\na,\"Ag+ -> Ag\n", FileFormat::Csv);
+        assert_eq!(unterminated.problems.len(), 1);
+        assert_eq!(unterminated.problems[0].kind, ProblemKind::Syntax);
+        assert_eq!(unterminated.problems[0].span.start, 17);
+    }
+
+    #[test]
+    fn a_csv_column_named_twice_is_an_error_at_the_second() {
+        let text = "reaction,e0,e0\nAg+ + e- -> Ag(s),0.80,0.10\n";
+        let file = CoupleFile::from_text(text, FileFormat::Csv);
+        let problem = &file.problems[0];
+        assert_eq!(problem.kind, ProblemKind::Syntax);
+        assert_eq!(problem.span, Span::new(12, 14));
+        assert!(
+            problem.message.contains("columns 2 and 3"),
+            "{}",
+            problem.message
+        );
+        // The first column is the one read.
+        assert_eq!(file.records[0].e0_volts.as_ref().unwrap().value, 0.80);
     }
 
     #[test]

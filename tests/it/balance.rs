@@ -4,6 +4,7 @@
 use assert_cmd::Command;
 use couplet::balance::{
     BalanceError, BalanceOptions, BalancedReaction, ElectronRule, Impossible, Medium, balance,
+    balance_counting,
 };
 use couplet::notation::{Equation, parse_equation};
 use couplet::reaction::Reaction;
@@ -265,6 +266,127 @@ fn the_half_reaction_test_adds_electrons_only_when_needed() {
     // Two elements oxidised and none reduced: not a half-reaction, and no balance.
     let e = balance(&"Cu + Fe2+ -> Cu2+ + Fe3+".parse().unwrap(), &acid).unwrap_err();
     assert_eq!(e.kind(), "impossible");
+}
+
+#[test]
+fn a_whole_reaction_written_across_the_arrow_is_impossible_not_a_family_of_halves() {
+    // Iron(III) and iron metal comproportionate to iron(II): 2 Fe3+ + Fe -> 3 Fe2+ (common
+    // practice, the reason iron powder keeps iron(II) solutions reduced). Written with Fe on
+    // the right, the one balance has Fe across the arrow; adding e- would only make a
+    // two-dimensional family of half-reactions.
+    let input = "Fe3+ -> Fe2+ + Fe";
+    let e = balance(&input.parse().unwrap(), &BalanceOptions::default()).unwrap_err();
+    match &e {
+        BalanceError::Impossible(Impossible::WrongSide { species, moved }) => {
+            let moved_names: Vec<String> = species.iter().map(|s| s.ascii()).collect();
+            assert_eq!(moved_names, ["Fe"]);
+            assert_conserves(moved);
+            assert_eq!(
+                sides_of_reaction(moved),
+                (
+                    side(vec![
+                        ("Fe1 z3".into(), 2.into()),
+                        ("Fe1 z0".into(), 1.into())
+                    ]),
+                    side(vec![("Fe1 z2".into(), 3.into())])
+                )
+            );
+        }
+        other => panic!("{other:?}"),
+    }
+    // Asked for a half-reaction, the user still gets the family.
+    let half = BalanceOptions {
+        electrons: ElectronRule::Always,
+        ..BalanceOptions::default()
+    };
+    let e = balance(&input.parse().unwrap(), &half).unwrap_err();
+    assert_eq!(e.kind(), "not_unique");
+}
+
+/// A hostile equation of our own: `species` species (half on each side), each of three
+/// elements drawn from the first `elements` element symbols, with six-digit subscripts, from a
+/// fixed linear congruential sequence (so every run builds the same text).
+pub fn hostile_equation(species: usize, elements: usize) -> String {
+    const SYMBOLS: &str = "H He Li Be B C N O F Ne Na Mg Al Si P S Cl Ar K Ca Sc Ti V Cr Mn Fe Co Ni Cu Zn Ga Ge As Se Br Kr Rb Sr Y Zr Nb Mo Tc Ru Rh Pd Ag Cd In Sn Sb Te I Xe Cs Ba La Ce Pr Nd Pm Sm Eu Gd Tb Dy Ho Er Tm Yb Lu Hf Ta W Re Os Ir Pt Au Hg Tl Pb Bi";
+    let symbols: Vec<&str> = SYMBOLS.split(' ').take(elements).collect();
+    let mut state: u64 = 0x2545_f491_4f6c_dd1d;
+    let mut next = |bound: u64| {
+        state = state
+            .wrapping_mul(6_364_136_223_846_793_005)
+            .wrapping_add(1_442_695_040_888_963_407);
+        (state >> 33) % bound
+    };
+    let mut formulas = Vec::new();
+    for _ in 0..species {
+        let mut chosen: Vec<&str> = Vec::new();
+        while chosen.len() < 3 {
+            let symbol = symbols[next(symbols.len() as u64) as usize];
+            if !chosen.contains(&symbol) {
+                chosen.push(symbol);
+            }
+        }
+        let formula: String = chosen
+            .iter()
+            .map(|s| format!("{s}{}", 100_000 + next(900_000)))
+            .collect();
+        formulas.push(formula);
+    }
+    let (left, right) = formulas.split_at(species / 2);
+    format!("{} -> {}", left.join(" + "), right.join(" + "))
+}
+
+#[test]
+fn a_hostile_equation_stops_at_the_work_limit_quickly() {
+    // 64 species (the parser's most) over 70 elements with six-digit subscripts: the exact
+    // arithmetic grows to hundreds of digits. A small limit keeps the test fast; the default
+    // limit's timing is in benches/balance.rs.
+    let text = hostile_equation(64, 70);
+    assert!(text.len() <= 4096, "within the parser's input limit");
+    // The benchmarks time the same text (benches/balance.rs, benches/check.rs).
+    assert_eq!(
+        text,
+        include_str!("../data/hostile_64_species.txt").trim_end()
+    );
+    let equation = parse_equation(&text).unwrap();
+    let limited = BalanceOptions {
+        work_limit: 300_000,
+        ..BalanceOptions::default()
+    };
+    let (result, used) = balance_counting(&equation, &limited);
+    let error = result.unwrap_err();
+    assert_eq!(error.kind(), "limit");
+    assert!(matches!(error, BalanceError::Limit { limit: 300_000 }));
+    assert!(error.to_string().starts_with("work limit: "), "{error}");
+    // The meter stops at the first charge past the limit: one row update at most.
+    assert!(used > 300_000 && used < 600_000, "{used}");
+}
+
+#[test]
+fn the_reason_for_an_impossible_balance_is_worked_out_only_when_reported() {
+    // Corpus half-01 skeleton: balancing without e- fails, then e- is added. The failed first
+    // attempt's reason is never reported, so its cost must not be paid: the work is exactly
+    // that of the two solves.
+    let equation: Equation = "MnO4- -> Mn2+".parse().unwrap();
+    let acid = |electrons, explain_impossible| BalanceOptions {
+        medium: Medium::Acid,
+        electrons,
+        explain_impossible,
+        ..BalanceOptions::default()
+    };
+    let (found, both) = balance_counting(&equation, &acid(ElectronRule::HalfReactions, true));
+    assert_eq!(
+        found.unwrap().ascii(),
+        "MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O"
+    );
+    let (plain, plain_work) = balance_counting(&equation, &acid(ElectronRule::Never, false));
+    assert!(matches!(
+        plain,
+        Err(BalanceError::Impossible(Impossible::NotExplained))
+    ));
+    let (_, explained_work) = balance_counting(&equation, &acid(ElectronRule::Never, true));
+    let (_, half_work) = balance_counting(&equation, &acid(ElectronRule::Always, true));
+    assert!(explained_work > plain_work, "the reason costs work");
+    assert_eq!(both, plain_work + half_work);
 }
 
 // ---- properties ----

@@ -158,9 +158,10 @@ fn every_rule_has_a_fixture_or_a_generated_case() {
         .iter()
         .map(|p| p.file_stem().unwrap().to_str().unwrap().to_owned())
         .collect();
-    // CPL106 (too large) and CPL205 (oxidation numbers) are made at run time below.
+    // CPL106 (too large), CPL205 (oxidation numbers) and CPL405 (additivity cut short) are
+    // made at run time below.
     for rule in Rule::ALL {
-        let generated = matches!(rule.code(), "CPL106" | "CPL205");
+        let generated = matches!(rule.code(), "CPL106" | "CPL205" | "CPL405");
         assert!(
             generated || fixtures.iter().any(|f| f == rule.code()),
             "no fixture for {}",
@@ -449,8 +450,9 @@ fn fix_dry_run_prints_a_diff_and_writes_nothing() {
         ),
         "{stdout}"
     );
+    // A literal string stays literal.
     assert!(
-        stdout.contains("+reaction = \"Cu2+ + 2 e- -> Cu(s)\""),
+        stdout.contains("+reaction = 'Cu2+ + 2 e- -> Cu(s)'"),
         "{stdout}"
     );
 }
@@ -481,7 +483,7 @@ fn fix_then_check_leaves_no_fixable_error_and_changes_no_other_byte() {
                 5,
                 "reaction   =   \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O(l)\"   # dropped water"
             ),
-            (11, "reaction = \"Cu2+ + 2 e- -> Cu(s)\""),
+            (11, "reaction = 'Cu2+ + 2 e- -> Cu(s)'"),
         ]
     );
     assert!(fixed.ends_with('\n'));
@@ -492,25 +494,31 @@ fn fix_then_check_leaves_no_fixable_error_and_changes_no_other_byte() {
     assert_eq!(stdout, "");
 }
 
+/// Runs `--fix` on `path`, which holds `input` with one MnO4- entry short of one water, and
+/// checks that only that count changed.
+fn assert_fix_adds_the_water(path: &Path, input: &str) {
+    let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
+    assert_eq!(status, 0);
+    assert_eq!(
+        std::fs::read_to_string(path).unwrap(),
+        input.replace("3 H2O", "4 H2O")
+    );
+}
+
 #[test]
 fn fix_rewrites_csv_fields_only() {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("t.csv");
-    let input = "# invented rows\nid,reaction,e0,source\nt-fe,\"Fe3+ + 2 e- -> Fe2+\",0.77,invented\nt-ag,Ag+ + e- -> Ag(s),0.80,invented\n";
+    let input = "# invented rows\nid,reaction,e0,source\nt-mn,\"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\",1.51,invented\nt-ag,Ag+ + e- -> Ag(s),0.80,invented\n";
     std::fs::write(&path, input).unwrap();
-    let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
-    assert_eq!(status, 0);
-    assert_eq!(
-        std::fs::read_to_string(&path).unwrap(),
-        input.replace("Fe3+ + 2 e- -> Fe2+", "Fe3+ + e- -> Fe2+")
-    );
+    assert_fix_adds_the_water(&path, input);
 }
 
 #[test]
 fn fix_leaves_a_file_with_syntax_errors_alone() {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("t.toml");
-    let input = "[[couple]]\nreaction = \"Fe3+ + 2 e- -> Fe2+\"\ne0 = 0.77\nsource = \"invented\"\n[[couple]\n";
+    let input = "[[couple]]\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\"\ne0 = 1.51\nsource = \"invented\"\n[[couple]\n";
     std::fs::write(&path, input).unwrap();
     let (_, stderr, status) = run(&["--fix", path.to_str().unwrap()]);
     assert_eq!(status, 1);
@@ -670,5 +678,484 @@ fn the_couple_file_schema_accepts_the_builtin_table_and_rejects_bad_entries() {
     ] {
         let value = serde_json::to_value(toml::from_str::<toml::Value>(bad).unwrap()).unwrap();
         assert!(!validator.is_valid(&value), "accepted: {bad}");
+    }
+}
+
+// ---- hostile input and work limits ----
+
+fn report_of(text: &str, format: FileFormat, options: &CheckOptions) -> couplet::check::Report {
+    let name = match format {
+        FileFormat::Toml => "t.toml",
+        FileFormat::Csv => "t.csv",
+    };
+    check(
+        vec![SourceFile::new(name, CoupleFile::from_text(text, format))],
+        options,
+    )
+}
+
+fn hostile_entries(count: usize) -> String {
+    let reaction = crate::balance::hostile_equation(64, 70);
+    (0..count)
+        .map(|i| {
+            format!("[[couple]]\nid = \"h{i}\"\nreaction = \"{reaction}\"\ne0 = 0.1\nsource = \"invented\"\n")
+        })
+        .collect()
+}
+
+#[test]
+fn a_hostile_reaction_costs_the_checker_at_most_its_work_limit() {
+    // Small limits keep the test fast; the defaults are timed in benches/check.rs.
+    let options = CheckOptions {
+        reaction_work_limit: 200_000,
+        work_limit: 500_000,
+        ..CheckOptions::default()
+    };
+    let report = report_of(&hostile_entries(4), FileFormat::Toml, &options);
+    let messages: Vec<&str> = report
+        .findings
+        .iter()
+        .filter(|f| f.rule.code() == "CPL204")
+        .map(|f| f.message.as_str())
+        .collect();
+    assert_eq!(messages.len(), 4);
+    // Two reactions use their own limit; the budget then runs out for the rest.
+    let own_limit = "(no suggestion: balancing it needs more than the work limit of 200000 units)";
+    assert!(messages[0].ends_with(own_limit), "{}", messages[0]);
+    assert!(messages[1].ends_with(own_limit), "{}", messages[1]);
+    for message in &messages[2..] {
+        assert!(message.contains("spent its balancing budget"), "{message}");
+    }
+    assert!(
+        report
+            .findings
+            .iter()
+            .all(|f| f.suggestion.is_none() && f.fix.is_none())
+    );
+}
+
+#[test]
+fn a_fix_never_changes_the_electrons_of_the_oxidant() {
+    // Fe3+ + e- -> Fe2+ is the iron(III)/iron(II) couple, E° = +0.771 V (CRC Handbook of
+    // Chemistry and Physics, electrochemical series). Written with Fe instead of Fe2+, the
+    // balancer's form has 3 e-: another couple (Fe3+/Fe, about -0.04 V in the same table), so
+    // it is offered, never written by --fix.
+    let text =
+        "[[couple]]\nreaction = \"Fe3+ + e- -> Fe\"\ne0 = 0.771\nsource = \"invented typo\"\n";
+    let report = report_of(text, FileFormat::Toml, &CheckOptions::default());
+    let finding = &report.findings[0];
+    assert_eq!(finding.rule.code(), "CPL202");
+    // Left +3 - 1 = +2, right 0.
+    assert!(
+        finding
+            .message
+            .starts_with("charge not conserved: the right side carries 2 less than the left"),
+        "{}",
+        finding.message
+    );
+    assert_eq!(finding.suggestion.as_deref(), Some("Fe3+ + 3 e- -> Fe"));
+    assert!(finding.fix.is_none());
+    assert!(
+        finding
+            .message
+            .contains("changes the electrons per oxidant from 1 to 3"),
+        "{}",
+        finding.message
+    );
+    // Completing missing water keeps the oxidant's 5 e- per MnO4-: fixed automatically
+    // (OpenStax Chemistry 2e, Appendix L: MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O).
+    let text = "[[couple]]\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\"\ne0 = 1.507\nsource = \"invented typo\"\n";
+    let report = report_of(text, FileFormat::Toml, &CheckOptions::default());
+    assert!(report.findings[0].fix.is_some());
+}
+
+// ---- what --fix refuses, and what it keeps ----
+
+/// An invented entry whose fix only completes the water (5 e- per MnO4- kept).
+const FIXABLE: &str = "[[couple]]\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\"\ne0 = 1.51\nsource = \"invented\"\n";
+const FIXED: &str = "[[couple]]\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O\"\ne0 = 1.51\nsource = \"invented\"\n";
+
+fn names_in(dir: &Path) -> Vec<String> {
+    let mut names: Vec<String> = std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    names
+}
+
+#[test]
+fn a_file_changed_after_it_was_read_is_not_overwritten() {
+    use couplet::check::fix::{FixError, Rewrite, write_all};
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.toml");
+    // A couple appended by someone else after the checker read FIXABLE.
+    let appended = format!(
+        "{FIXABLE}[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.80\nsource = \"invented\"\n"
+    );
+    std::fs::write(&path, &appended).unwrap();
+    let rewrite = Rewrite {
+        path: path.clone(),
+        original: FIXABLE.to_owned(),
+        text: FIXED.to_owned(),
+    };
+    let error = write_all(&[rewrite]).unwrap_err();
+    assert!(matches!(error, FixError::Changed { .. }), "{error}");
+    assert!(
+        error
+            .to_string()
+            .ends_with("changed while it was being fixed; run the fix again")
+    );
+    assert_eq!(std::fs::read_to_string(&path).unwrap(), appended);
+    assert_eq!(names_in(dir.path()), ["t.toml"], "no temporary file left");
+}
+
+#[cfg(unix)]
+#[test]
+fn a_symbolic_link_is_followed_and_stays_a_link() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("real.toml");
+    let link = dir.path().join("link.toml");
+    std::fs::write(&target, FIXABLE).unwrap();
+    std::os::unix::fs::symlink(&target, &link).unwrap();
+    let (_, status) = run_json(&["--fix", link.to_str().unwrap()]);
+    assert_eq!(status, 0);
+    assert!(
+        std::fs::symlink_metadata(&link)
+            .unwrap()
+            .file_type()
+            .is_symlink()
+    );
+    assert_eq!(std::fs::read_to_string(&target).unwrap(), FIXED);
+    assert_eq!(names_in(dir.path()), ["link.toml", "real.toml"]);
+}
+
+#[cfg(unix)]
+#[test]
+fn hard_linked_and_read_only_files_are_refused_untouched() {
+    use std::os::unix::fs::PermissionsExt;
+    let dir = tempfile::tempdir().unwrap();
+    let first = dir.path().join("a.toml");
+    let second = dir.path().join("b.toml");
+    std::fs::write(&first, FIXABLE).unwrap();
+    std::fs::hard_link(&first, &second).unwrap();
+    let (_, stderr, status) = run(&["--fix", first.to_str().unwrap()]);
+    assert_eq!(status, 2, "{stderr}");
+    assert!(stderr.contains("has 2 hard links"), "{stderr}");
+    assert!(stderr.contains("no file was changed"), "{stderr}");
+    assert_eq!(std::fs::read_to_string(&second).unwrap(), FIXABLE);
+
+    let read_only = dir.path().join("r.toml");
+    std::fs::write(&read_only, FIXABLE).unwrap();
+    std::fs::set_permissions(&read_only, std::fs::Permissions::from_mode(0o444)).unwrap();
+    let (_, stderr, status) = run(&["--fix", read_only.to_str().unwrap()]);
+    assert_eq!(status, 2, "{stderr}");
+    assert!(stderr.contains("is read-only"), "{stderr}");
+    assert_eq!(std::fs::read_to_string(&read_only).unwrap(), FIXABLE);
+    assert_eq!(names_in(dir.path()), ["a.toml", "b.toml", "r.toml"]);
+}
+
+#[test]
+fn leftovers_of_a_killed_fix_are_recognisable_and_removed_later() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.toml");
+    std::fs::write(&path, FIXABLE).unwrap();
+    // What a run killed between writing and renaming leaves: an old, full-size copy.
+    let stale = dir.path().join(".t.toml.couplet-fix-Xy12ab.tmp");
+    std::fs::write(&stale, FIXED).unwrap();
+    let an_hour_ago = std::time::SystemTime::now() - std::time::Duration::from_secs(3600);
+    std::fs::File::options()
+        .write(true)
+        .open(&stale)
+        .unwrap()
+        .set_modified(an_hour_ago)
+        .unwrap();
+    // A fresh one may belong to a fix running now: kept.
+    let fresh = dir.path().join(".t.toml.couplet-fix-Zz98cd.tmp");
+    std::fs::write(&fresh, FIXED).unwrap();
+    let (_, status) = run_json(&["--fix", path.to_str().unwrap()]);
+    assert_eq!(status, 0);
+    assert_eq!(std::fs::read_to_string(&path).unwrap(), FIXED);
+    assert_eq!(
+        names_in(dir.path()),
+        [".t.toml.couplet-fix-Zz98cd.tmp", "t.toml"]
+    );
+}
+
+#[test]
+fn literal_toml_strings_stay_literal() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.toml");
+    let literal = FIXABLE.replace('"', "'");
+    std::fs::write(&path, &literal).unwrap();
+    let (sarif, _, _) = run(&["--format", "sarif", path.to_str().unwrap()]);
+    let sarif: Value = serde_json::from_str(&sarif).unwrap();
+    let inserted = &sarif["runs"][0]["results"][0]["fixes"][0]["artifactChanges"][0]["replacements"]
+        [0]["insertedContent"]["text"];
+    assert_eq!(inserted, "'MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O'");
+    assert_fix_adds_the_water(&path, &literal);
+}
+
+// ---- CSV positions ----
+
+#[test]
+fn csv_findings_and_fixes_point_at_the_right_place_after_comments_blanks_and_crlf() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.csv");
+    // Invented rows; the MnO4- row lacks one water (line 6).
+    let input = "# invented rows\r\n\r\nid,reaction,e0,source\r\n# a comment between rows\r\n\r\nt-mn,MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O,1.51,invented\r\n";
+    std::fs::write(&path, input).unwrap();
+    let (json, _) = run_json(&[path.to_str().unwrap()]);
+    let diagnostic = &json["diagnostics"][0];
+    assert_eq!(diagnostic["code"], "CPL201");
+    assert_eq!(
+        (diagnostic["line"].as_u64(), diagnostic["column"].as_u64()),
+        (Some(6), Some(6))
+    );
+    let (sarif, _, _) = run(&["--format", "sarif", path.to_str().unwrap()]);
+    let sarif: Value = serde_json::from_str(&sarif).unwrap();
+    let replacement =
+        &sarif["runs"][0]["results"][0]["fixes"][0]["artifactChanges"][0]["replacements"][0];
+    // The deleted region is exactly the 35 characters of the reaction field on line 6
+    // (SARIF 2.1.0 §3.30.7: endColumn is the column after the last character).
+    assert_eq!(
+        replacement["deletedRegion"],
+        serde_json::json!({"startLine": 6, "startColumn": 6, "endLine": 6, "endColumn": 41})
+    );
+    assert_fix_adds_the_water(&path, input);
+}
+
+#[test]
+fn a_csv_column_named_twice_is_reported_where_it_is_written() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.csv");
+    std::fs::write(
+        &path,
+        "# invented\nreaction,e0,source,e0\nAg+ + e- -> Ag(s),0.80,invented,0.10\n",
+    )
+    .unwrap();
+    let (json, status) = run_json(&[path.to_str().unwrap()]);
+    assert_eq!(status, 1);
+    let diagnostic = &json["diagnostics"][0];
+    assert_eq!(diagnostic["code"], "CPL101");
+    assert_eq!(
+        (diagnostic["line"].as_u64(), diagnostic["column"].as_u64()),
+        (Some(2), Some(20))
+    );
+    assert!(
+        diagnostic["message"]
+            .as_str()
+            .unwrap()
+            .contains("'e0' is named twice"),
+        "{json}"
+    );
+}
+
+// ---- resource caps ----
+
+#[test]
+fn a_device_given_as_a_table_is_refused_after_the_size_limit() {
+    // /dev/zero never ends: the reader stops one byte past 32 MiB.
+    let output = couplet()
+        .args(["table", "--table", "/dev/zero"])
+        .timeout(std::time::Duration::from_secs(60))
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    let stderr = String::from_utf8(output.stderr).unwrap();
+    assert!(stderr.contains("more than 32 MiB"), "{stderr}");
+}
+
+#[cfg(unix)]
+#[test]
+fn a_fifo_named_for_checking_is_refused_without_blocking() {
+    let dir = tempfile::tempdir().unwrap();
+    let fifo = dir.path().join("couples.toml");
+    let made = std::process::Command::new("mkfifo")
+        .arg(&fifo)
+        .status()
+        .unwrap();
+    assert!(made.success());
+    let output = couplet()
+        .args(["check", fifo.to_str().unwrap()])
+        .timeout(std::time::Duration::from_secs(20))
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2), "exited, not timed out");
+    let stderr = String::from_utf8(output.stderr).unwrap();
+    assert!(stderr.contains("not a regular file"), "{stderr}");
+}
+
+#[test]
+fn streamed_json_and_sarif_are_the_documented_documents() {
+    let paths: Vec<PathBuf> = fixture_files().into_iter().take(6).collect();
+    let sources = paths
+        .iter()
+        .map(|p| couplet::check::load_file(p).unwrap())
+        .collect();
+    let report = check(sources, &CheckOptions::default());
+    assert!(report.findings.len() >= 6);
+    let mut streamed = Vec::new();
+    couplet::check::output::write_sarif(&report, &mut streamed).unwrap();
+    let streamed: Value = serde_json::from_slice(&streamed).unwrap();
+    assert_eq!(streamed, couplet::check::output::sarif(&report));
+    let mut streamed = Vec::new();
+    couplet::check::output::write_json(&report, &mut streamed).unwrap();
+    assert_eq!(streamed.last(), Some(&b'\n'));
+    let streamed: Value = serde_json::from_slice(&streamed).unwrap();
+    assert_eq!(streamed, couplet::check::output::json(&report));
+}
+
+// ---- one rule of state defaults ----
+
+fn rule_codes(report: &couplet::check::Report) -> Vec<&'static str> {
+    report.findings.iter().map(|f| f.rule.code()).collect()
+}
+
+#[test]
+fn unlabelled_species_match_their_labelled_form_as_cell_reads_them() {
+    // Rule CPL306 (e0 against formation data) would also speak on these values; this test is
+    // about matching, so it is off here.
+    let options = CheckOptions {
+        formation: None,
+        ..CheckOptions::default()
+    };
+    // Cu2+/Cu, E° = +0.342 V (CRC Handbook of Chemistry and Physics, electrochemical series;
+    // value from memory): the same couple written with and without (s), 0.2 V apart.
+    let text = "[[couple]]\nreaction = \"Cu2+ + 2 e- -> Cu\"\ne0 = 0.342\nsource = \"CRC\"\n\n[[couple]]\nreaction = \"Cu2+ + 2 e- -> Cu(s)\"\ne0 = 0.542\nsource = \"invented error\"\n";
+    let report = report_of(text, FileFormat::Toml, &options);
+    assert_eq!(rule_codes(&report), ["CPL402"]);
+    // Fe3+/Fe2+ +0.771 V, Fe2+/Fe -0.447 V, Fe3+/Fe -0.037 V (same table, from memory):
+    // free energies add, (2(-0.447) + 0.771)/3 = -0.041 V, within 0.01 V of -0.037 V. The
+    // metal written once as Fe and once as Fe(s) still links the couples.
+    let consistent = "[[couple]]\nreaction = \"Fe3+ + e- -> Fe2+\"\ne0 = 0.771\nsource = \"CRC\"\n\n[[couple]]\nreaction = \"Fe2+ + 2 e- -> Fe\"\ne0 = -0.447\nsource = \"CRC\"\n\n[[couple]]\nreaction = \"Fe3+ + 3 e- -> Fe(s)\"\ne0 = -0.037\nsource = \"CRC\"\n";
+    let report = report_of(consistent, FileFormat::Toml, &options);
+    assert_eq!(rule_codes(&report), Vec::<&str>::new());
+    let broken = consistent.replace("e0 = -0.037", "e0 = 0.2");
+    let report = report_of(&broken, FileFormat::Toml, &options);
+    assert_eq!(rule_codes(&report), ["CPL403"]);
+    // With no pairs allowed, the additivity check says that it stopped instead of passing.
+    let bounded = CheckOptions {
+        additivity_pair_limit: 0,
+        ..options
+    };
+    let report = report_of(&broken, FileFormat::Toml, &bounded);
+    assert_eq!(rule_codes(&report), ["CPL405"]);
+    assert!(
+        report.findings[0]
+            .message
+            .starts_with("the additivity check stopped after 0 pairs")
+    );
+    // The cell engine reads Fe and Fe(s) alike: both solids, out of Q.
+    let bare: couplet::notation::Species = couplet::notation::parse_species("Fe").unwrap();
+    let labelled = couplet::notation::parse_species("Fe(s)").unwrap();
+    assert_eq!(
+        couplet::quotient::phase(&bare),
+        couplet::quotient::phase(&labelled)
+    );
+}
+
+// ---- paths and empty runs ----
+
+#[test]
+fn a_file_reached_by_two_paths_is_checked_once() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("t.toml");
+    std::fs::write(&path, "[[couple]]\nid = \"ag\"\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.80\nsource = \"invented\"\n").unwrap();
+    let dotted = dir.path().join(".").join("t.toml");
+    let (json, status) = run_json(&[
+        path.to_str().unwrap(),
+        dotted.to_str().unwrap(),
+        dir.path().to_str().unwrap(),
+    ]);
+    assert_eq!(status, 0, "{json}");
+    assert_eq!(codes(&json), Vec::<String>::new());
+    assert_eq!(json["summary"]["files"], 1);
+}
+
+#[test]
+fn nothing_to_check_is_said_and_can_be_made_to_fail() {
+    let dir = tempfile::tempdir().unwrap();
+    let empty = dir.path().join("empty.toml");
+    std::fs::write(&empty, "# no couples yet\n").unwrap();
+    let (_, stderr, status) = run(&[empty.to_str().unwrap()]);
+    assert_eq!(status, 0);
+    assert!(
+        stderr.contains("nothing to check: the files given hold no couples"),
+        "{stderr}"
+    );
+    let (_, _, status) = run(&["--expect-couples", empty.to_str().unwrap()]);
+    assert_eq!(status, 1);
+    let nested = dir.path().join("nothing-here");
+    std::fs::create_dir(&nested).unwrap();
+    let (stdout, stderr, status) = run(&[
+        "--format",
+        "json",
+        "--expect-couples",
+        nested.to_str().unwrap(),
+    ]);
+    assert_eq!(status, 1);
+    assert!(stderr.contains("no couple files were found"), "{stderr}");
+    // Standard output is still the report.
+    let json: Value = serde_json::from_str(&stdout).unwrap();
+    assert_eq!(json["summary"]["files"], 0);
+}
+
+// ---- mangled files: no panic, every finding inside the file ----
+
+/// Invented entries in both formats, with a comment, CRLF and a quoted field, to mangle.
+const MANGLE_TOML: &str = "# invented\n[[couple]]\nid = \"mn\"\nreaction = \"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\"\ne0 = 1.51\nmedium = 'acid'\nsource = \"x\"\n\n[[couple]]\nreaction = 'Cu2+ -> Cu'\ne0 = 0.34\n";
+const MANGLE_CSV: &str = "# invented\r\nid,reaction,e0,source\r\n\r\nmn,\"MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O\",1.51,x\r\ncu,Cu2+ -> Cu,0.34,\"a, b\"\r\n";
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(200))]
+
+    #[test]
+    fn mangled_couple_files_give_findings_inside_the_file(
+        csv in proptest::prelude::any::<bool>(),
+        edits in proptest::collection::vec(
+            (0usize..400, proptest::sample::select(vec![
+                "", "\"", "'", ",", "\n", "\r\n", "#", "[[couple]]\n", "[", "=", "\\", "é", "e-", " + ", "->", "0",
+            ])),
+            1..6,
+        ),
+    ) {
+        let (mut text, format) = if csv {
+            (MANGLE_CSV.to_owned(), FileFormat::Csv)
+        } else {
+            (MANGLE_TOML.to_owned(), FileFormat::Toml)
+        };
+        for (at, insert) in edits {
+            let mut at = at % (text.len() + 1);
+            while !text.is_char_boundary(at) {
+                at -= 1;
+            }
+            // An empty insert deletes the character there instead.
+            if insert.is_empty() {
+                if let Some(c) = text[at..].chars().next() {
+                    text.replace_range(at..at + c.len_utf8(), "");
+                }
+            } else {
+                text.insert_str(at, insert);
+            }
+        }
+        let report = report_of(&text, format, &CheckOptions::default());
+        for finding in &report.findings {
+            proptest::prop_assert!(finding.span.start <= finding.span.end);
+            proptest::prop_assert!(finding.span.end <= text.len(), "{:?} in {:?}", finding, text);
+        }
+        // A fix either reads back as intended or is refused; it never panics.
+        let fixes = report.fixes_for(0);
+        if !fixes.is_empty() {
+            if let Ok(fixed) = couplet::check::fix::apply(&report.files[0].file, &fixes) {
+                let again = CoupleFile::from_text(&fixed, format);
+                proptest::prop_assert_eq!(again.records.len(), report.files[0].file.records.len());
+            }
+        }
+        // Every rendering works on whatever was found.
+        let _ = couplet::check::output::human(&report, couplet::check::output::Colour::Never);
+        let mut sarif = Vec::new();
+        couplet::check::output::write_sarif(&report, &mut sarif).unwrap();
+        proptest::prop_assert!(serde_json::from_slice::<Value>(&sarif).is_ok());
     }
 }
