@@ -75,7 +75,7 @@ fn failure(error: &DiagramError) -> Failure {
     match error {
         DiagramError::EmptyWindow(_)
         | DiagramError::Conditions(_)
-        | DiagramError::UnknownExclusion(_) => Failure::usage(error.to_string()),
+        | DiagramError::UnknownExclusion { .. } => Failure::usage(error.to_string()),
         _ => Failure::new("chemistry", EXIT_FINDINGS, error.to_string()),
     }
 }
@@ -381,12 +381,33 @@ fn text_of(d: &Diagram, second: Option<&Axis>) -> String {
         );
     }
     let _ = writeln!(out, "\nwater (1 bar)");
-    let _ = writeln!(out, "  H2O/H2  {}", line_text(&d.water.hydrogen));
-    let _ = writeln!(out, "  O2/H2O  {}", line_text(&d.water.oxygen));
+    for (name, line) in [("H2O/H2", &d.water.hydrogen), ("O2/H2O", &d.water.oxygen)] {
+        let mut text = line_text(line);
+        if axis.label != "SHE" {
+            let _ = write!(
+                text,
+                " vs SHE; {} vs {}",
+                line_text(&on_axis(line, axis)),
+                axis.label
+            );
+        }
+        if let Some(s) = second {
+            let _ = write!(text, "; {} vs {}", line_text(&on_axis(line, s)), s.label);
+        }
+        let _ = writeln!(out, "  {name}  {text}");
+    }
     if !d.left_out.is_empty() {
         let _ = writeln!(out, "\nleft out");
+        // Rows left out for the same reason share one line.
+        let mut reasons: Vec<(&str, Vec<&str>)> = Vec::new();
         for l in &d.left_out {
-            let _ = writeln!(out, "  {:<22} {}", l.label, l.reason);
+            match reasons.iter_mut().find(|(r, _)| *r == l.reason) {
+                Some((_, labels)) => labels.push(&l.label),
+                None => reasons.push((&l.reason, vec![&l.label])),
+            }
+        }
+        for (reason, labels) in reasons {
+            let _ = writeln!(out, "  {}: {reason}", labels.join(", "));
         }
     }
     for note in &d.notes {

@@ -180,8 +180,15 @@ pub enum DiagramError {
         second: String,
     },
     /// An excluded species is not among the species of the element.
-    #[error("--exclude {0}: no such species of the element in the data")]
-    UnknownExclusion(String),
+    #[error(
+        "--exclude {species}: no such species of the element in the data (write charges with a caret where digits precede them, FeOH^2+); the species here: {available}"
+    )]
+    UnknownExclusion {
+        /// The species as given.
+        species: String,
+        /// The species the diagram has.
+        available: String,
+    },
 }
 
 /// How ΔfG° was carried to the diagram's temperature.
@@ -646,7 +653,14 @@ pub fn diagram(request: &Request<'_>) -> Result<Diagram, DiagramError> {
             .iter()
             .any(|(r, _)| excluded(r, std::slice::from_ref(x)))
         {
-            return Err(DiagramError::UnknownExclusion(x.ascii()));
+            let available: Vec<String> = rows
+                .iter()
+                .map(|(r, c)| conventional(r, element, *c).ascii())
+                .collect();
+            return Err(DiagramError::UnknownExclusion {
+                species: x.ascii(),
+                available: available.join(", "),
+            });
         }
     }
     let reference = rows

@@ -14,5 +14,6 @@ mod export;
 mod nernst;
 mod notation;
 mod oxidation;
+mod stability;
 mod table;
 mod thermo;
