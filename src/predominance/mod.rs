@@ -361,7 +361,7 @@ fn corners(window: &Window) -> [(f64, f64); 4] {
     [she(p0, e0), she(p1, e0), she(p1, e1), she(p0, e1)]
 }
 
-/// ΔfG°(T) of a row and how it was had; `reference_entropy` gives S° of the reference rows.
+/// ΔfG°(T) of a row and how it was had; `formation_entropy` gives ΔfS° from S° when ΔfH° is missing.
 fn dfg_at(
     row: &FormationRow,
     temperature: f64,
