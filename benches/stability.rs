@@ -25,7 +25,10 @@ fn request(symbol: &str, gases: bool, temperature: f64) -> Request<'static> {
 
 fn bench(c: &mut Criterion) {
     let cases = [
-        ("boron, 20 species with gases, 25 C", request("B", true, 298.15)),
+        (
+            "boron, 20 species with gases, 25 C",
+            request("B", true, 298.15),
+        ),
         ("iron, 7 species, 25 C", request("Fe", false, 298.15)),
         ("iron, 7 species, 80 C", request("Fe", false, 353.15)),
     ];

@@ -396,7 +396,7 @@ fn row_of<'a>(data: &'a FormationData, text: &str, phase: DataPhase) -> Option<&
 }
 
 /// The element's counts in a row: (n of X, h, o, charge) when the row holds X and only H, O.
-fn counts_of(row: &FormationRow, element: Element) -> Option<(u64, u64, u64, i64)> {
+fn counts_of(row: &FormationRow, element: Element) -> Option<Counts> {
     let composition = &row.species.composition;
     let n = composition.count(element);
     if n == 0 {
@@ -474,7 +474,7 @@ fn named_formula(name: &str, element: Element) -> Option<Species> {
 
 /// The species written in conventional order (metal first, hydroxide groups in brackets) with
 /// its state label: CAS-keyed rows come in Hill order (`H2O2Zn`).
-fn conventional(row: &FormationRow, element: Element, counts: (u64, u64, u64, i64)) -> Species {
+fn conventional(row: &FormationRow, element: Element, counts: Counts) -> Species {
     let (n, h, o, charge) = counts;
     let number = |k: u64| if k == 1 { String::new() } else { k.to_string() };
     let state = match row.phase {
@@ -518,12 +518,15 @@ fn conventional(row: &FormationRow, element: Element, counts: (u64, u64, u64, i6
     species
 }
 
+/// Atoms in one formula unit: (of the element, of H, of O) and the charge.
+pub type Counts = (u64, u64, u64, i64);
+
 /// The species of an element the diagram can use, and those it leaves out with the reason.
 pub fn select(
     element: Element,
     data: &FormationData,
     include_gases: bool,
-) -> (Vec<(FormationRow, (u64, u64, u64, i64))>, Vec<LeftOut>) {
+) -> (Vec<(FormationRow, Counts)>, Vec<LeftOut>) {
     let mut taken = Vec::new();
     let mut left_out = Vec::new();
     for row in data.rows() {
