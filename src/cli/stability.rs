@@ -10,8 +10,8 @@ use couplet::figures::significant;
 use couplet::notation::{Species, parse_species};
 use couplet::output::diagram::diagram_svg;
 use couplet::predominance::{
-    Axis, Conditions, DEFAULT_ACTIVITY, Diagram, DiagramError, Line, Request, TemperatureRoute,
-    Window, diagram, reaction_text,
+    Axis, Conditions, Diagram, DiagramError, Line, Request, TemperatureRoute, Window, diagram,
+    reaction_text,
 };
 use couplet::scale::Scale;
 use serde_json::{Value, json};
@@ -25,7 +25,7 @@ pub struct StabilityArgs {
     element: String,
     /// Activity of every dissolved species of the element (1e-6 is the usual corrosion
     /// convention)
-    #[arg(long, default_value_t = DEFAULT_ACTIVITY)]
+    #[arg(long, default_value = "1e-6")]
     activity: f64,
     /// Temperature with its unit: 25C, 353.15K
     #[arg(long, default_value = "298.15K", value_parser = super::units::temperature)]
@@ -46,6 +46,10 @@ pub struct StabilityArgs {
     /// draw the whole diagram against the reversible hydrogen electrode
     #[arg(long, value_name = "SCALE")]
     scale: Option<String>,
+    /// Away from 25 °C, keep species whose data have neither ΔfH° nor S° at their 25 °C ΔfG°
+    /// (by default they are left out: their ΔfG° at T is unknown)
+    #[arg(long = "hold-unknown")]
+    hold_unknown: bool,
     /// Include gaseous species of the element
     #[arg(long)]
     gases: bool,
@@ -141,6 +145,7 @@ fn build(args: &StabilityArgs) -> Result<(Diagram, Option<Axis>), Failure> {
             activity: args.activity,
             gas_pressure_bar: args.gases.then_some(args.gas_pressure),
             temperature_kelvin: args.temperature,
+            hold_without_entropy: args.hold_unknown,
         },
         window: Window {
             ph: (args.ph_min, args.ph_max),

@@ -17,8 +17,9 @@
 //!
 //! Temperature: ΔfG°(T) = ΔfG° − (T − T°)·ΔfS° with ΔfS° = (ΔfH° − ΔfG°)/T° (the CRC tables'
 //! conventional ion values, H⁺ zero at every T, which is the SHE scale); when ΔfH° is missing,
-//! ΔfS° from S° of the species, the element, H2 and O2; when neither is there, ΔfG° is held at its
-//! 298.15 K value and the diagram says so. ΔfH° and ΔfS° are taken constant (no Cp° term).
+//! ΔfS° from S° of the species, the element, H2 and O2; when neither is there, the species is left
+//! out away from 298.15 K (its free energy there is unknown), or, when the caller asks, kept with
+//! ΔfG° held at its 298.15 K value, and the diagram says so. ΔfH° and ΔfS° are taken constant (no Cp° term).
 
 mod geometry;
 
@@ -36,6 +37,9 @@ use crate::thermo::{DataPhase, FormationData, FormationRow, composition_key};
 use num_rational::BigRational;
 use num_traits::One;
 
+/// Why a species is left out away from 298.15 K.
+const UNKNOWN_AT_T: &str = "no ΔfH° or S° in the data: ΔfG° at this temperature unknown (add ΔfH° with --formation, or hold ΔfG° at 298.15 K with --hold-unknown)";
+
 /// The usual activity of dissolved species in corrosion diagrams (common practice).
 pub const DEFAULT_ACTIVITY: f64 = 1e-6;
 
@@ -48,6 +52,9 @@ pub struct Conditions {
     pub gas_pressure_bar: Option<f64>,
     /// Temperature in kelvin.
     pub temperature_kelvin: f64,
+    /// Away from 298.15 K, keep species with neither ΔfH° nor S° at their 298.15 K ΔfG°
+    /// (otherwise they are left out, since their ΔfG°(T) is unknown).
+    pub hold_without_entropy: bool,
 }
 
 impl Default for Conditions {
@@ -56,6 +63,7 @@ impl Default for Conditions {
             activity: DEFAULT_ACTIVITY,
             gas_pressure_bar: None,
             temperature_kelvin: STANDARD_TEMPERATURE_KELVIN,
+            hold_without_entropy: false,
         }
     }
 }
@@ -730,6 +738,13 @@ pub fn diagram(request: &Request<'_>) -> Result<Diagram, DiagramError> {
         let m = 2 * o as i64 - h as i64;
         let k = m + z;
         let (dfg, route) = dfg_at(&row, temperature, formation_entropy);
+        if route == TemperatureRoute::Held && !conditions.hold_without_entropy {
+            left_out.push(LeftOut {
+                label: row.label(),
+                reason: UNKNOWN_AT_T.to_owned(),
+            });
+            continue;
+        }
         let ln_activity = match row.phase {
             DataPhase::Aqueous => conditions.activity.ln(),
             DataPhase::Gas => conditions.gas_pressure_bar.unwrap_or(1.0).ln(),
@@ -796,6 +811,17 @@ pub fn diagram(request: &Request<'_>) -> Result<Diagram, DiagramError> {
         notes.push(format!(
             "ΔfG° held at its 298.15 K value (the data give no ΔfH° or S°): {}",
             held.join(", ")
+        ));
+    }
+    let unknown: Vec<&str> = left_out
+        .iter()
+        .filter(|l| l.reason == UNKNOWN_AT_T)
+        .map(|l| l.label.as_str())
+        .collect();
+    if !unknown.is_empty() {
+        notes.push(format!(
+            "left out at this temperature, having no ΔfH° or S° to carry ΔfG° from 298.15 K: {}",
+            unknown.join(", ")
         ));
     }
     if temperature != STANDARD_TEMPERATURE_KELVIN {

@@ -536,3 +536,28 @@ fn svg_csv_and_json_outputs() {
     assert!(!blocked.exists());
     std::fs::remove_dir_all(&directory).unwrap();
 }
+
+#[test]
+fn species_without_entropy_data_are_left_out_away_from_25_c_unless_held() {
+    // PbOH⁺ has ΔfG° only (CRC ion table as shipped): at 80 °C its ΔfG° is unknown.
+    let at_80 = compute("Pb", 353.15, FormationData::builtin()).unwrap();
+    assert!(at_80.species.iter().all(|c| c.species.ascii() != "PbOH+"));
+    assert!(at_80.left_out.iter().any(|l| l.label == "PbOH+(aq)"));
+    assert!(at_80.notes.iter().any(|n| n.contains("PbOH+(aq)")));
+    let held = diagram(&Request {
+        element: Element::from_symbol("Pb").unwrap(),
+        conditions: Conditions {
+            temperature_kelvin: 353.15,
+            hold_without_entropy: true,
+            ..Conditions::default()
+        },
+        window: Window::default(),
+        exclude: Vec::new(),
+        data: FormationData::builtin(),
+    })
+    .unwrap();
+    let pboh = index(&held, "PbOH+");
+    // Held: the tabulated ΔfG° of the row, −226.3 kJ/mol.
+    assert!((held.species[pboh].dfg_joules_per_mol + 226_300.0).abs() < 1e-9);
+    assert!(held.notes.iter().any(|n| n.contains("held")));
+}
