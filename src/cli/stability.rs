@@ -299,11 +299,12 @@ fn text_of(d: &Diagram, second: Option<&Axis>) -> String {
         };
         let _ = writeln!(
             out,
-            "  {:<22} {:>5}  ΔfG° {:>9.2} kJ/mol{route}  [{} line {}]",
+            "  {:<22} {:>5}  ΔfG° {:>9.2} kJ/mol{route}  [{}] {} line {}",
             c.label(),
             couplet::oxidation::signed_text(&c.oxidation_number),
             c.dfg_joules_per_mol / 1000.0,
             c.row.table,
+            c.row.origin,
             c.row.line
         );
     }
