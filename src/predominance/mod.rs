@@ -156,6 +156,11 @@ pub enum DiagramError {
         "the formation data have no reference-state row of {0} (ΔfG° = 0): add one with --formation"
     )]
     NoReferenceState(String),
+    /// H and O are the elements of water, whose own diagram is the two water lines.
+    #[error(
+        "{0} is an element of water itself: its species are the frame of every diagram (the water lines), not a diagram of their own"
+    )]
+    WaterElement(String),
     /// Water is missing from the data.
     #[error("the formation data have no row for H2O(l)")]
     NoWater,
@@ -654,6 +659,9 @@ fn excluded(species: &FormationRow, exclude: &[Species]) -> bool {
 pub fn diagram(request: &Request<'_>) -> Result<Diagram, DiagramError> {
     check_window(request)?;
     let element = request.element;
+    if matches!(element.chemical_element().symbol(), "H" | "O") {
+        return Err(DiagramError::WaterElement(element.symbol().to_owned()));
+    }
     let symbol = element.symbol().to_owned();
     let data = request.data;
     let conditions = &request.conditions;
@@ -674,8 +682,12 @@ pub fn diagram(request: &Request<'_>) -> Result<Diagram, DiagramError> {
             });
         }
     }
-    let reference = rows
+    // The reference state need not take part (Cl2 and N2 are gases): any row of the pure
+    // element with ΔfG° = 0 by definition.
+    let reference = data
+        .rows()
         .iter()
+        .filter_map(|r| counts_of(r, element).map(|c| (r, c)))
         .find(|(r, (_, h, o, z))| {
             *h == 0
                 && *o == 0
@@ -683,7 +695,7 @@ pub fn diagram(request: &Request<'_>) -> Result<Diagram, DiagramError> {
                 && r.dfg_joules_per_mol == 0.0
                 && r.phase != DataPhase::Aqueous
         })
-        .map(|(r, c)| (r.clone(), *c))
+        .map(|(r, c)| (r.clone(), c))
         .ok_or_else(|| DiagramError::NoReferenceState(symbol.clone()))?;
     if !rows.iter().any(|(r, _)| r.phase == DataPhase::Aqueous) {
         let found: Vec<String> = rows.iter().map(|(r, _)| r.label()).collect();

@@ -417,6 +417,13 @@ fn bad_input_gets_clear_errors() {
         "{error}"
     );
     assert!(error.to_string().contains("--formation"));
+    // H and O are water's own elements.
+    let error = compute("O", T0, FormationData::builtin()).unwrap_err();
+    assert!(matches!(error, DiagramError::WaterElement(_)), "{error}");
+    // An element whose reference state is a gas left out of the diagram still has its zero:
+    // chloride is the stable form of chlorine in neutral water at 0 V vs SHE (common practice).
+    let chlorine = at_25("Cl");
+    assert_eq!(chlorine.lowest_at(7.0, 0.0), index(&chlorine, "Cl-"));
     // An empty window.
     let error = diagram(&Request {
         element: Element::from_symbol("Fe").unwrap(),
