@@ -30,11 +30,14 @@ fn bench(c: &mut Criterion) {
             request("B", true, 298.15),
         ),
         ("iron, 7 species, 25 C", request("Fe", false, 298.15)),
-        ("iron, 7 species, 80 C", request("Fe", false, 353.15)),
+        (
+            "iron, 6 species (Fe(OH)2+ has no ΔfH° for 80 C), 80 C",
+            request("Fe", false, 353.15),
+        ),
     ];
     for (name, case) in &cases {
         let species = diagram(case).expect("a diagram").species.len();
-        assert!(species >= 7, "{name}: {species} species");
+        assert!(species >= 6, "{name}: {species} species");
         c.bench_function(&format!("stability diagram, {name}"), |b| {
             b.iter(|| diagram(black_box(case)).expect("a diagram"))
         });
