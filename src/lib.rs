@@ -32,6 +32,7 @@ pub mod nernst;
 pub mod notation;
 pub mod output;
 pub mod oxidation;
+pub mod predominance;
 pub mod quotient;
 pub mod reaction;
 pub mod scale;

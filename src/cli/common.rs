@@ -248,3 +248,20 @@ pub fn build_cell(
     };
     couplet::cell::combine(&cathode, &anode, options).map_err(|error| Failure::from(&error))
 }
+
+/// Writes each rendered output to its path atomically (a temporary file renamed into place), in
+/// order; the first file that cannot be written is the failure.
+pub fn write_outputs(outputs: &[(Option<&PathBuf>, Option<String>)]) -> Result<(), Failure> {
+    for (path, text) in outputs {
+        if let (Some(path), Some(text)) = (path, text) {
+            couplet::output::write_atomically(path, text.as_bytes()).map_err(|error| {
+                Failure::new(
+                    "file",
+                    EXIT_USAGE,
+                    format!("cannot write {}: {error}", path.display()),
+                )
+            })?;
+        }
+    }
+    Ok(())
+}

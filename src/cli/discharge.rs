@@ -4,14 +4,14 @@
 use super::common::{ElectrodeArgs, TableArgs, build_cell, load_table, scale_without_quotient};
 use super::failure::Failure;
 use super::units::{refuse_repeats, species_numbers, species_value};
-use super::{EXIT_OK, EXIT_USAGE, print_json};
+use super::{EXIT_OK, print_json};
 use couplet::activity::{ActivityModel, GammaModel};
 use couplet::cell::caution;
 use couplet::discharge::{Amount, Discharge, DischargeSpec, discharge};
 use couplet::figures::significant;
 use couplet::notation::{Arrow, Species, Style};
+use couplet::output::csv::discharge_csv;
 use couplet::output::svg::{DischargeAxis, discharge_plot, render};
-use couplet::output::{csv::discharge_csv, write_atomically};
 use serde_json::json;
 use std::io::{self, Write};
 use std::path::PathBuf;
@@ -273,23 +273,15 @@ pub fn run(args: &DischargeArgs, out: &mut dyn Write) -> io::Result<u8> {
         }
         None => None,
     };
-    for (path, text) in [
+    let outputs = [
         (
             args.csv.as_ref(),
             args.csv.as_ref().map(|_| discharge_csv(&curve)),
         ),
         (args.svg.as_ref(), svg),
-    ] {
-        if let (Some(path), Some(text)) = (path, text)
-            && let Err(error) = write_atomically(path, text.as_bytes())
-        {
-            return Failure::new(
-                "file",
-                EXIT_USAGE,
-                format!("cannot write {}: {error}", path.display()),
-            )
-            .report(out, args.json);
-        }
+    ];
+    if let Err(failure) = super::common::write_outputs(&outputs) {
+        return failure.report(out, args.json);
     }
     if args.json {
         print_json(out, &json_of(&curve, caution(&cell.net)))?;

@@ -23,6 +23,7 @@ mod formation;
 mod nernst;
 mod oxidation;
 mod parse;
+mod stability;
 mod table;
 mod thermo;
 mod units;
@@ -127,6 +128,11 @@ enum Command {
         after_help = "Examples:\n  couplet thermo 'PbO2 + Pb + 4 H+ + 2 SO4^2- -> 2 PbSO4 + 2 H2O'\n  couplet thermo SnO2/Sn\n  couplet thermo --medium base 'Ag2O + Zn -> Ag + ZnO' --temperature 45C\n  couplet thermo --json 'S + 2 H+ + 2 e- -> H2S(g)'"
     )]
     Thermo(thermo::ThermoArgs),
+    /// Potential–pH predominance diagram of an element from formation data: regions, boundaries, triple points, SVG
+    #[command(
+        after_help = "Examples:\n  couplet stability Fe --svg fe.svg\n  couplet stability Cu --activity 1e-4 --temperature 80C --scale sce\n  couplet stability Zn --formation my-zinc.csv --json"
+    )]
+    Stability(stability::StabilityArgs),
 }
 
 /// Runs the command line and returns the exit status.
@@ -186,6 +192,7 @@ fn dispatch(command: Command, out: &mut dyn Write) -> io::Result<u8> {
         Command::Check(args) => check::run(&args, out),
         Command::Formation(args) => formation::run(&args, out),
         Command::Thermo(args) => thermo::run(&args, out),
+        Command::Stability(args) => stability::run(&args, out),
     }
 }
 

@@ -5,6 +5,7 @@
 //! values and renders them, with no chemistry of its own.
 
 pub mod csv;
+pub mod diagram;
 pub mod svg;
 
 use std::io::Write;

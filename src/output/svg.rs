@@ -134,7 +134,7 @@ pub fn discharge_plot(title: &str, curves: &[(String, &Discharge)], axis: Discha
 }
 
 /// Ticks at 1, 2 or 5 × 10^k covering `[low, high]`, about `target` of them.
-fn ticks(low: f64, high: f64, target: usize) -> (Vec<f64>, f64) {
+pub(crate) fn ticks(low: f64, high: f64, target: usize) -> (Vec<f64>, f64) {
     let span = (high - low).max(f64::MIN_POSITIVE);
     let rough = span / target.max(1) as f64;
     let magnitude = 10f64.powf(rough.log10().floor());
@@ -149,7 +149,7 @@ fn ticks(low: f64, high: f64, target: usize) -> (Vec<f64>, f64) {
 }
 
 /// Decimals that show a tick step exactly (0.05 → 2).
-fn decimals(step: f64) -> usize {
+pub(crate) fn decimals(step: f64) -> usize {
     let mut d = 0;
     while d < 6
         && ((step * 10f64.powi(d as i32)).round() - step * 10f64.powi(d as i32)).abs() > 1e-6
@@ -159,7 +159,7 @@ fn decimals(step: f64) -> usize {
     d
 }
 
-fn escape(text: &str) -> String {
+pub(crate) fn escape(text: &str) -> String {
     text.replace('&', "&amp;")
         .replace('<', "&lt;")
         .replace('>', "&gt;")

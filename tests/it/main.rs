@@ -15,6 +15,7 @@ mod export;
 mod nernst;
 mod notation;
 mod oxidation;
+mod stability;
 mod stoichiometry;
 mod table;
 mod thermo;
