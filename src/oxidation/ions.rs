@@ -8,6 +8,11 @@
 //! the ions leave; where ions of the same atoms differ in charge (`[Fe(CN)6]3-`/`4-`) the charge
 //! balance of the rest picks. Ions of one element (O2^2-, N3-) are never matched: `SO2` is not
 //! a peroxide.
+//!
+//! Ligands (`data/ligands.toml`: H2O, NH3, CO, urea, en, …) are read the same way, but only as
+//! bracketed groups (`(NH3)6` in `[Co(NH3)6]Cl3`): written so, the group is one unit bound to a
+//! metal, and the metal follows by charge balance from the ligand's charge (the ionic
+//! convention). The rule then says which ligand was taken as which unit.
 
 use super::rules::{Fragment, assign_fragment};
 use super::{Assignment, OxidationError, Pin, Rule, Status, parse_signed_rational};
@@ -22,8 +27,11 @@ use std::sync::LazyLock;
 /// The ion table as shipped, compiled into the binary.
 pub const POLYATOMIC_IONS_TOML: &str = include_str!("../../data/polyatomic_ions.toml");
 
+/// The ligand table as shipped, compiled into the binary.
+pub const LIGANDS_TOML: &str = include_str!("../../data/ligands.toml");
+
 static BUILTIN: LazyLock<Result<IonTable, IonTableError>> =
-    LazyLock::new(|| IonTable::from_toml(POLYATOMIC_IONS_TOML));
+    LazyLock::new(|| IonTable::from_toml(POLYATOMIC_IONS_TOML)?.with_ligands_toml(LIGANDS_TOML));
 
 /// Most alternative splits tried for one species (ions with the same atoms but other charges).
 const MAX_SPLITS: usize = 256;
@@ -46,6 +54,8 @@ pub struct KnownIon {
     /// For an ion of one element: metals whose binary compound with it is usually read as a
     /// salt of this ion (FeS2 as iron(II) disulfide).
     pub usual_with: Vec<Element>,
+    /// From the ligand table: matched only as a bracketed group.
+    pub ligand: bool,
 }
 
 impl KnownIon {
@@ -58,7 +68,9 @@ impl KnownIon {
 /// A checked table of known polyatomic ions.
 #[derive(Clone, Debug, Default)]
 pub struct IonTable {
+    /// The ions, then the ligands (from `ion_count` on).
     ions: Vec<KnownIon>,
+    ion_count: usize,
 }
 
 /// Why an ion table could not be used.
@@ -80,6 +92,12 @@ struct TableFile {
 }
 
 #[derive(serde::Deserialize)]
+struct LigandFile {
+    #[serde(default)]
+    ligand: Vec<IonEntry>,
+}
+
+#[derive(serde::Deserialize)]
 struct IonEntry {
     formula: String,
     name: String,
@@ -97,30 +115,44 @@ impl IonTable {
     /// Reads and checks a table: every formula parses, every element has exactly one value,
     /// and the values add up to the charge.
     pub fn from_toml(text: &str) -> Result<IonTable, IonTableError> {
-        let file: TableFile = toml::from_str(text).map_err(|e| {
-            let line = e
-                .span()
-                .map(|s| text[..s.start.min(text.len())].matches('\n').count() + 1);
-            table_error(match line {
-                Some(line) => format!("line {line}: {}", e.message()),
-                None => e.message().to_owned(),
-            })
-        })?;
+        let file: TableFile = read_toml(text)?;
         let mut ions = Vec::with_capacity(file.ion.len());
         for (index, entry) in file.ion.iter().enumerate() {
-            ions.push(check_entry(index + 1, entry)?);
+            ions.push(check_entry(index + 1, entry, false)?);
         }
-        Ok(IonTable { ions })
+        let ion_count = ions.len();
+        Ok(IonTable { ions, ion_count })
     }
 
-    /// Every ion, in table order.
+    /// This table with the ligands of a ligand table (`[[ligand]]` entries, the fields of an
+    /// ion), checked the same way. Ligands are matched only as bracketed groups.
+    pub fn with_ligands_toml(mut self, text: &str) -> Result<IonTable, IonTableError> {
+        let file: LigandFile = read_toml(text)?;
+        for (index, entry) in file.ligand.iter().enumerate() {
+            self.ions.push(check_entry(index + 1, entry, true)?);
+        }
+        Ok(self)
+    }
+
+    /// Every ion, in table order (without the ligands).
     pub fn ions(&self) -> &[KnownIon] {
-        &self.ions
+        &self.ions[..self.ion_count]
     }
 
-    /// Ions with exactly these atoms (any charge), in table order.
-    fn with_atoms(&self, counts: &[(Element, u64)]) -> Vec<usize> {
-        (0..self.ions.len())
+    /// Every ligand, in table order.
+    pub fn ligands(&self) -> &[KnownIon] {
+        &self.ions[self.ion_count..]
+    }
+
+    /// Ions with exactly these atoms (any charge), in table order; ligands too when the atoms
+    /// were written as a bracketed group.
+    fn with_atoms(&self, counts: &[(Element, u64)], bracketed: bool) -> Vec<usize> {
+        let end = if bracketed {
+            self.ions.len()
+        } else {
+            self.ion_count
+        };
+        (0..end)
             .filter(|&i| same_atoms(&self.ions[i].counts, counts))
             .collect()
     }
@@ -129,7 +161,7 @@ impl IonTable {
     /// ion written that way.
     fn run_at(&self, units: &[Unit]) -> Option<(usize, Vec<usize>)> {
         let mut best: Option<(usize, Vec<usize>)> = None;
-        for (i, ion) in self.ions.iter().enumerate() {
+        for (i, ion) in self.ions[..self.ion_count].iter().enumerate() {
             let len = ion.body.len();
             let plain = ion.body.iter().all(|u| matches!(u, Unit::Atom { .. }));
             if !plain || len > units.len() || units[..len] != ion.body[..] {
@@ -145,8 +177,22 @@ impl IonTable {
     }
 }
 
-fn check_entry(index: usize, entry: &IonEntry) -> Result<KnownIon, IonTableError> {
-    let at = |message: String| table_error(format!("ion {index} ({}): {message}", entry.formula));
+fn read_toml<T: serde::de::DeserializeOwned>(text: &str) -> Result<T, IonTableError> {
+    toml::from_str(text).map_err(|e| {
+        let line = e
+            .span()
+            .map(|s| text[..s.start.min(text.len())].matches('\n').count() + 1);
+        table_error(match line {
+            Some(line) => format!("line {line}: {}", e.message()),
+            None => e.message().to_owned(),
+        })
+    })
+}
+
+fn check_entry(index: usize, entry: &IonEntry, ligand: bool) -> Result<KnownIon, IonTableError> {
+    let kind = if ligand { "ligand" } else { "ion" };
+    let at =
+        |message: String| table_error(format!("{kind} {index} ({}): {message}", entry.formula));
     let species = parse_species(&entry.formula).map_err(|e| at(e.message.clone()))?;
     let formula = match &species.kind {
         SpeciesKind::Formula(f) => f,
@@ -215,6 +261,7 @@ fn check_entry(index: usize, entry: &IonEntry) -> Result<KnownIon, IonTableError
         counts,
         body,
         usual_with,
+        ligand,
     })
 }
 
@@ -273,7 +320,7 @@ fn scan(
                 units_composition(body, 1, &mut atoms)?;
                 // A bracketed group may be a one-element ion too (azide in Pb(N3)2): the
                 // brackets say it is one unit, so there is no risk of cutting a molecule.
-                let candidates = table.with_atoms(atoms.counts());
+                let candidates = table.with_atoms(atoms.counts(), true);
                 if candidates.is_empty() {
                     scan(table, body, times, found, rest)?;
                 } else {
@@ -362,7 +409,7 @@ pub(super) fn assign(
 
     // The species is itself a known ion.
     if let Some(&i) = table
-        .with_atoms(composition.counts())
+        .with_atoms(composition.counts(), false)
         .iter()
         .find(|&&i| table.ions[i].charge == charge && table.ions[i].counts.len() >= 2)
         && !pinned(&table.ions[i])
@@ -580,8 +627,15 @@ fn ion_assignments(ion: &KnownIon, times: u64) -> Vec<Assignment> {
             count: count.saturating_mul(times),
             value: value.clone(),
             status: Status::Determined,
-            rule: Rule::KnownIon {
-                name: ion.name.clone(),
+            rule: if ion.ligand {
+                Rule::Ligand {
+                    name: ion.name.clone(),
+                    charge: ion.charge,
+                }
+            } else {
+                Rule::KnownIon {
+                    name: ion.name.clone(),
+                }
             },
         })
         .collect()

@@ -27,7 +27,7 @@ mod ions;
 mod redox;
 mod rules;
 
-pub use ions::{IonTable, IonTableError, KnownIon, POLYATOMIC_IONS_TOML};
+pub use ions::{IonTable, IonTableError, KnownIon, LIGANDS_TOML, POLYATOMIC_IONS_TOML};
 pub use redox::{
     ElementChange, RedoxAnalysis, RedoxError, RedoxKind, SpeciesPin, analyse, analyse_with,
     changed_elements, changes_one_element, oxidation_number_electrons,
@@ -102,6 +102,14 @@ pub enum Rule {
         /// The ion's name from the table.
         name: String,
     },
+    /// A bracketed group read as a ligand of the ligand table, with that ligand's charge and
+    /// internal states (the ionic convention; `data/ligands.toml`).
+    Ligand {
+        /// The ligand's name from the table.
+        name: String,
+        /// Its charge as a unit.
+        charge: i64,
+    },
     /// The element sits in several parts of the species (known ions, the rest, adducts) with
     /// different states; each part's ion name or rule.
     KnownIons {
@@ -148,6 +156,14 @@ impl Rule {
             Rule::ChargeBalance => "charge balance".into(),
             Rule::ChargeBalanceAfterAssumption => "charge balance after an assumed value".into(),
             Rule::KnownIon { name } => format!("known ion: {name}"),
+            Rule::Ligand { name, charge } => format!(
+                "ligand {name} taken as {} unit",
+                match charge.signum() {
+                    0 => "a neutral".to_owned(),
+                    1 => format!("a cationic ({charge}+)"),
+                    _ => format!("an anionic ({}-)", -charge),
+                }
+            ),
             Rule::KnownIons { names } => format!("sites: {}", names.join("; ")),
             Rule::ElectronegativityChoice => {
                 "electronegativity choice: usual negative state".into()
@@ -577,7 +593,7 @@ fn merge_rules(a: &Rule, b: &Rule) -> Rule {
     }
     let names = |r: &Rule| -> Vec<String> {
         match r {
-            Rule::KnownIon { name } => vec![name.clone()],
+            Rule::KnownIon { name } | Rule::Ligand { name, .. } => vec![name.clone()],
             Rule::KnownIons { names } => names.clone(),
             other => vec![other.text()],
         }

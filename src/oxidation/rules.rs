@@ -174,8 +174,10 @@ pub(crate) fn assign_fragment(
     }
 
     // Defaults (O −2, halogens −1) only apply while they leave another element to take the
-    // rest: an element alone takes what the charge requires (H2O2, KO2, KI3).
-    if open(&slots).len() >= 2 {
+    // rest: an element alone takes what the charge requires (H2O2, KO2, KI3). What is left of
+    // a salt is held to them always, so a split that would leave Cl3 at −2 in total
+    // ([Co(NH3)6]Cl3 read with a 2+ complex) fails the charge and is dropped.
+    if open(&slots).len() >= 2 || matches!(fragment, Fragment::Rest { .. }) {
         let lighter_halogen_present = |symbol: &str| {
             let rank = HEAVY_HALOGENS.iter().position(|h| *h == symbol);
             has_fluorine || rank.is_some_and(|r| HEAVY_HALOGENS[..r].iter().any(|h| present(h)))
