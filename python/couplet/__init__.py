@@ -38,11 +38,11 @@ from ._couplet import (
 )
 from ._couplet import Cell as _Cell
 from .errors import ChemistryError, CoupletError, FileError, InputError
-from .ocv import ConcentrationOCV, StoichiometryOCV
+from .ocv import ConcentrationOCV, MolalityOCV, StoichiometryOCV
 
 __all__ = [
     "Balanced", "Capacity", "Cell", "ChemistryError", "ConcentrationOCV", "Couple",
-    "CoupletError", "ElementChange", "FileError", "Finding", "InputError", "Model",
+    "CoupletError", "ElementChange", "MolalityOCV", "FileError", "Finding", "InputError", "Model",
     "ParsedEquation", "ParsedSpecies", "Redox", "StoichiometryOCV", "balance", "check",
     "couple", "equation", "errors", "nernst_slope", "oxidation_numbers", "quotient", "redox",
     "species", "specific_capacity", "thermo",
@@ -62,6 +62,12 @@ class Cell(_Cell):
         """An OCV callable ``f(a, T)``: E as the activity of ``species`` varies, the other
         species of Q held at ``fixed`` activities."""
         return ConcentrationOCV(self, species, fixed, water)
+
+    def molality_ocv(self, electrolyte: str, model: str = "table",
+                     force: bool = False) -> MolalityOCV:
+        """An OCV callable ``f(m, T)`` of the electrolyte molality (mol/kg) with an
+        activity model; for tabulating curves."""
+        return MolalityOCV(self, electrolyte, model, force)
 
     def stoichiometry_ocv(self, **discharge: object) -> StoichiometryOCV:
         """An OCV callable ``f(x, T)`` of the state of charge x along the open-circuit
