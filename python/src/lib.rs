@@ -955,11 +955,15 @@ fn py_check(paths: Vec<std::path::PathBuf>, tolerance: f64) -> Result<Vec<Findin
     let found = couplet::check::load::expand_paths(&paths)
         .map_err(|e| Failure::new(errors::Class::File, "file", e.to_string()))?;
     let mut sources = Vec::new();
-    for (path, _) in found {
-        sources.push(
-            load_file(&path)
-                .map_err(|e| Failure::new(errors::Class::File, "file", e.to_string()))?,
-        );
+    for (path, under_directory) in found {
+        let source = load_file(&path)
+            .map_err(|e| Failure::new(errors::Class::File, "file", e.to_string()))?;
+        // As on the command line: a file found in a directory that is not a couple file
+        // (another CSV, a settings TOML) is left out; a file named outright is checked.
+        if under_directory && !couplet::check::load::looks_like_couple_file(&source) {
+            continue;
+        }
+        sources.push(source);
     }
     let options = CheckOptions {
         tolerance_volts: tolerance,

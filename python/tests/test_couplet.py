@@ -206,3 +206,13 @@ def test_e0_from_formation_data():
     assert found.e0 == pytest.approx(0.34, abs=0.01)
     assert found.e0 == pytest.approx(-found.delta_g * 1000 / (2 * FARADAY), rel=1e-12)
     assert found.rows
+
+
+def test_check_on_a_directory_skips_other_files(tmp_path):
+    # A directory is searched for couple files; an unrelated CSV in it is not one.
+    (tmp_path / "notes.csv").write_text("name,value\nx,1\n")
+    (tmp_path / "ours.toml").write_text('[[couple]]\nid = "cu-test"\n'
+                                        'reaction = "Cu2+ + 2 e- -> Cu(s)"\n'
+                                        'e0 = 0.34\nsource = "invented for this test"\n')
+    findings = couplet.check([str(tmp_path)])
+    assert all(f.file.endswith("ours.toml") for f in findings)
