@@ -533,7 +533,7 @@ impl Couple {
     fn dedt(&self) -> Option<f64> {
         self.inner.dedt_millivolts_per_kelvin
     }
-    /// Electrons (Fraction-free: couples take whole electrons in practice).
+    /// Electrons taken up: an int (a Fraction only for a couple written with fractions).
     #[getter]
     fn electrons<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyAny>> {
         exact(py, &self.inner.electrons())

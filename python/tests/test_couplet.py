@@ -35,7 +35,8 @@ def test_daniell_cell_is_1_10_volt():
 
 
 def test_lead_acid_cell_is_2_04_volt():
-    # Lead–sulfuric acid cell about 2.04 V per cell, six make the 12 V battery (common practice).
+    # E°cell = 1.685 − (−0.355) = 2.040 V (Harris, Quantitative Chemical Analysis, App. H);
+    # about 2 V per cell, six make the 12 V battery (common practice).
     cell = couplet.Cell("PbO2/PbSO4", "PbSO4/Pb")
     assert cell.electrons == 2
     assert round(cell.e0, 2) == 2.04
@@ -201,7 +202,8 @@ def test_check_returns_findings(tmp_path):
 
 
 def test_e0_from_formation_data():
-    # Cu2+ + 2 e- -> Cu from ΔfG°(Cu2+, aq) = 65.49 kJ/mol (CRC Handbook, from memory): +0.34 V.
+    # Cu2+ + 2 e- -> Cu: +0.34 V vs SHE (Harris App. H table value 0.339 V; within 10 mV of
+    # the CRC formation data couplet carries). E° = −ΔrG°/(2F) is the definition (DOMAIN).
     found = couplet.thermo.e0("Cu2+/Cu")
     assert found.e0 == pytest.approx(0.34, abs=0.01)
     assert found.e0 == pytest.approx(-found.delta_g * 1000 / (2 * FARADAY), rel=1e-12)
