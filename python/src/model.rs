@@ -36,8 +36,9 @@ impl Model {
 /// A temperature argument: one value for every state, or one per state.
 #[derive(FromPyObject)]
 enum Temperatures<'py> {
-    One(f64),
+    // An array is tried first: numpy deprecates reading a one-element array as a float.
     Each(PyReadonlyArray1<'py, f64>),
+    One(f64),
 }
 
 #[pymethods]
