@@ -160,6 +160,46 @@ def element_formula(name, symbols):
     return symbol
 
 
+HYDROGEN_WORDS = ("hydr", "acid", "ammon", "hydrogen", "water", "bi", "phosphin", "borane",
+                  "methyl", "ethyl", "amine", "amide", "hydrate")
+
+
+def hydrogen_problem(name, formula):
+    """Why an identifier formula with H cannot be the inorganic substance a name with an
+    oxidation state in Roman numerals says (magnetite, 'Iron(II,III) oxide', is stored as
+    Fe3H8O4 in one identifier database), or None."""
+    if "H" not in element_counts(formula):
+        return None
+    if not re.search(r"\((?:I|II|III|IV|V|VI|VII|VIII)(?:,(?:I|II|III|IV))*\)", name):
+        return None
+    if any(word in name.lower() for word in HYDROGEN_WORDS):
+        return None
+    return (f"the identifier formula {formula} holds hydrogen, which the inorganic name "
+            f"'{name}' does not")
+
+
+def named_formula(name):
+    """A formula the CRC name itself writes, in brackets or parentheses (`Silver[II] oxide
+    [Ag2O2]`, `Aluminum oxide (Al2O)`), or None."""
+    for token in re.findall(r"[\[(]([A-Z][A-Za-z0-9]*)[\])]", name):
+        counts = element_counts(token)
+        # A formula with a digit in it, not a Roman numeral (`(IV)` would read as I and V).
+        if (re.fullmatch(r"(?:[A-Z][a-z]?\d*)+", token) and re.search(r"\d", token)
+                and not re.fullmatch(r"[IVX]+", token) and counts):
+            return token
+    return None
+
+
+def mixed_valence_problem(name, formula):
+    """A name with two oxidation states of one metal ('Titanium(III,IV) oxide') cannot be a
+    formula with one atom of it."""
+    if re.search(r"\([IV]+,[IV]+\)", name):
+        metals = [n for e, n in element_counts(formula).items() if e not in ("O", "H")]
+        if metals and max(metals) == 1:
+            return f"the identifier formula {formula} has one metal atom, the name '{name}' two states"
+    return None
+
+
 def hydrate_problem(name, formula):
     """Why an identifier formula cannot be the hydrate the CRC name says, or None."""
     for word, waters in HYDRATE_WORDS.items():
@@ -212,11 +252,17 @@ def main(argv):
                 reason = "no ΔfG° in the table"
             elif known is None:
                 reason = "CAS number not in the identifier databases: no formula"
+            elif named_formula(name) and element_counts(named_formula(name)) != element_counts(known[0]):
+                # The table's own name writes the formula: it wins over the identifier's.
+                known = (named_formula(name), "")
+                note = (note + "; " if note else "") + "formula as the table's name writes it"
+                reason = None
             elif re.search(r"[-+.]", known[0]):
                 reason = (f"the identifier formula {known[0]} carries a charge or a dot: "
                           "not the neutral substance the table lists")
             else:
-                reason = hydrate_problem(name, known[0])
+                reason = (hydrate_problem(name, known[0]) or hydrogen_problem(name, known[0])
+                          or mixed_valence_problem(name, known[0]))
             if reason:
                 skipped.append((cas, name, state, "crc-substances", reason))
                 continue
