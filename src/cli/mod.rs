@@ -239,11 +239,25 @@ pub fn argument_or_stdin(argument: &str) -> Result<String, String> {
     if argument != "-" {
         return Ok(argument.to_owned());
     }
-    let mut text = String::new();
+    // Bounded like a couple file: an endless or huge stream is refused, not held whole.
+    let limit = couplet::check::MAX_FILE_BYTES;
+    let mut bytes = Vec::new();
     std::io::stdin()
-        .read_to_string(&mut text)
+        .take(limit + 1)
+        .read_to_end(&mut bytes)
         .map_err(|e| format!("cannot read standard input: {e}"))?;
-    Ok(text)
+    if bytes.len() as u64 > limit {
+        return Err(format!(
+            "standard input is larger than {} MiB, the most couplet reads",
+            limit / (1024 * 1024)
+        ));
+    }
+    String::from_utf8(bytes).map_err(|e| {
+        format!(
+            "standard input is not UTF-8 text (byte {} is invalid)",
+            e.utf8_error().valid_up_to()
+        )
+    })
 }
 
 /// Writes a JSON value on one line.

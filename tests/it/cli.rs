@@ -711,3 +711,22 @@ fn the_readme_examples_run() {
     }
     assert!(ran >= 25, "only {ran} README examples found");
 }
+
+#[test]
+fn standard_input_is_read_with_a_bound() {
+    // A stream larger than the 32 MiB couplet reads from a file is refused, not held whole.
+    let output = assert_cmd::Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+        .args(["balance", "-"])
+        .write_stdin(vec![b'H'; 33 * 1024 * 1024])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&output.stderr).contains("larger than 32 MiB"));
+    let output = assert_cmd::Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+        .args(["parse", "-"])
+        .write_stdin(vec![0xff, 0xfe])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&output.stderr).contains("not UTF-8"));
+}
