@@ -310,23 +310,28 @@ impl FormationData {
             line,
             message,
         };
+        // `# KEY: TEXT` comment lines name source tables (a key is one word).
+        for comment in text.lines().filter_map(|l| l.trim().strip_prefix('#')) {
+            if let Some((key, value)) = comment.trim().split_once(": ")
+                && !key.is_empty()
+                && !key.contains(' ')
+            {
+                self.tables.push((key.to_owned(), value.to_owned()));
+            }
+        }
+        let mut reader = csv::ReaderBuilder::new()
+            .has_headers(false)
+            .comment(Some(b'#'))
+            .flexible(true)
+            .from_reader(text.as_bytes());
         let mut header_seen = false;
-        for (index, raw) in text.lines().enumerate() {
-            let line = index + 1;
-            let trimmed = raw.trim();
-            if trimmed.is_empty() {
-                continue;
-            }
-            if let Some(comment) = trimmed.strip_prefix('#') {
-                if let Some((key, value)) = comment.trim().split_once(": ")
-                    && !key.contains(' ')
-                    && key.contains('-')
-                {
-                    self.tables.push((key.to_owned(), value.to_owned()));
-                }
-                continue;
-            }
-            let cells = split_csv_line(raw).map_err(|m| error(line, m))?;
+        for record in reader.records() {
+            let record = record.map_err(|e| {
+                let line = e.position().map_or(0, |p| p.line() as usize);
+                error(line, format!("not CSV: {e}"))
+            })?;
+            let line = record.position().map_or(0, |p| p.line() as usize);
+            let cells: Vec<String> = record.iter().map(str::to_owned).collect();
             if !header_seen {
                 if cells != COLUMNS {
                     return Err(error(
@@ -551,58 +556,9 @@ fn read_row(cells: &[String], line: usize, origin: &DataOrigin) -> Result<Format
     })
 }
 
-/// Splits one CSV line (RFC 4180 quoting, no line breaks inside a cell).
-fn split_csv_line(line: &str) -> Result<Vec<String>, String> {
-    let mut cells = Vec::new();
-    let mut cell = String::new();
-    let mut chars = line.trim_end_matches('\r').chars().peekable();
-    let mut quoted = false;
-    let mut at_start = true;
-    while let Some(c) = chars.next() {
-        match (quoted, c) {
-            (false, '"') if at_start => {
-                quoted = true;
-                at_start = false;
-            }
-            (true, '"') if chars.peek() == Some(&'"') => {
-                chars.next();
-                cell.push('"');
-            }
-            (true, '"') => {
-                quoted = false;
-                if !matches!(chars.peek(), None | Some(',')) {
-                    return Err("text after a closing quote".into());
-                }
-            }
-            (false, ',') => {
-                cells.push(std::mem::take(&mut cell));
-                at_start = true;
-            }
-            (_, c) => {
-                cell.push(c);
-                at_start = false;
-            }
-        }
-    }
-    if quoted {
-        return Err("a quoted cell is not closed".into());
-    }
-    cells.push(cell);
-    Ok(cells)
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn csv_lines_split_with_quotes() {
-        assert_eq!(
-            split_csv_line(r#"a,"b, c","d ""e""",,f"#).unwrap(),
-            vec!["a", "b, c", "d \"e\"", "", "f"]
-        );
-        assert!(split_csv_line(r#"a,"b"#).is_err());
-    }
 
     #[test]
     fn keys_ignore_order_and_grouping() {
