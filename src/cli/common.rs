@@ -46,13 +46,8 @@ pub fn load_formation(paths: &[PathBuf]) -> Result<&'static FormationData, Failu
     }
     let mut data = FormationData::builtin().clone();
     for path in paths {
-        let origin = couplet::thermo::DataOrigin::File(path.clone());
-        std::fs::read_to_string(path)
-            .map_err(|e| format!("{}: cannot read: {e}", path.display()))
-            .and_then(|text| data.add_csv(&text, origin).map_err(|e| e.to_string()))
-            .map_err(|message| {
-                Failure::new("file", EXIT_USAGE, format!("formation data {message}"))
-            })?;
+        data.add_file(path)
+            .map_err(|error| Failure::new("file", EXIT_USAGE, format!("formation data {error}")))?;
     }
     for note in data.replaced() {
         say!("note: {note}");

@@ -153,7 +153,7 @@ impl FormationRow {
 #[non_exhaustive]
 pub enum DataError {
     /// A line does not fit the documented layout.
-    #[error("{origin}:{line}: {message}")]
+    #[error("{origin}:{}{message}", line_text(*.line))]
     Row {
         /// Which file.
         origin: DataOrigin,
@@ -199,6 +199,15 @@ pub enum MissingData {
         /// The phase assumption, when one was made.
         assumed: Option<String>,
     },
+}
+
+/// `12: ` for a line, nothing when the fault is the file as a whole (line 0).
+fn line_text(line: usize) -> String {
+    if line == 0 {
+        " ".to_owned()
+    } else {
+        format!("{line}: ")
+    }
 }
 
 fn phase_list(phases: &[DataPhase]) -> String {
@@ -293,13 +302,20 @@ impl FormationData {
 
     /// Reads a user's file of formation data (the layout of [`FormationData::from_csv`]).
     pub fn read_file(path: &Path) -> Result<FormationData, DataError> {
+        let mut data = FormationData::default();
+        data.add_file(path)?;
+        Ok(data)
+    }
+
+    /// Adds the rows of a user's file ([`FormationData::add_csv`] on its text).
+    pub fn add_file(&mut self, path: &Path) -> Result<(), DataError> {
         let origin = DataOrigin::File(path.to_path_buf());
         let text = std::fs::read_to_string(path).map_err(|e| DataError::Row {
             origin: origin.clone(),
             line: 0,
             message: format!("cannot read: {e}"),
         })?;
-        FormationData::from_csv(&text, origin)
+        self.add_csv(&text, origin)
     }
 
     /// Adds rows; a row for a species and phase already present replaces the earlier one
