@@ -117,6 +117,25 @@ pub struct Cell {
 }
 
 impl Cell {
+    /// The lowest and highest E°cell (V, 298.15 K) that the published values of the two couples
+    /// allow, when either couple has several (`also_published`); `None` otherwise, and for a
+    /// concentration cell, whose E° is 0 whichever value is used.
+    pub fn e0_range_volts(&self) -> Option<(f64, f64)> {
+        let same_couple = self.cathode.id.is_some() && self.cathode.id == self.anode.id;
+        if same_couple
+            || (self.cathode.also_published.is_empty() && self.anode.also_published.is_empty())
+        {
+            return None;
+        }
+        let range = |c: &Couple| {
+            c.e0_spread()
+                .map_or((c.e0_volts, c.e0_volts), |s| (s.lowest_volts, s.highest_volts))
+        };
+        let (cathode_low, cathode_high) = range(&self.cathode);
+        let (anode_low, anode_high) = range(&self.anode);
+        Some((cathode_low - anode_high, cathode_high - anode_low))
+    }
+
     /// K at 298.15 K, or `None` when it overflows f64.
     pub fn k(&self) -> Option<f64> {
         let k = 10f64.powf(self.log10_k);
@@ -170,6 +189,10 @@ pub fn in_medium(couple: &Couple, medium: Medium) -> Option<Couple> {
     let mut converted = couple.clone();
     converted.reaction = reaction;
     converted.e0_volts = couple.e0_volts + shift;
+    for published in &mut converted.also_published {
+        published.e0_volts += shift;
+        published.dedt_millivolts_per_kelvin = None;
+    }
     converted.medium = medium;
     converted.dedt_millivolts_per_kelvin = None;
     converted.id = couple.id.as_ref().map(|id| format!("{id} (in {medium})"));

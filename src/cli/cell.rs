@@ -49,6 +49,10 @@ fn half_json(couple: &Couple, scale: &Scale) -> Value {
         "e0_source": e0_source(couple),
         "confirmed_by": couple.confirmed_by,
         "verified": couple.verified,
+        "also_published": couple.also_published.iter().map(|p| json!({
+            "e0_V": scale.couple_potential(&couple.reaction, p.e0_volts),
+            "source": p.source,
+        })).collect::<Vec<_>>(),
     });
     // Beside a tabulated value, what formation data give for the same half-reaction.
     if couple.origin != Origin::FormationData
@@ -216,6 +220,9 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
         // Extra fields; the ones above are the stable schema.
         let object = value.as_object_mut().expect("built as an object");
         object.insert("runs_as_written".into(), json!(cell.runs_as_written));
+        if let Some((low, high)) = cell.e0_range_volts() {
+            object.insert("e0_published_range_V".into(), json!([low, high]));
+        }
         if let Some(t) = at_t {
             object.insert(
                 "delta_s0_J_per_mol_K".into(),
@@ -254,6 +261,13 @@ pub fn run(args: &CellArgs, out: &mut dyn Write) -> io::Result<u8> {
     )?;
     writeln!(out, "n        {}", cell.electrons)?;
     writeln!(out, "E°cell   {:+.4} V  (at 298.15 K)", cell.e0_volts)?;
+    if let Some((low, high)) = cell.e0_range_volts() {
+        writeln!(
+            out,
+            "         published values of the couples give {low:+.4} to {high:+.4} V (spread {:.0} mV): compilations disagree, see couplet table",
+            (high - low) * 1000.0
+        )?;
+    }
     writeln!(
         out,
         "ΔG°      {:+.2} kJ/mol",

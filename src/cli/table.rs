@@ -20,7 +20,9 @@ pub struct TableCommandArgs {
     #[command(flatten)]
     table: TableArgs,
     /// Print JSON: [{"id", "reaction", "e0_V", "dedt_mV_per_K", "source", "confirmed_by",
-    /// "verified"}] (e0_V always vs SHE)
+    /// "verified", "also_published": [{"e0_V", "dedt_mV_per_K", "source", "note"}],
+    /// "e0_spread_V"}] (e0_V always vs SHE; the spread is highest minus lowest published E°,
+    /// null with one value)
     #[arg(long)]
     json: bool,
 }
@@ -56,6 +58,13 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
                     "source": c.source,
                     "confirmed_by": c.confirmed_by,
                     "verified": c.verified,
+                    "also_published": c.also_published.iter().map(|p| json!({
+                        "e0_V": p.e0_volts,
+                        "dedt_mV_per_K": p.dedt_millivolts_per_kelvin,
+                        "source": p.source,
+                        "note": p.note,
+                    })).collect::<Vec<_>>(),
+                    "e0_spread_V": c.e0_spread().map(|s| s.width_volts()),
                 })
             })
             .collect();
@@ -92,7 +101,7 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
     let mut text = String::new();
     let _ = writeln!(
         text,
-        "{:<26} {:>9}  {:>8}  {:<7}  {:<10}  reaction",
+        "{:<26} {:>9}  {:>8}  {:>6}  {:<7}  {:<10}  reaction",
         "id",
         // On RHE the column is each couple's potential at the scale's pH, not a standard one.
         if matches!(scale, Scale::Rhe { .. }) {
@@ -101,13 +110,14 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
             "E°/V"
         },
         "dE/dT",
+        "spread",
         "medium",
         "value"
     );
     for c in &found {
         let _ = writeln!(
             text,
-            "{:<26} {:>9.4}  {:>8}  {:<7}  {:<10}  {}",
+            "{:<26} {:>9.4}  {:>8}  {:>6}  {:<7}  {:<10}  {}",
             c.id.as_deref().unwrap_or("(no id)"),
             scale.couple_potential(&c.reaction, c.e0_volts),
             c.dedt_millivolts_per_kelvin
@@ -115,6 +125,8 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
                     "{:.3}",
                     scale.dedt_millivolts_per_kelvin(d).unwrap_or(d)
                 )),
+            c.e0_spread()
+                .map_or("—".to_owned(), |s| format!("{:.0}", s.width_volts() * 1000.0)),
             c.medium.name(),
             value_status(c),
             c.reaction
@@ -130,6 +142,25 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
             }
             if let Some(confirmation) = &c.confirmed_by {
                 let _ = writeln!(text, "  confirmed by: {confirmation}");
+            }
+            if let Some(spread) = c.e0_spread() {
+                let _ = writeln!(
+                    text,
+                    "  published values: {} from {:.4} to {:.4} V vs SHE (spread {:.0} mV); the one above is the default",
+                    spread.values,
+                    spread.lowest_volts,
+                    spread.highest_volts,
+                    spread.width_volts() * 1000.0
+                );
+                for p in &c.also_published {
+                    let dedt = p
+                        .dedt_millivolts_per_kelvin
+                        .map_or(String::new(), |d| format!(", dE/dT {d:.3} mV/K"));
+                    let _ = writeln!(text, "    {:.4} V{dedt}: {}", p.e0_volts, p.source);
+                    if let Some(note) = &p.note {
+                        let _ = writeln!(text, "      {note}");
+                    }
+                }
             }
             if !c.verified {
                 let _ = writeln!(
@@ -153,6 +184,12 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
         super::common::rhe_meaning(&scale),
         dedt_basis(&scale)
     );
+    if found.iter().any(|c| c.e0_spread().is_some()) {
+        let _ = writeln!(
+            text,
+            "spread: highest minus lowest E° among the values compilations publish for the couple, mV (the default is chosen by the rule in data/potentials.toml)"
+        );
+    }
     let unverified = found.iter().filter(|c| !c.verified).count();
     if found.iter().any(|c| c.confirmed_by.is_some()) {
         let _ = writeln!(

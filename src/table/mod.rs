@@ -14,7 +14,9 @@
 
 pub mod record;
 
-pub use record::{CoupleFile, CoupleRecord, Field, FileFormat, ProblemKind, ReadProblem};
+pub use record::{
+    CoupleFile, CoupleRecord, Field, FileFormat, ProblemKind, PublishedRecord, ReadProblem,
+};
 
 use crate::elements::Element;
 use crate::notation::{NotationError, Span, Species, parse_equation, parse_species, render_caret};
@@ -154,8 +156,44 @@ pub struct Couple {
     pub confirmed_by: Option<String>,
     /// False when the table marks the value `verified = false`: no read source confirms it.
     pub verified: bool,
+    /// Other published values of the same couple, each with its source; `e0_volts` is the
+    /// default among them, chosen by the rule written in `data/potentials.toml`.
+    pub also_published: Vec<PublishedValue>,
     /// Which table it came from.
     pub origin: Origin,
+}
+
+/// A value another compilation or paper gives for a couple, beside the default one.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PublishedValue {
+    /// E° in volts vs SHE at 298.15 K.
+    pub e0_volts: f64,
+    /// dE°/dT in mV/K, when that source prints one.
+    pub dedt_millivolts_per_kelvin: Option<f64>,
+    /// Where it was read, or that it was recalled.
+    pub source: String,
+    /// Remarks (standard state, method, stated uncertainty).
+    pub note: Option<String>,
+}
+
+/// The spread of the published values of a couple: the lowest and highest E° and how many
+/// values there are. The natural start of an uncertainty on E°: compilations that disagree by
+/// this much cannot both be right to better than half of it.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct E0Spread {
+    /// The lowest published E°, V.
+    pub lowest_volts: f64,
+    /// The highest published E°, V.
+    pub highest_volts: f64,
+    /// How many values (the default included).
+    pub values: usize,
+}
+
+impl E0Spread {
+    /// Highest minus lowest, V.
+    pub fn width_volts(&self) -> f64 {
+        self.highest_volts - self.lowest_volts
+    }
 }
 
 /// Describes what a reaction fails to conserve, for messages.
@@ -214,6 +252,7 @@ impl Couple {
             note: None,
             confirmed_by: None,
             verified: true,
+            also_published: Vec::new(),
             origin: Origin::Given,
         })
     }
@@ -239,11 +278,31 @@ impl Couple {
             self.reaction
                 .entries()
                 .iter()
-                .find(|e| same_formula_unit(&e.species, s))
+                .find(|e| same_formula_unit(&e.species, s) || hydrate_equivalent(&e.species, s))
                 .map(|e| e.nu.clone())
         };
         matches!(nu_of(ox), Some(nu) if nu.is_negative())
             && matches!(nu_of(red), Some(nu) if nu.is_positive())
+    }
+
+    /// The spread of the published values when there are several (`also_published`).
+    pub fn e0_spread(&self) -> Option<E0Spread> {
+        if self.also_published.is_empty() {
+            return None;
+        }
+        let values = self
+            .also_published
+            .iter()
+            .map(|p| p.e0_volts)
+            .chain([self.e0_volts]);
+        let (lowest_volts, highest_volts) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
+            (lo.min(v), hi.max(v))
+        });
+        Some(E0Spread {
+            lowest_volts,
+            highest_volts,
+            values: self.also_published.len() + 1,
+        })
     }
 
     /// True when any species holds `element` (isotope labels count as their element).
@@ -284,6 +343,98 @@ pub fn same_formula_unit(a: &Species, b: &Species) -> bool {
             (Some(x), Some(y)) => x == y,
             _ => true,
         }
+}
+
+/// True when two dissolved species differ only by whole molecules of water, as the forms an
+/// oxoacid is written in do: `HAsO2` and `H3AsO3`, `H4SiO4` and `SiO2(aq)`. Both must be
+/// dissolved (or carry no state), hold no carbon (ethanol is not hydrated ethylene) and have the
+/// same charge and compartment. Compilations write the same couple either way, so lookups and
+/// duplicate checks must see them as one.
+pub fn hydrate_equivalent(a: &Species, b: &Species) -> bool {
+    match (hydration_form(a), hydration_form(b)) {
+        (Some((a_key, _)), Some((b_key, _))) => {
+            a_key == b_key && a.charge() == b.charge() && a.compartment == b.compartment
+        }
+        _ => false,
+    }
+}
+
+/// The atoms of a dissolved, carbon-free species with as many H2O taken out as its H and O
+/// allow, and how many were taken: the form all its hydrates share (H3O+ comes out as H+, water
+/// itself as nothing). `None` for species that are not dissolved or hold carbon, and electrons.
+fn hydration_form(species: &Species) -> Option<(Vec<(Element, u64)>, u64)> {
+    use crate::notation::State;
+    if species.is_electron() || !matches!(species.state, None | Some(State::Aqueous)) {
+        return None;
+    }
+    let (hydrogen, oxygen, carbon) = (
+        Element::from_symbol("H")?,
+        Element::from_symbol("O")?,
+        Element::from_symbol("C")?,
+    );
+    let composition = &species.composition;
+    if !composition.is_integral() || composition.scaled_count(carbon) > 0 {
+        return None;
+    }
+    let mut counts = sorted_counts(species);
+    let (h, o) = (
+        composition.scaled_count(hydrogen),
+        composition.scaled_count(oxygen),
+    );
+    let waters = (h / 2).min(o);
+    for (element, count) in &mut counts {
+        if *element == hydrogen {
+            *count -= 2 * waters;
+        } else if *element == oxygen {
+            *count -= waters;
+        }
+    }
+    counts.retain(|(_, count)| *count > 0);
+    Some((counts, waters))
+}
+
+/// True when two half-reactions are the same couple: the same up to a positive factor
+/// ([`same_reaction`]), or the same once each dissolved oxoacid is written in its least
+/// hydrated form with the water moved into the H2O term (`H3AsO4 + 2 H+ + 2 e- -> HAsO2 + 2 H2O`
+/// and `H3AsO4 + 2 H+ + 2 e- -> H3AsO3 + H2O`).
+pub fn same_couple(a: &Reaction, b: &Reaction) -> bool {
+    same_reaction(a, b) || hydration_key(a) == hydration_key(b)
+}
+
+/// A reaction as a sorted list of (species key, ν per electron taken up), with every dissolved
+/// solute in its least hydrated form and the water it gave up added to the water term.
+fn hydration_key(reaction: &Reaction) -> Option<Vec<(String, BigRational)>> {
+    let electrons = -reaction.electron_nu();
+    if electrons.is_zero() {
+        return None;
+    }
+    let water = "H2O".to_owned();
+    let mut terms: std::collections::BTreeMap<String, BigRational> = Default::default();
+    for entry in reaction.entries() {
+        let nu = &entry.nu / &electrons;
+        let bare = entry.species.without_state();
+        let key = if bare.ascii() == "H2O" {
+            water.clone()
+        } else if let Some((counts, waters)) = hydration_form(&entry.species) {
+            if counts.is_empty() {
+                *terms.entry(water.clone()).or_insert_with(BigRational::zero) +=
+                    &nu * BigRational::from_integer(waters.into());
+                continue;
+            }
+            *terms.entry(water.clone()).or_insert_with(BigRational::zero) +=
+                &nu * BigRational::from_integer(waters.into());
+            format!(
+                "{counts:?}{}{:?}",
+                entry.species.charge(),
+                entry.species.compartment
+            )
+        } else {
+            entry.species.ascii()
+        };
+        *terms.entry(key).or_insert_with(BigRational::zero) += nu;
+    }
+    terms.retain(|_, nu| !nu.is_zero());
+    Some(terms.into_iter().collect())
 }
 
 /// A fault in a table file, located in the file.
@@ -599,7 +750,7 @@ impl Table {
     pub fn by_reaction(&self, reaction: &Reaction) -> Vec<&Couple> {
         self.couples
             .iter()
-            .filter(|c| same_reaction(&c.reaction, reaction))
+            .filter(|c| same_couple(&c.reaction, reaction))
             .collect()
     }
 
@@ -931,6 +1082,25 @@ fn couple_from_record(
     couple.note = record.note.as_ref().map(|f| f.value.clone());
     couple.confirmed_by = record.confirmed_by.as_ref().map(|f| f.value.clone());
     couple.verified = record.verified.as_ref().is_none_or(|f| f.value);
+    for published in &record.also_published {
+        let finite = |field: &record::Field<f64>, what: &str| {
+            if field.value.is_finite() {
+                Ok(field.value)
+            } else {
+                Err(error(field.span, format!("{what} in 'also_published' is not a finite number")))
+            }
+        };
+        couple.also_published.push(PublishedValue {
+            e0_volts: finite(&published.e0_volts, "e0")?,
+            dedt_millivolts_per_kelvin: published
+                .dedt_millivolts_per_kelvin
+                .as_ref()
+                .map(|d| finite(d, "dedt"))
+                .transpose()?,
+            source: published.source.value.clone(),
+            note: published.note.as_ref().map(|n| n.value.clone()),
+        });
+    }
     couple.origin = origin.clone();
     Ok(couple)
 }

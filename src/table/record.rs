@@ -12,7 +12,7 @@ use toml::Spanned;
 use toml::de::{DeTable, DeValue};
 
 /// The keys a couple may have, in the documented order.
-pub const KNOWN_KEYS: [&str; 9] = [
+pub const KNOWN_KEYS: [&str; 10] = [
     "id",
     "reaction",
     "e0",
@@ -22,7 +22,11 @@ pub const KNOWN_KEYS: [&str; 9] = [
     "note",
     "confirmed_by",
     "verified",
+    "also_published",
 ];
+
+/// The keys of one entry of `also_published`.
+pub const PUBLISHED_KEYS: [&str; 4] = ["e0", "dedt", "source", "note"];
 
 /// Keys every couple must have.
 pub const REQUIRED_KEYS: [&str; 2] = ["reaction", "e0"];
@@ -116,8 +120,27 @@ pub struct CoupleRecord {
     pub confirmed_by: Option<Field<String>>,
     /// `verified`: `false` marks a value no read source confirms.
     pub verified: Option<Field<bool>>,
+    /// `also_published`: other published values of the same couple, each with its source
+    /// (TOML only: an array of inline tables).
+    pub also_published: Vec<PublishedRecord>,
     /// Keys other than the known ones, with the span of the key.
     pub unknown_keys: Vec<Field<String>>,
+}
+
+/// One entry of `also_published`: a value another compilation or paper gives for the same
+/// couple, as written.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PublishedRecord {
+    /// The whole inline table.
+    pub span: Span,
+    /// `e0`: the value in volts vs SHE at 298.15 K.
+    pub e0_volts: Field<f64>,
+    /// `dedt`: its temperature coefficient in mV/K, when that source prints one.
+    pub dedt_millivolts_per_kelvin: Option<Field<f64>>,
+    /// `source`: where the value was read (or that it was recalled).
+    pub source: Field<String>,
+    /// `note`: free text (standard state, method, uncertainty).
+    pub note: Option<Field<String>>,
 }
 
 /// What kind of problem a file has with its form.
@@ -489,6 +512,17 @@ impl CoupleRecord {
         for key in &mut self.unknown_keys {
             key.shift(offset);
         }
+        for published in &mut self.also_published {
+            published.span = published.span.shifted(offset);
+            published.e0_volts.shift(offset);
+            published.source.shift(offset);
+            if let Some(dedt) = &mut published.dedt_millivolts_per_kelvin {
+                dedt.shift(offset);
+            }
+            if let Some(note) = &mut published.note {
+                note.shift(offset);
+            }
+        }
     }
 }
 
@@ -667,6 +701,21 @@ fn toml_record(
                     None => problems.push(wrong_type(name, "a string", value)),
                 }
             }
+            "also_published" => match value.get_ref().as_array() {
+                Some(items) => {
+                    for item in items.iter() {
+                        match published_record(text, index, item) {
+                            Ok(published) => record.also_published.push(published),
+                            Err(problem) => problems.push(problem),
+                        }
+                    }
+                }
+                None => problems.push(wrong_type(
+                    name,
+                    "an array of tables ({ e0 = ..., source = \"...\" })",
+                    value,
+                )),
+            },
             _ => record.unknown_keys.push(string_field(text, key)),
         }
     }
@@ -677,6 +726,111 @@ fn toml_record(
     }
     file.problems.extend(problems);
     record
+}
+
+/// One inline table of `also_published`: `e0` and `source` required, `dedt` and `note` optional,
+/// nothing else (a misspelt key would silently drop what it holds).
+fn published_record(
+    text: &str,
+    index: usize,
+    item: &Spanned<DeValue<'_>>,
+) -> Result<PublishedRecord, ReadProblem> {
+    let span = span_of(item);
+    let problem = |kind, message: String, span: Span| ReadProblem {
+        kind,
+        key: Some("also_published".to_owned()),
+        message,
+        span,
+        record: Some(index),
+    };
+    let Some(table) = item.get_ref().as_table() else {
+        return Err(problem(
+            ProblemKind::WrongType,
+            format!(
+                "each value in 'also_published' must be a table {{ e0 = ..., source = \"...\" }}, found {}",
+                item.get_ref().type_str()
+            ),
+            span,
+        ));
+    };
+    let (mut e0, mut dedt, mut source, mut note) = (None, None, None, None);
+    for (key, value) in table.iter() {
+        let name = key.get_ref().as_ref();
+        let value_span = span_of(value);
+        let number = || {
+            toml_number(value.get_ref())
+                .map(|number| Field {
+                    value: number,
+                    span: value_span,
+                    content_start: None,
+                    escapes: Vec::new(),
+                })
+                .ok_or_else(|| {
+                    problem(
+                        ProblemKind::WrongType,
+                        format!(
+                            "'{name}' in 'also_published' must be a number, found {}",
+                            value.get_ref().type_str()
+                        ),
+                        value_span,
+                    )
+                })
+        };
+        let string = || {
+            value
+                .get_ref()
+                .as_str()
+                .map(|string| {
+                    let mapping = content_mapping(text, value_span, string);
+                    Field {
+                        value: string.to_owned(),
+                        span: value_span,
+                        content_start: mapping.as_ref().map(|m| m.0),
+                        escapes: mapping.map(|m| m.1).unwrap_or_default(),
+                    }
+                })
+                .ok_or_else(|| {
+                    problem(
+                        ProblemKind::WrongType,
+                        format!(
+                            "'{name}' in 'also_published' must be a string, found {}",
+                            value.get_ref().type_str()
+                        ),
+                        value_span,
+                    )
+                })
+        };
+        match name {
+            "e0" => e0 = Some(number()?),
+            "dedt" => dedt = Some(number()?),
+            "source" => source = Some(string()?),
+            "note" => note = Some(string()?),
+            other => {
+                return Err(problem(
+                    ProblemKind::WrongType,
+                    format!(
+                        "'also_published' values take only {}, not '{other}'",
+                        PUBLISHED_KEYS.join(", ")
+                    ),
+                    span_of(key),
+                ));
+            }
+        }
+    }
+    let missing = |key: &str| {
+        problem(
+            ProblemKind::MissingKey,
+            format!("a value in 'also_published' has no '{key}'"),
+            span,
+        )
+    };
+    Ok(PublishedRecord {
+        span,
+        e0_volts: e0.ok_or_else(|| missing("e0"))?,
+        dedt_millivolts_per_kelvin: dedt,
+        source: source.ok_or_else(|| missing("source"))?,
+        note,
+    })
 }
 
 fn missing_key(key: &str, index: usize, span: Span) -> ReadProblem {
@@ -972,6 +1126,13 @@ fn read_csv(text: &str) -> CoupleFile {
                         _ => record.note = field,
                     }
                 }
+                "also_published" => file.problems.push(ReadProblem {
+                    kind: ProblemKind::WrongType,
+                    key: Some(name.clone()),
+                    message: "'also_published' is read from TOML files only (an array of tables per couple): move these couples to a .toml file".to_owned(),
+                    span,
+                    record: Some(index),
+                }),
                 _ => {}
             }
         }

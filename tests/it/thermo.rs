@@ -314,14 +314,20 @@ fn built_in_couples_agree_with_formation_data_or_are_listed() {
         "s/s2-",
         "co3+/co2+",
         "clo4-/clo3--base",
-        "sc3+/sc",
-        "clo-/cl-",
         "pt2+/pt",
     ];
     let data = FormationData::builtin();
     let mut both = 0;
     let mut differ = Vec::new();
     for couple in Table::builtin().couples() {
+        // A value derived from these same data agrees by construction: not a comparison.
+        if couple
+            .source
+            .as_deref()
+            .is_some_and(|s| s.starts_with("derived here from the CRC Handbook"))
+        {
+            continue;
+        }
         if let Some(thermo) = e0_from_data(couple, data) {
             both += 1;
             if (thermo.e0_volts().unwrap() - couple.e0_volts).abs() > 0.010 {
