@@ -128,8 +128,9 @@ impl Cell {
             return None;
         }
         let range = |c: &Couple| {
-            c.e0_spread()
-                .map_or((c.e0_volts, c.e0_volts), |s| (s.lowest_volts, s.highest_volts))
+            c.e0_spread().map_or((c.e0_volts, c.e0_volts), |s| {
+                (s.lowest_volts, s.highest_volts)
+            })
         };
         let (cathode_low, cathode_high) = range(&self.cathode);
         let (anode_low, anode_high) = range(&self.anode);

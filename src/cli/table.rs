@@ -125,8 +125,10 @@ pub fn run(args: &TableCommandArgs, out: &mut dyn Write) -> io::Result<u8> {
                     "{:.3}",
                     scale.dedt_millivolts_per_kelvin(d).unwrap_or(d)
                 )),
-            c.e0_spread()
-                .map_or("—".to_owned(), |s| format!("{:.0}", s.width_volts() * 1000.0)),
+            c.e0_spread().map_or("—".to_owned(), |s| format!(
+                "{:.0}",
+                s.width_volts() * 1000.0
+            )),
             c.medium.name(),
             value_status(c),
             c.reaction

@@ -295,9 +295,10 @@ impl Couple {
             .iter()
             .map(|p| p.e0_volts)
             .chain([self.e0_volts]);
-        let (lowest_volts, highest_volts) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
-            (lo.min(v), hi.max(v))
-        });
+        let (lowest_volts, highest_volts) = values
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
+                (lo.min(v), hi.max(v))
+            });
         Some(E0Spread {
             lowest_volts,
             highest_volts,
@@ -1087,7 +1088,10 @@ fn couple_from_record(
             if field.value.is_finite() {
                 Ok(field.value)
             } else {
-                Err(error(field.span, format!("{what} in 'also_published' is not a finite number")))
+                Err(error(
+                    field.span,
+                    format!("{what} in 'also_published' is not a finite number"),
+                ))
             }
         };
         couple.also_published.push(PublishedValue {

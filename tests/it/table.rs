@@ -474,3 +474,210 @@ fn table_and_cell_show_which_values_are_unverified() {
     assert!(cathode.contains("UNVERIFIED"), "{cathode}");
     assert!(!anode.contains("UNVERIFIED"), "{anode}");
 }
+
+// ---- several published values per couple ----
+
+/// An invented user table: one couple with two more published values, one with one more.
+const SPREAD_TABLE: &str = r#"
+[[couple]]
+id = "test-cathode"
+reaction = "Ag+ + e- -> Ag(s)"
+e0 = 0.50
+source = "invented default"
+also_published = [
+  { e0 = 0.52, source = "invented compilation A", dedt = -0.1 },
+  { e0 = 0.47, source = "invented compilation B", note = "1 atm" },
+]
+
+[[couple]]
+id = "test-anode"
+reaction = "Zn2+ + 2 e- -> Zn(s)"
+e0 = 0.10
+source = "invented default"
+also_published = [{ e0 = 0.08, source = "invented compilation C" }]
+"#;
+
+#[test]
+fn several_published_values_load_with_their_sources_and_spread() {
+    let file = CoupleFile::from_text(SPREAD_TABLE, FileFormat::Toml);
+    assert!(file.problems.is_empty(), "{:?}", file.problems);
+    let mut table = Table::new();
+    table.add_file(&file, Origin::Given).unwrap();
+    let cathode = table.by_id("test-cathode").unwrap();
+    assert_eq!(cathode.e0_volts, 0.50, "the default stays e0");
+    assert_eq!(cathode.also_published.len(), 2);
+    assert_eq!(cathode.also_published[0].source, "invented compilation A");
+    assert_eq!(
+        cathode.also_published[0].dedt_millivolts_per_kelvin,
+        Some(-0.1)
+    );
+    assert_eq!(cathode.also_published[1].note.as_deref(), Some("1 atm"));
+    let spread = cathode.e0_spread().unwrap();
+    assert_eq!(
+        (spread.lowest_volts, spread.highest_volts, spread.values),
+        (0.47, 0.52, 3)
+    );
+    assert!(table.by_id("test-anode").unwrap().e0_spread().is_some());
+    // The cell's E° range: lowest cathode minus highest anode, highest cathode minus lowest
+    // anode (0.47 - 0.10 and 0.52 - 0.08).
+    let cell = couplet::cell::combine(
+        table.by_id("test-cathode").unwrap(),
+        table.by_id("test-anode").unwrap(),
+        couplet::cell::CellOptions::default(),
+    )
+    .unwrap();
+    let (low, high) = cell.e0_range_volts().unwrap();
+    assert!(
+        (low - 0.37).abs() < 1e-12 && (high - 0.44).abs() < 1e-12,
+        "{low} {high}"
+    );
+    // One value only: no spread, no range.
+    let single = Table::builtin();
+    assert!(single.by_id("zn2+/zn").unwrap().e0_spread().is_none());
+}
+
+#[test]
+fn faults_in_published_values_are_located_and_csv_says_where_they_go() {
+    for (entry, fault, what) in [
+        (
+            r#"also_published = [{ e0 = 0.5 }]"#,
+            "{ e0 = 0.5 }",
+            "has no 'source'",
+        ),
+        (
+            r#"also_published = [{ e0 = "0.5", source = "x" }]"#,
+            "\"0.5\"",
+            "must be a number",
+        ),
+        (
+            r#"also_published = [{ e0 = 0.5, source = "x", sorce = "y" }]"#,
+            "sorce",
+            "not 'sorce'",
+        ),
+        (r#"also_published = 0.5"#, "0.5", "must be an array"),
+        (r#"also_published = [0.5]"#, "0.5", "must be a table"),
+    ] {
+        let text = format!("[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.8\n{entry}\n");
+        let file = CoupleFile::from_text(&text, FileFormat::Toml);
+        assert_eq!(file.problems.len(), 1, "{entry}: {:?}", file.problems);
+        let problem = &file.problems[0];
+        assert!(
+            problem.message.contains(what),
+            "{entry}: {}",
+            problem.message
+        );
+        assert_eq!(
+            &text[problem.span.start..problem.span.end],
+            fault,
+            "{entry}"
+        );
+    }
+    let csv = "reaction,e0,also_published\n\"Ag+ + e- -> Ag(s)\",0.8,0.79\n";
+    let file = CoupleFile::from_text(csv, FileFormat::Csv);
+    assert_eq!(file.problems.len(), 1);
+    assert!(file.problems[0].message.contains("TOML files only"));
+    // A value that is not finite is refused when the table is built, at its place.
+    let text = "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.8\nalso_published = [{ e0 = nan, source = \"x\" }]\n";
+    let error = Table::new()
+        .add_file(
+            &CoupleFile::from_text(text, FileFormat::Toml),
+            Origin::Given,
+        )
+        .unwrap_err();
+    assert_eq!((error.line, error.column), (4, 26), "{error}");
+}
+
+#[test]
+fn a_recalled_default_never_stands_beside_a_read_value() {
+    // The rule written in data/potentials.toml, part 1: a value read in a publication beats a
+    // recalled one. Every published value names its source.
+    let recalled = |source: &str| source.contains("from memory") || source.contains("recalled");
+    let table = Table::builtin();
+    let mut with_values = 0;
+    for couple in table.couples() {
+        if couple.also_published.is_empty() {
+            continue;
+        }
+        with_values += 1;
+        let default_source = couple.source.as_deref().unwrap_or("");
+        for value in &couple.also_published {
+            assert!(!value.source.trim().is_empty(), "{}", couple.label());
+            assert!(
+                !recalled(default_source) || recalled(&value.source),
+                "{}: recalled e0 beside the read value from {}",
+                couple.label(),
+                value.source
+            );
+            assert_ne!(
+                value.e0_volts,
+                couple.e0_volts,
+                "{}: the same value twice",
+                couple.label()
+            );
+        }
+    }
+    assert!(with_values >= 7, "{with_values}");
+}
+
+#[test]
+fn the_compilations_that_disagree_keep_both_values() {
+    // The disputed couples: each value as its source gives it (data/potentials.toml names
+    // them). HClO/Cl-: Harris-derived 1.4952 against OpenStax (CRC lineage) 1.482.
+    // UO2^2+/U4+: Giridhar & Langmuir 0.263 (measured), Bruno et al. 0.2674, CRC 0.327 (recalled).
+    let table = Table::builtin();
+    let values = |id: &str| {
+        let c = table.by_id(id).unwrap();
+        let mut v: Vec<f64> = c.also_published.iter().map(|p| p.e0_volts).collect();
+        v.insert(0, c.e0_volts);
+        v
+    };
+    assert_eq!(values("hclo/cl-"), [1.4952, 1.482]);
+    assert_eq!(values("uo2^2+/u4+"), [0.263, 0.2674, 0.327]);
+    assert_eq!(values("clo-/cl-"), [0.8898, 0.81]);
+    assert_eq!(values("fe2+/fe"), [-0.44, -0.4089, -0.447]);
+    // H2S as gas and dissolved are two couples, each with its state in the id.
+    let h2s = table.matching("S/H2S");
+    let ids: Vec<_> = h2s.iter().filter_map(|c| c.id.as_deref()).collect();
+    assert!(
+        ids.contains(&"s/h2s(g)") && ids.contains(&"s/h2s(aq)"),
+        "{ids:?}"
+    );
+}
+
+#[test]
+fn hydrate_forms_of_one_solute_are_one_couple() {
+    use couplet::table::{hydrate_equivalent, same_couple};
+    let species = |s: &str| couplet::notation::parse_species(s).unwrap();
+    let reaction = |s: &str| Reaction::from_equation(&parse_equation(s).unwrap());
+    // HAsO2 + H2O = H3AsO3 (Harris writes H3AsO3, the CRC series HAsO2); H4SiO4 = SiO2 + 2 H2O.
+    assert!(hydrate_equivalent(
+        &species("HAsO2"),
+        &species("H3AsO3(aq)")
+    ));
+    assert!(hydrate_equivalent(&species("H4SiO4"), &species("SiO2(aq)")));
+    // Not: another charge, a solid, or carbon compounds (ethanol is not hydrated ethylene).
+    assert!(!hydrate_equivalent(&species("H2AsO3-"), &species("H3AsO3")));
+    assert!(!hydrate_equivalent(&species("As2O3(s)"), &species("HAsO2")));
+    assert!(!hydrate_equivalent(&species("C2H5OH"), &species("C2H4")));
+    assert!(same_couple(
+        &reaction("H3AsO4 + 2 H+ + 2 e- -> HAsO2 + 2 H2O(l)"),
+        &reaction("H3AsO4(aq) + 2 H+ + 2 e- -> H3AsO3(aq) + H2O(l)"),
+    ));
+    assert!(same_couple(
+        &reaction("2 HAsO2 + 6 H+ + 6 e- -> 2 As(s) + 4 H2O(l)"),
+        &reaction("H3AsO3(aq) + 3 H+ + 3 e- -> As(s) + 3 H2O(l)"),
+    ));
+    // A different couple of the same species is not the same couple.
+    assert!(!same_couple(
+        &reaction("H3AsO4 + 2 H+ + 2 e- -> HAsO2 + 2 H2O(l)"),
+        &reaction("H3AsO3(aq) + 3 H+ + 3 e- -> As(s) + 3 H2O(l)"),
+    ));
+    // Lookups see through the form: the CRC way of writing finds Harris's couple.
+    let table = Table::builtin();
+    assert_eq!(
+        table.find("HAsO2/As", None).unwrap().id.as_deref(),
+        Some("h3aso3/as")
+    );
+    let found = table.by_reaction(&reaction("HAsO2 + 3 H+ + 3 e- -> As(s) + 2 H2O(l)"));
+    assert_eq!(found.len(), 1);
+}

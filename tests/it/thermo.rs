@@ -476,3 +476,49 @@ mod cli {
         assert!(stderr.contains("bad.csv:1"), "{stderr}");
     }
 }
+
+#[test]
+fn published_temperature_coefficients_have_the_sign_and_size_the_entropies_give() {
+    // dE°/dT = ΔrS°/(nF) (DOMAIN.md), with ΔrS° from the CRC 95th ed. formation data and the
+    // SHE convention for the electron. A coefficient copied from a derived table with the sign
+    // flipped (the H2S(g) case: +0.224 mV/K, not −) is caught here. Couples whose coefficient
+    // and entropies disagree by more than 0.1 mV/K are listed with both values: each is a
+    // disagreement between compilations to be settled from the publications, not hidden.
+    // (id, published mV/K, from the entropies mV/K): Harris (Bratsch 1989) against the CRC
+    // formation data; the NBS-derived table sides with the formation data for Fe2+/Fe (0.178).
+    #[allow(clippy::approx_constant)] // 0.318 mV/K is a computed coefficient, not 1/π
+    const LISTED: &[(&str, f64, f64)] = &[
+        ("be2+/be", 0.6, 0.044),
+        ("fe2+/fe", 0.07, 0.178),
+        ("ce4+/ce3+", 1.54, 0.318),
+        ("pd2+/pd", 0.12, 0.471),
+    ];
+    let data = FormationData::builtin();
+    let mut compared = 0;
+    let mut differ = Vec::new();
+    for couple in Table::builtin().couples() {
+        let Some(published) = couple.dedt_millivolts_per_kelvin else {
+            continue;
+        };
+        let Some(from_entropies) =
+            e0_from_data(couple, data).and_then(|t| t.dedt_millivolts_per_kelvin())
+        else {
+            continue;
+        };
+        compared += 1;
+        let sign_flipped = published.signum() != from_entropies.signum() && published.abs() > 0.02;
+        if sign_flipped || (published - from_entropies).abs() > 0.1 {
+            differ.push((couple.label(), published, from_entropies));
+        }
+    }
+    let listed: Vec<(String, f64, f64)> = LISTED
+        .iter()
+        .map(|(id, a, b)| (id.to_string(), *a, *b))
+        .collect();
+    let rounded: Vec<(String, f64, f64)> = differ
+        .iter()
+        .map(|(id, a, b)| (id.clone(), *a, (b * 1000.0).round() / 1000.0))
+        .collect();
+    assert_eq!(rounded, listed, "{compared} compared");
+    assert!(compared >= 40, "{compared} couples compared");
+}
