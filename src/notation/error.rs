@@ -77,8 +77,8 @@ impl NotationError {
     ///
     /// ```text
     /// error (unknown_element): no element has the symbol 'Xx'
-    ///   | MnXx4 -> Mn2+
-    ///   |   ^^
+    ///     MnXx4 -> Mn2+
+    ///       ^^ column 3
     /// ```
     pub fn render(&self) -> String {
         render_caret(
@@ -89,7 +89,8 @@ impl NotationError {
     }
 }
 
-/// Renders `headline`, then the line of `text` that holds `span` with carets under it.
+/// Renders `headline`, then the line of `text` that holds `span`, indented, with carets under
+/// the span and where it starts (the line too when the text has several).
 pub fn render_caret(text: &str, span: Span, headline: &str) -> String {
     let start = span.start.min(text.len());
     let end = span.end.clamp(start, text.len());
@@ -98,14 +99,17 @@ pub fn render_caret(text: &str, span: Span, headline: &str) -> String {
     let line = &text[line_start..line_end];
     let pad = text[line_start..start].chars().count();
     let width = text[start..end.min(line_end)].chars().count().max(1);
-    let mut out = String::new();
-    out.push_str(headline);
-    out.push_str("\n  | ");
-    out.push_str(line);
-    out.push_str("\n  | ");
-    out.push_str(&" ".repeat(pad));
-    out.push_str(&"^".repeat(width));
-    out
+    let place = if text.contains('\n') {
+        let line_number = text[..start].matches('\n').count() + 1;
+        format!("line {line_number}, column {}", pad + 1)
+    } else {
+        format!("column {}", pad + 1)
+    };
+    format!(
+        "{headline}\n    {line}\n    {}{} {place}",
+        " ".repeat(pad),
+        "^".repeat(width)
+    )
 }
 
 impl fmt::Display for NotationErrorKind {
