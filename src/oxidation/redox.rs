@@ -18,7 +18,7 @@ use crate::reaction::{Reaction, same_species};
 use num_bigint::BigInt;
 use num_rational::{BigRational, Ratio};
 use num_traits::{Signed, Zero};
-use std::rc::Rc;
+use std::sync::Arc;
 
 /// Atoms of one element going from one oxidation number to another.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -82,8 +82,9 @@ pub struct RedoxAnalysis {
     /// The kind.
     pub kind: RedoxKind,
     /// The oxidation numbers of each species, in the order of the reaction's entries
-    /// (`None` for the electron).
-    pub species: Vec<Option<SpeciesOxidation>>,
+    /// (`None` for the electron), shared with the per-thread memo: a deep copy of each
+    /// (rules with names, sites) cost more than the analysis itself.
+    pub species: Vec<Option<Arc<SpeciesOxidation>>>,
 }
 
 /// Why a reaction could not be analysed.
@@ -150,7 +151,7 @@ pub fn analyse(reaction: &Reaction) -> Result<RedoxAnalysis, RedoxError> {
 fn species_oxidation(
     species: &Species,
     pins: &[SpeciesPin],
-) -> Result<Rc<SpeciesOxidation>, RedoxError> {
+) -> Result<Arc<SpeciesOxidation>, RedoxError> {
     let options = Options {
         pins: pins
             .iter()
@@ -166,33 +167,16 @@ fn species_oxidation(
 
 /// Analyses a balanced reaction or half-reaction, with pins for some of its species.
 pub fn analyse_with(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<RedoxAnalysis, RedoxError> {
-    let shared = analyse_shared(reaction, pins)?;
-    Ok(RedoxAnalysis {
-        oxidized: shared.oxidized,
-        reduced: shared.reduced,
-        n: shared.n,
-        electrons_written: shared.electrons_written,
-        kind: shared.kind,
-        species: shared
-            .species
-            .into_iter()
-            .map(|s| s.map(|s| (*s).clone()))
-            .collect(),
-    })
+    analyse_prepared(reaction, |species| species_oxidation(species, pins))
 }
 
-/// [`RedoxAnalysis`] with the oxidation numbers of each species still shared with the
-/// per-thread memo: callers that want only n need no copy of them.
-struct SharedAnalysis {
-    oxidized: Vec<ElementChange>,
-    reduced: Vec<ElementChange>,
-    n: BigRational,
-    electrons_written: BigRational,
-    kind: RedoxKind,
-    species: Vec<Option<Rc<SpeciesOxidation>>>,
-}
-
-fn analyse_shared(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<SharedAnalysis, RedoxError> {
+/// Analyses a balanced reaction or half-reaction with the oxidation numbers `lookup` gives for
+/// each species (the electron is never asked for). A batch that keeps the answers per species
+/// (from [`oxidation_numbers_shared`](super::oxidation_numbers_shared)) asks no memo twice.
+pub fn analyse_prepared(
+    reaction: &Reaction,
+    mut lookup: impl FnMut(&Species) -> Result<Arc<SpeciesOxidation>, RedoxError>,
+) -> Result<RedoxAnalysis, RedoxError> {
     if reaction.is_empty() {
         return Err(RedoxError::Empty);
     }
@@ -214,7 +198,7 @@ fn analyse_shared(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<SharedAnal
         if entry.species.is_electron() {
             species.push(None);
         } else {
-            species.push(Some(species_oxidation(&entry.species, pins)?));
+            species.push(Some(lookup(&entry.species)?));
         }
     }
 
@@ -257,7 +241,7 @@ fn analyse_shared(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<SharedAnal
         }
         (n, written, kind)
     };
-    Ok(SharedAnalysis {
+    Ok(RedoxAnalysis {
         oxidized,
         reduced,
         n,
@@ -326,6 +310,11 @@ struct SmallRatio(Ratio<i128>);
 const SMALL_LIMIT: i128 = i64::MAX as i128;
 
 impl SmallRatio {
+    /// Both numerators when both values are whole numbers.
+    fn whole_pair(&self, other: &SmallRatio) -> Option<(i128, i128)> {
+        (*self.0.denom() == 1 && *other.0.denom() == 1).then(|| (*self.0.numer(), *other.0.numer()))
+    }
+
     fn checked(value: Ratio<i128>) -> Option<SmallRatio> {
         (value.numer().unsigned_abs() <= SMALL_LIMIT as u128 && *value.denom() <= SMALL_LIMIT)
             .then_some(SmallRatio(value))
@@ -345,14 +334,26 @@ impl Exact for SmallRatio {
     fn from_count(count: u64) -> Option<Self> {
         SmallRatio::checked(Ratio::from_integer(i128::from(count)))
     }
+    // Whole numbers (almost every oxidation number and atom count) skip the i128 gcd of the
+    // general case, which cost more than the rest of the tally: same results, no reduction
+    // needed when both denominators are 1.
     fn plus(&self, other: &Self) -> Option<Self> {
-        SmallRatio::checked(self.0 + other.0)
+        match self.whole_pair(other) {
+            Some((a, b)) => SmallRatio::checked(Ratio::from_integer(a + b)),
+            None => SmallRatio::checked(self.0 + other.0),
+        }
     }
     fn minus(&self, other: &Self) -> Option<Self> {
-        SmallRatio::checked(self.0 - other.0)
+        match self.whole_pair(other) {
+            Some((a, b)) => SmallRatio::checked(Ratio::from_integer(a - b)),
+            None => SmallRatio::checked(self.0 - other.0),
+        }
     }
     fn times(&self, other: &Self) -> Option<Self> {
-        SmallRatio::checked(self.0 * other.0)
+        match self.whole_pair(other) {
+            Some((a, b)) => SmallRatio::checked(Ratio::from_integer(a * b)),
+            None => SmallRatio::checked(self.0 * other.0),
+        }
     }
     fn magnitude(&self) -> Self {
         // In range, so the negation cannot overflow.
@@ -400,7 +401,7 @@ type Sides<T> = (Element, Vec<(T, T)>, Vec<(T, T)>);
 #[allow(clippy::type_complexity)]
 fn changes<T: Exact>(
     reaction: &Reaction,
-    species: &[Option<Rc<SpeciesOxidation>>],
+    species: &[Option<Arc<SpeciesOxidation>>],
 ) -> Option<(Vec<Change<T>>, Vec<Change<T>>)> {
     // Per element: (oxidation number, atoms) on each side.
     let mut sides: Vec<Sides<T>> = Vec::new();
@@ -588,8 +589,7 @@ pub fn changes_one_element(equation: &Equation) -> bool {
 /// The balancer reports it as n of a whole reaction and the data-file checker compares it with
 /// the electrons of each half-reaction.
 pub fn oxidation_number_electrons(reaction: &Reaction) -> Option<BigRational> {
-    // The oxidation numbers of the species are not wanted: the shared analysis copies none.
-    match analyse_shared(reaction, &[]) {
+    match analyse(reaction) {
         Ok(analysis) => Some(analysis.n),
         Err(RedoxError::ElectronMismatch {
             from_oxidation_numbers,
