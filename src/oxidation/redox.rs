@@ -393,8 +393,9 @@ fn into_big<T: Exact>(changes: Vec<Change<T>>) -> Vec<ElementChange> {
         .collect()
 }
 
-/// An element with its atoms on each side: (oxidation number, atoms) before and after.
-type Sides<T> = (Element, Vec<(T, T)>, Vec<(T, T)>);
+/// Atoms of one element in one state on one side: (element's place in order of first
+/// appearance, on the reactant side, oxidation number, atoms).
+type Atoms<T> = (usize, bool, T, T);
 
 /// The oxidised and reduced elements of a balanced reaction, from the oxidation numbers of
 /// its species (`None` for the electron, in the order of the entries). `None` when `T` gives up.
@@ -403,8 +404,9 @@ fn changes<T: Exact>(
     reaction: &Reaction,
     species: &[Option<Arc<SpeciesOxidation>>],
 ) -> Option<(Vec<Change<T>>, Vec<Change<T>>)> {
-    // Per element: (oxidation number, atoms) on each side.
-    let mut sides: Vec<Sides<T>> = Vec::new();
+    // One flat list for all elements and both sides (one allocation, not two per element).
+    let mut elements: Vec<Element> = Vec::new();
+    let mut atoms: Vec<Atoms<T>> = Vec::new();
     for (entry, oxidation) in reaction.entries().iter().zip(species) {
         let Some(oxidation) = oxidation else {
             continue;
@@ -418,34 +420,39 @@ fn changes<T: Exact>(
         let reactant = entry.nu.is_negative();
         let nu_abs = nu.magnitude();
         for element in &oxidation.elements {
-            let index = match sides.iter().position(|(e, _, _)| *e == element.element) {
+            let place = match elements.iter().position(|e| *e == element.element) {
                 Some(i) => i,
                 None => {
-                    sides.push((element.element, Vec::new(), Vec::new()));
-                    sides.len() - 1
+                    elements.push(element.element);
+                    elements.len() - 1
                 }
             };
             for site in &element.sites {
                 let count = T::from_count(site.count)?;
-                let atoms = nu_abs.times(&count)?;
-                let side = if reactant {
-                    &mut sides[index].1
-                } else {
-                    &mut sides[index].2
-                };
-                side.push((T::from_big(&site.oxidation_number)?, atoms));
+                atoms.push((
+                    place,
+                    reactant,
+                    T::from_big(&site.oxidation_number)?,
+                    nu_abs.times(&count)?,
+                ));
             }
         }
     }
+    // Per element, reactants before products, each in order of oxidation number; the sort is
+    // stable, so equal states keep the order of the entries.
+    atoms.sort_by(|a, b| (a.0, !a.1, &a.2).cmp(&(b.0, !b.1, &b.2)));
 
     let mut oxidized: Vec<Change<T>> = Vec::new();
     let mut reduced: Vec<Change<T>> = Vec::new();
-    for (element, before, after) in &mut sides {
-        for (from, to, atoms) in pair_atoms(before, after)? {
+    for run in atoms.chunk_by(|a, b| a.0 == b.0) {
+        let element = elements[run[0].0];
+        let products = run.iter().position(|a| !a.1).unwrap_or(run.len());
+        let (before, after) = run.split_at(products);
+        pair_atoms(before, after, |from, to, atoms| {
             if from == to {
-                continue;
+                return Some(());
             }
-            let electrons = atoms.times(&to.minus(&from)?.magnitude())?;
+            let electrons = atoms.times(&to.minus(from)?.magnitude())?;
             let list = if to > from {
                 &mut oxidized
             } else {
@@ -453,21 +460,22 @@ fn changes<T: Exact>(
             };
             match list
                 .iter_mut()
-                .find(|c| c.element == *element && c.from == from && c.to == to)
+                .find(|c| c.element == element && &c.from == from && &c.to == to)
             {
                 Some(existing) => {
                     existing.atoms = existing.atoms.plus(&atoms)?;
                     existing.electrons = existing.electrons.plus(&electrons)?;
                 }
                 None => list.push(Change {
-                    element: *element,
-                    from,
-                    to,
+                    element,
+                    from: from.clone(),
+                    to: to.clone(),
                     atoms,
                     electrons,
                 }),
             }
-        }
+            Some(())
+        })?;
     }
     Some((oxidized, reduced))
 }
@@ -492,42 +500,42 @@ fn whole_kind(oxidized: &[ElementChange], reduced: &[ElementChange]) -> RedoxKin
     RedoxKind::Redox
 }
 
-/// Pairs atoms of one element across the sides in order of oxidation number:
-/// `(from, to, atoms)` chunks. Both sides hold the same number of atoms (checked before).
-/// `None` when `T` gives up.
-#[allow(clippy::type_complexity)]
-fn pair_atoms<T: Exact>(before: &mut [(T, T)], after: &mut [(T, T)]) -> Option<Vec<(T, T, T)>> {
-    before.sort_by(|a, b| a.0.cmp(&b.0));
-    after.sort_by(|a, b| a.0.cmp(&b.0));
-    let mut chunks = Vec::new();
+/// Pairs atoms of one element across the sides in order of oxidation number (both sorted by
+/// it), giving each `(from, to, atoms)` chunk to `chunk`. Both sides hold the same number of
+/// atoms (checked before). `None` when `T` or `chunk` gives up.
+fn pair_atoms<T: Exact>(
+    before: &[Atoms<T>],
+    after: &[Atoms<T>],
+    mut chunk: impl FnMut(&T, &T, T) -> Option<()>,
+) -> Option<()> {
     let (mut i, mut j) = (0, 0);
-    let mut left_i = before.first().map(|b| b.1.clone()).unwrap_or_else(T::nil);
-    let mut left_j = after.first().map(|a| a.1.clone()).unwrap_or_else(T::nil);
+    let mut left_i = before.first().map(|b| b.3.clone()).unwrap_or_else(T::nil);
+    let mut left_j = after.first().map(|a| a.3.clone()).unwrap_or_else(T::nil);
     while i < before.len() && j < after.len() {
         let take = if left_i < left_j {
             left_i.clone()
         } else {
             left_j.clone()
         };
-        if take.is_above_zero() {
-            chunks.push((before[i].0.clone(), after[j].0.clone(), take.clone()));
-        }
         left_i = left_i.minus(&take)?;
         left_j = left_j.minus(&take)?;
+        if take.is_above_zero() {
+            chunk(&before[i].2, &after[j].2, take)?;
+        }
         if left_i.is_nil() {
             i += 1;
             if let Some(b) = before.get(i) {
-                left_i = b.1.clone();
+                left_i = b.3.clone();
             }
         }
         if left_j.is_nil() {
             j += 1;
             if let Some(a) = after.get(j) {
-                left_j = a.1.clone();
+                left_j = a.3.clone();
             }
         }
     }
-    Some(chunks)
+    Some(())
 }
 
 /// The elements whose oxidation numbers differ between the two sides of an equation, compared
