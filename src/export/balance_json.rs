@@ -115,10 +115,6 @@ impl BalanceJson {
         if let Some(&known) = self.index.get(species) {
             return known;
         }
-        if self.facts.len() >= SPECIES_CAPACITY {
-            self.index.clear();
-            self.facts.clear();
-        }
         self.facts.push(SpeciesFacts::of(species));
         self.index.insert(species.clone(), self.facts.len() - 1);
         self.facts.len() - 1
