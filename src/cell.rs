@@ -447,14 +447,18 @@ pub fn derive(couples: &[Couple]) -> Result<Derived, DeriveError> {
 /// chromate, CrO3, salts such as K2Cr2O7).
 fn holds_chromium_vi(species: &Species) -> bool {
     let six = num_rational::BigRational::from_integer(6.into());
-    crate::oxidation::oxidation_numbers(species).is_ok_and(|oxidation| {
+    // The shared answer of the per-thread memo: a copy of it is not needed to read one value.
+    let options = crate::oxidation::Options::default();
+    crate::oxidation::oxidation_numbers_shared(species, &options).is_ok_and(|oxidation| {
         oxidation.elements.iter().any(|e| {
             e.element.symbol() == "Cr" && e.sites.iter().any(|s| s.oxidation_number == six)
         })
     })
 }
 
-fn hazard_of(species: &Species, is_product: bool) -> Option<&'static str> {
+/// The hazard the caution line names for one species on one side of a reaction (gases are
+/// named only as products), or `None`. Depends on the species alone, so a batch can keep it.
+pub fn species_hazard(species: &Species, is_product: bool) -> Option<&'static str> {
     let counts = species.composition.counts();
     let count = |symbol: &str| {
         counts
@@ -468,14 +472,22 @@ fn hazard_of(species: &Species, is_product: bool) -> Option<&'static str> {
         Some(s) if s != crate::notation::State::Gas
     );
     if is_product && species.charge() == 0 && state_gas_or_none {
-        for (formula, hazard) in [
-            ("H2", "hydrogen (flammable, explosive with air)"),
-            ("O2", "oxygen (feeds fires; with hydrogen explosive)"),
-            ("Cl2", "chlorine (toxic gas)"),
-        ] {
-            if species.kind == crate::notation::parse_species(formula).ok()?.kind {
-                return Some(hazard);
-            }
+        // Read once: parsing the three formulas for every product cost more than the rest of
+        // the caution.
+        static GASES: std::sync::OnceLock<Vec<(crate::notation::SpeciesKind, &'static str)>> =
+            std::sync::OnceLock::new();
+        let gases = GASES.get_or_init(|| {
+            [
+                ("H2", "hydrogen (flammable, explosive with air)"),
+                ("O2", "oxygen (feeds fires; with hydrogen explosive)"),
+                ("Cl2", "chlorine (toxic gas)"),
+            ]
+            .into_iter()
+            .filter_map(|(formula, hazard)| Some((parse_species(formula).ok()?.kind, hazard)))
+            .collect()
+        });
+        if let Some((_, hazard)) = gases.iter().find(|(kind, _)| *kind == species.kind) {
+            return Some(hazard);
         }
     }
     if count("Cr") > 0 && holds_chromium_vi(species) {
@@ -509,20 +521,29 @@ fn hazard_of(species: &Species, is_product: bool) -> Option<&'static str> {
 
 /// One caution line for a reaction, or `None` when none of the named hazards is involved.
 pub fn caution(reaction: &Reaction) -> Option<String> {
-    let mut hazards: Vec<&str> = Vec::new();
-    for entry in reaction.entries() {
-        if let Some(h) = hazard_of(&entry.species, entry.nu.is_positive())
-            && !hazards.contains(&h)
-        {
-            hazards.push(h);
+    caution_of_hazards(
+        reaction
+            .entries()
+            .iter()
+            .filter_map(|entry| species_hazard(&entry.species, entry.nu.is_positive())),
+    )
+}
+
+/// The caution line for the [`species_hazard`]s of a reaction's entries, in entry order
+/// (repeats named once), or `None` when there are none.
+pub fn caution_of_hazards(hazards: impl IntoIterator<Item = &'static str>) -> Option<String> {
+    let mut named: Vec<&str> = Vec::new();
+    for hazard in hazards {
+        if !named.contains(&hazard) {
+            named.push(hazard);
         }
     }
-    if hazards.is_empty() {
+    if named.is_empty() {
         return None;
     }
     Some(format!(
         "caution: involves {}; these are ideal figures, not a procedure: follow local codes and the safety data sheets of every material",
-        hazards.join(", ")
+        named.join(", ")
     ))
 }
 

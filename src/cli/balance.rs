@@ -7,8 +7,8 @@ use couplet::balance::{
     balance_text,
 };
 use couplet::balance::{HalfReactions, split};
-use couplet::notation::Species;
-use couplet::oxidation::{ElementChange, RedoxAnalysis, analyse, signed_text};
+use couplet::export::balance_json::{BalanceJson, balance_lines_json};
+use couplet::oxidation::{RedoxAnalysis, analyse, signed_text};
 use num_bigint::BigInt;
 use num_traits::Signed;
 use std::fmt::Write as _;
@@ -48,7 +48,9 @@ pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
         let line = text.trim_end_matches(['\n', '\r']);
         let result = balance_text(line, &options);
         if args.json {
-            writeln!(out, "{}", result_json(line, None, options.medium, &result))?;
+            let mut buffer = Vec::new();
+            BalanceJson::new().write(&mut buffer, line, None, options.medium, &result);
+            out.write_all(&buffer)?;
         } else {
             match &result {
                 Ok(balanced) => write!(out, "{}", human(balanced))?,
@@ -59,6 +61,10 @@ pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
             Ok(_) => EXIT_OK,
             Err(error) => failure::balance(error, line).status,
         });
+    }
+    if args.json {
+        let all_balanced = balance_lines_json(&text, &options, out)?;
+        return Ok(if all_balanced { EXIT_OK } else { EXIT_FINDINGS });
     }
     let mut status = EXIT_OK;
     for (index, line) in text.lines().enumerate() {
@@ -71,18 +77,14 @@ pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
         if result.is_err() {
             status = EXIT_FINDINGS;
         }
-        if args.json {
-            out.write_all(result_json(line, Some(number), options.medium, &result).as_bytes())?;
-        } else {
-            match &result {
-                Ok(balanced) => out.write_all(balanced.ascii().as_bytes())?,
-                Err(error) => {
-                    let kind = failure::balance(error, line).kind;
-                    write!(out, "line {number}: error ({kind}): {error}")?;
-                    if let BalanceError::NotUnique { basis } = error {
-                        let listed: Vec<String> = basis.iter().map(|r| r.to_string()).collect();
-                        write!(out, ": {}", listed.join(" ; "))?;
-                    }
+        match &result {
+            Ok(balanced) => out.write_all(balanced.ascii().as_bytes())?,
+            Err(error) => {
+                let kind = failure::balance(error, line).kind;
+                write!(out, "line {number}: error ({kind}): {error}")?;
+                if let BalanceError::NotUnique { basis } = error {
+                    let listed: Vec<String> = basis.iter().map(|r| r.to_string()).collect();
+                    write!(out, ": {}", listed.join(" ; "))?;
                 }
             }
         }
@@ -163,21 +165,6 @@ fn redox_of(balanced: &BalancedReaction) -> Option<(RedoxAnalysis, Option<HalfRe
     Some((analysis, halves))
 }
 
-fn changes_json(changes: &[ElementChange]) -> String {
-    let items: Vec<String> = changes
-        .iter()
-        .map(|c| {
-            format!(
-                "{{\"element\":{},\"from\":{},\"to\":{}}}",
-                json_string(c.element.symbol()),
-                json_string(&signed_text(&c.from)),
-                json_string(&signed_text(&c.to))
-            )
-        })
-        .collect();
-    format!("[{}]", items.join(","))
-}
-
 fn human_error(error: &BalanceError, line: &str, half: bool) -> String {
     let mut out = failure::balance(error, line).rendered().to_owned();
     out.push('\n');
@@ -194,102 +181,5 @@ fn human_error(error: &BalanceError, line: &str, half: bool) -> String {
         }
         _ => {}
     }
-    out
-}
-
-fn json_string(text: &str) -> String {
-    serde_json::to_string(text).expect("strings always serialise")
-}
-
-fn side_json(out: &mut String, terms: &[(&Species, BigInt)]) {
-    out.push('[');
-    for (i, (species, coefficient)) in terms.iter().enumerate() {
-        if i > 0 {
-            out.push(',');
-        }
-        // Coefficients are written as JSON integers of any size, straight from their digits.
-        let _ = write!(
-            out,
-            "{{\"species\":{},\"coefficient\":{coefficient}}}",
-            json_string(&species.ascii())
-        );
-    }
-    out.push(']');
-}
-
-/// One result object on one line (schema in the README).
-fn result_json(
-    input: &str,
-    line: Option<usize>,
-    medium: Medium,
-    result: &Result<BalancedReaction, BalanceError>,
-) -> String {
-    let mut out = format!("{{\"input\":{}", json_string(input));
-    match result {
-        Ok(balanced) => {
-            let _ = write!(
-                out,
-                ",\"medium\":\"{}\",\"balanced\":{},\"reactants\":",
-                medium.name(),
-                json_string(&balanced.ascii())
-            );
-            side_json(&mut out, &balanced.reactants());
-            out.push_str(",\"products\":");
-            side_json(&mut out, &balanced.products());
-            let redox = redox_of(balanced);
-            match electrons(balanced, redox.as_ref().map(|(analysis, _)| analysis)) {
-                Some(n) => {
-                    let _ = write!(out, ",\"electrons\":{n}");
-                }
-                None => out.push_str(",\"electrons\":null"),
-            }
-            match couplet::cell::caution(balanced.reaction()) {
-                Some(caution) => {
-                    let _ = write!(out, ",\"caution\":{}", json_string(&caution));
-                }
-                None => out.push_str(",\"caution\":null"),
-            }
-            if let Some((analysis, halves)) = redox {
-                let n = if analysis.n.is_integer() {
-                    analysis.n.to_integer().to_string()
-                } else {
-                    json_string(&signed_text(&analysis.n))
-                };
-                let _ = write!(
-                    out,
-                    ",\"redox\":{{\"oxidized\":{},\"reduced\":{},\"n\":{n},\"kind\":\"{}\"}}",
-                    changes_json(&analysis.oxidized),
-                    changes_json(&analysis.reduced),
-                    analysis.kind.name()
-                );
-                if let Some(halves) = halves {
-                    let _ = write!(
-                        out,
-                        ",\"half_reactions\":{{\"oxidation\":{},\"reduction\":{}}}",
-                        json_string(&halves.oxidation.ascii()),
-                        json_string(&halves.reduction.ascii())
-                    );
-                }
-            }
-        }
-        Err(error) => {
-            if let Some(line) = line {
-                let _ = write!(out, ",\"line\":{line}");
-            }
-            let _ = write!(
-                out,
-                ",\"error\":{{\"kind\":\"{}\",\"message\":{}",
-                failure::balance(error, input).kind,
-                json_string(&error.to_string())
-            );
-            if let BalanceError::NotUnique { basis } = error {
-                let listed: Vec<String> =
-                    basis.iter().map(|r| json_string(&r.to_string())).collect();
-                let _ = write!(out, ",\"basis\":[{}]", listed.join(","));
-            }
-            out.push('}');
-        }
-    }
-    out.push('}');
     out
 }

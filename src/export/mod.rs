@@ -3,7 +3,9 @@
 //! exact SI values, a comment header naming the reaction, E°, n and the data source.
 //!
 //! Exporters never re-parse text: they work from the [`Quotient`] and the [`CellModel`].
+//! [`balance_json`] writes the JSON lines of balance results.
 
+pub mod balance_json;
 mod code;
 pub mod molality;
 

@@ -29,8 +29,8 @@ mod rules;
 
 pub use ions::{IonTable, IonTableError, KnownIon, LIGANDS_TOML, POLYATOMIC_IONS_TOML};
 pub use redox::{
-    ElementChange, RedoxAnalysis, RedoxError, RedoxKind, SpeciesPin, analyse, analyse_with,
-    changed_elements, changes_one_element, oxidation_number_electrons,
+    ElementChange, RedoxAnalysis, RedoxError, RedoxKind, SpeciesPin, analyse, analyse_prepared,
+    analyse_with, changed_elements, changes_one_element, oxidation_number_electrons,
 };
 
 use crate::elements::Element;
@@ -39,8 +39,8 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
 use std::fmt;
-use std::rc::Rc;
 use std::str::FromStr;
+use std::sync::Arc;
 
 /// Whether an oxidation number follows from the rules and the charge, or is a choice.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
@@ -449,15 +449,16 @@ pub fn oxidation_numbers_with(
 
 /// [`oxidation_numbers_with`] without copying the answer out of the per-thread memo: the
 /// redox analysis reads oxidation numbers of every species of every reaction, and a deep copy
-/// of each (rules with names, sites) cost more than the analysis itself.
-pub(crate) fn oxidation_numbers_shared(
+/// of each (rules with names, sites) cost more than the analysis itself. The answer is shared
+/// ([`Arc`]), so a batch can keep it per species and hand it to [`analyse_prepared`].
+pub fn oxidation_numbers_shared(
     species: &Species,
     options: &Options,
-) -> Result<Rc<SpeciesOxidation>, OxidationError> {
+) -> Result<Arc<SpeciesOxidation>, OxidationError> {
     if !options.pins.is_empty() {
         return IonTable::builtin()?
             .oxidation_numbers(species, options)
-            .map(Rc::new);
+            .map(Arc::new);
     }
     // The answer depends on the formula alone, and batches and tables name the same few
     // species (H2O, H+, OH-, common ions) over and over: remember recent answers per thread.
@@ -467,7 +468,7 @@ pub(crate) fn oxidation_numbers_shared(
         }
         let answer = IonTable::builtin()?
             .oxidation_numbers(species, options)
-            .map(Rc::new);
+            .map(Arc::new);
         let mut memo = memo.borrow_mut();
         if memo.len() >= MEMO_CAPACITY {
             memo.clear();
@@ -480,7 +481,7 @@ pub(crate) fn oxidation_numbers_shared(
 /// How many species' answers [`oxidation_numbers_with`] keeps per thread.
 const MEMO_CAPACITY: usize = 4096;
 
-type Memo = std::collections::HashMap<SpeciesKind, Result<Rc<SpeciesOxidation>, OxidationError>>;
+type Memo = std::collections::HashMap<SpeciesKind, Result<Arc<SpeciesOxidation>, OxidationError>>;
 
 thread_local! {
     static MEMO: std::cell::RefCell<Memo> = std::cell::RefCell::new(Memo::new());

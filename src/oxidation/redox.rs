@@ -18,7 +18,7 @@ use crate::reaction::{Reaction, same_species};
 use num_bigint::BigInt;
 use num_rational::{BigRational, Ratio};
 use num_traits::{Signed, Zero};
-use std::rc::Rc;
+use std::sync::Arc;
 
 /// Atoms of one element going from one oxidation number to another.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -82,8 +82,9 @@ pub struct RedoxAnalysis {
     /// The kind.
     pub kind: RedoxKind,
     /// The oxidation numbers of each species, in the order of the reaction's entries
-    /// (`None` for the electron).
-    pub species: Vec<Option<SpeciesOxidation>>,
+    /// (`None` for the electron), shared with the per-thread memo: a deep copy of each
+    /// (rules with names, sites) cost more than the analysis itself.
+    pub species: Vec<Option<Arc<SpeciesOxidation>>>,
 }
 
 /// Why a reaction could not be analysed.
@@ -150,7 +151,7 @@ pub fn analyse(reaction: &Reaction) -> Result<RedoxAnalysis, RedoxError> {
 fn species_oxidation(
     species: &Species,
     pins: &[SpeciesPin],
-) -> Result<Rc<SpeciesOxidation>, RedoxError> {
+) -> Result<Arc<SpeciesOxidation>, RedoxError> {
     let options = Options {
         pins: pins
             .iter()
@@ -166,33 +167,16 @@ fn species_oxidation(
 
 /// Analyses a balanced reaction or half-reaction, with pins for some of its species.
 pub fn analyse_with(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<RedoxAnalysis, RedoxError> {
-    let shared = analyse_shared(reaction, pins)?;
-    Ok(RedoxAnalysis {
-        oxidized: shared.oxidized,
-        reduced: shared.reduced,
-        n: shared.n,
-        electrons_written: shared.electrons_written,
-        kind: shared.kind,
-        species: shared
-            .species
-            .into_iter()
-            .map(|s| s.map(|s| (*s).clone()))
-            .collect(),
-    })
+    analyse_prepared(reaction, |species| species_oxidation(species, pins))
 }
 
-/// [`RedoxAnalysis`] with the oxidation numbers of each species still shared with the
-/// per-thread memo: callers that want only n need no copy of them.
-struct SharedAnalysis {
-    oxidized: Vec<ElementChange>,
-    reduced: Vec<ElementChange>,
-    n: BigRational,
-    electrons_written: BigRational,
-    kind: RedoxKind,
-    species: Vec<Option<Rc<SpeciesOxidation>>>,
-}
-
-fn analyse_shared(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<SharedAnalysis, RedoxError> {
+/// Analyses a balanced reaction or half-reaction with the oxidation numbers `lookup` gives for
+/// each species (the electron is never asked for). A batch that keeps the answers per species
+/// (from [`oxidation_numbers_shared`](super::oxidation_numbers_shared)) asks no memo twice.
+pub fn analyse_prepared(
+    reaction: &Reaction,
+    mut lookup: impl FnMut(&Species) -> Result<Arc<SpeciesOxidation>, RedoxError>,
+) -> Result<RedoxAnalysis, RedoxError> {
     if reaction.is_empty() {
         return Err(RedoxError::Empty);
     }
@@ -214,7 +198,7 @@ fn analyse_shared(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<SharedAnal
         if entry.species.is_electron() {
             species.push(None);
         } else {
-            species.push(Some(species_oxidation(&entry.species, pins)?));
+            species.push(Some(lookup(&entry.species)?));
         }
     }
 
@@ -257,7 +241,7 @@ fn analyse_shared(reaction: &Reaction, pins: &[SpeciesPin]) -> Result<SharedAnal
         }
         (n, written, kind)
     };
-    Ok(SharedAnalysis {
+    Ok(RedoxAnalysis {
         oxidized,
         reduced,
         n,
@@ -326,6 +310,11 @@ struct SmallRatio(Ratio<i128>);
 const SMALL_LIMIT: i128 = i64::MAX as i128;
 
 impl SmallRatio {
+    /// Both numerators when both values are whole numbers.
+    fn whole_pair(&self, other: &SmallRatio) -> Option<(i128, i128)> {
+        (*self.0.denom() == 1 && *other.0.denom() == 1).then(|| (*self.0.numer(), *other.0.numer()))
+    }
+
     fn checked(value: Ratio<i128>) -> Option<SmallRatio> {
         (value.numer().unsigned_abs() <= SMALL_LIMIT as u128 && *value.denom() <= SMALL_LIMIT)
             .then_some(SmallRatio(value))
@@ -345,14 +334,26 @@ impl Exact for SmallRatio {
     fn from_count(count: u64) -> Option<Self> {
         SmallRatio::checked(Ratio::from_integer(i128::from(count)))
     }
+    // Whole numbers (almost every oxidation number and atom count) skip the i128 gcd of the
+    // general case, which cost more than the rest of the tally: same results, no reduction
+    // needed when both denominators are 1.
     fn plus(&self, other: &Self) -> Option<Self> {
-        SmallRatio::checked(self.0 + other.0)
+        match self.whole_pair(other) {
+            Some((a, b)) => SmallRatio::checked(Ratio::from_integer(a + b)),
+            None => SmallRatio::checked(self.0 + other.0),
+        }
     }
     fn minus(&self, other: &Self) -> Option<Self> {
-        SmallRatio::checked(self.0 - other.0)
+        match self.whole_pair(other) {
+            Some((a, b)) => SmallRatio::checked(Ratio::from_integer(a - b)),
+            None => SmallRatio::checked(self.0 - other.0),
+        }
     }
     fn times(&self, other: &Self) -> Option<Self> {
-        SmallRatio::checked(self.0 * other.0)
+        match self.whole_pair(other) {
+            Some((a, b)) => SmallRatio::checked(Ratio::from_integer(a * b)),
+            None => SmallRatio::checked(self.0 * other.0),
+        }
     }
     fn magnitude(&self) -> Self {
         // In range, so the negation cannot overflow.
@@ -392,18 +393,20 @@ fn into_big<T: Exact>(changes: Vec<Change<T>>) -> Vec<ElementChange> {
         .collect()
 }
 
-/// An element with its atoms on each side: (oxidation number, atoms) before and after.
-type Sides<T> = (Element, Vec<(T, T)>, Vec<(T, T)>);
+/// Atoms of one element in one state on one side: (element's place in order of first
+/// appearance, on the reactant side, oxidation number, atoms).
+type Atoms<T> = (usize, bool, T, T);
 
 /// The oxidised and reduced elements of a balanced reaction, from the oxidation numbers of
 /// its species (`None` for the electron, in the order of the entries). `None` when `T` gives up.
 #[allow(clippy::type_complexity)]
 fn changes<T: Exact>(
     reaction: &Reaction,
-    species: &[Option<Rc<SpeciesOxidation>>],
+    species: &[Option<Arc<SpeciesOxidation>>],
 ) -> Option<(Vec<Change<T>>, Vec<Change<T>>)> {
-    // Per element: (oxidation number, atoms) on each side.
-    let mut sides: Vec<Sides<T>> = Vec::new();
+    // One flat list for all elements and both sides (one allocation, not two per element).
+    let mut elements: Vec<Element> = Vec::new();
+    let mut atoms: Vec<Atoms<T>> = Vec::new();
     for (entry, oxidation) in reaction.entries().iter().zip(species) {
         let Some(oxidation) = oxidation else {
             continue;
@@ -417,34 +420,39 @@ fn changes<T: Exact>(
         let reactant = entry.nu.is_negative();
         let nu_abs = nu.magnitude();
         for element in &oxidation.elements {
-            let index = match sides.iter().position(|(e, _, _)| *e == element.element) {
+            let place = match elements.iter().position(|e| *e == element.element) {
                 Some(i) => i,
                 None => {
-                    sides.push((element.element, Vec::new(), Vec::new()));
-                    sides.len() - 1
+                    elements.push(element.element);
+                    elements.len() - 1
                 }
             };
             for site in &element.sites {
                 let count = T::from_count(site.count)?;
-                let atoms = nu_abs.times(&count)?;
-                let side = if reactant {
-                    &mut sides[index].1
-                } else {
-                    &mut sides[index].2
-                };
-                side.push((T::from_big(&site.oxidation_number)?, atoms));
+                atoms.push((
+                    place,
+                    reactant,
+                    T::from_big(&site.oxidation_number)?,
+                    nu_abs.times(&count)?,
+                ));
             }
         }
     }
+    // Per element, reactants before products, each in order of oxidation number; the sort is
+    // stable, so equal states keep the order of the entries.
+    atoms.sort_by(|a, b| (a.0, !a.1, &a.2).cmp(&(b.0, !b.1, &b.2)));
 
     let mut oxidized: Vec<Change<T>> = Vec::new();
     let mut reduced: Vec<Change<T>> = Vec::new();
-    for (element, before, after) in &mut sides {
-        for (from, to, atoms) in pair_atoms(before, after)? {
+    for run in atoms.chunk_by(|a, b| a.0 == b.0) {
+        let element = elements[run[0].0];
+        let products = run.iter().position(|a| !a.1).unwrap_or(run.len());
+        let (before, after) = run.split_at(products);
+        pair_atoms(before, after, |from, to, atoms| {
             if from == to {
-                continue;
+                return Some(());
             }
-            let electrons = atoms.times(&to.minus(&from)?.magnitude())?;
+            let electrons = atoms.times(&to.minus(from)?.magnitude())?;
             let list = if to > from {
                 &mut oxidized
             } else {
@@ -452,21 +460,22 @@ fn changes<T: Exact>(
             };
             match list
                 .iter_mut()
-                .find(|c| c.element == *element && c.from == from && c.to == to)
+                .find(|c| c.element == element && &c.from == from && &c.to == to)
             {
                 Some(existing) => {
                     existing.atoms = existing.atoms.plus(&atoms)?;
                     existing.electrons = existing.electrons.plus(&electrons)?;
                 }
                 None => list.push(Change {
-                    element: *element,
-                    from,
-                    to,
+                    element,
+                    from: from.clone(),
+                    to: to.clone(),
                     atoms,
                     electrons,
                 }),
             }
-        }
+            Some(())
+        })?;
     }
     Some((oxidized, reduced))
 }
@@ -491,42 +500,42 @@ fn whole_kind(oxidized: &[ElementChange], reduced: &[ElementChange]) -> RedoxKin
     RedoxKind::Redox
 }
 
-/// Pairs atoms of one element across the sides in order of oxidation number:
-/// `(from, to, atoms)` chunks. Both sides hold the same number of atoms (checked before).
-/// `None` when `T` gives up.
-#[allow(clippy::type_complexity)]
-fn pair_atoms<T: Exact>(before: &mut [(T, T)], after: &mut [(T, T)]) -> Option<Vec<(T, T, T)>> {
-    before.sort_by(|a, b| a.0.cmp(&b.0));
-    after.sort_by(|a, b| a.0.cmp(&b.0));
-    let mut chunks = Vec::new();
+/// Pairs atoms of one element across the sides in order of oxidation number (both sorted by
+/// it), giving each `(from, to, atoms)` chunk to `chunk`. Both sides hold the same number of
+/// atoms (checked before). `None` when `T` or `chunk` gives up.
+fn pair_atoms<T: Exact>(
+    before: &[Atoms<T>],
+    after: &[Atoms<T>],
+    mut chunk: impl FnMut(&T, &T, T) -> Option<()>,
+) -> Option<()> {
     let (mut i, mut j) = (0, 0);
-    let mut left_i = before.first().map(|b| b.1.clone()).unwrap_or_else(T::nil);
-    let mut left_j = after.first().map(|a| a.1.clone()).unwrap_or_else(T::nil);
+    let mut left_i = before.first().map(|b| b.3.clone()).unwrap_or_else(T::nil);
+    let mut left_j = after.first().map(|a| a.3.clone()).unwrap_or_else(T::nil);
     while i < before.len() && j < after.len() {
         let take = if left_i < left_j {
             left_i.clone()
         } else {
             left_j.clone()
         };
-        if take.is_above_zero() {
-            chunks.push((before[i].0.clone(), after[j].0.clone(), take.clone()));
-        }
         left_i = left_i.minus(&take)?;
         left_j = left_j.minus(&take)?;
+        if take.is_above_zero() {
+            chunk(&before[i].2, &after[j].2, take)?;
+        }
         if left_i.is_nil() {
             i += 1;
             if let Some(b) = before.get(i) {
-                left_i = b.1.clone();
+                left_i = b.3.clone();
             }
         }
         if left_j.is_nil() {
             j += 1;
             if let Some(a) = after.get(j) {
-                left_j = a.1.clone();
+                left_j = a.3.clone();
             }
         }
     }
-    Some(chunks)
+    Some(())
 }
 
 /// The elements whose oxidation numbers differ between the two sides of an equation, compared
@@ -588,8 +597,7 @@ pub fn changes_one_element(equation: &Equation) -> bool {
 /// The balancer reports it as n of a whole reaction and the data-file checker compares it with
 /// the electrons of each half-reaction.
 pub fn oxidation_number_electrons(reaction: &Reaction) -> Option<BigRational> {
-    // The oxidation numbers of the species are not wanted: the shared analysis copies none.
-    match analyse_shared(reaction, &[]) {
+    match analyse(reaction) {
         Ok(analysis) => Some(analysis.n),
         Err(RedoxError::ElectronMismatch {
             from_oxidation_numbers,

@@ -730,3 +730,88 @@ fn standard_input_is_read_with_a_bound() {
     assert_eq!(output.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&output.stderr).contains("not UTF-8"));
 }
+
+/// A mixed batch: whole redox reactions, half-reactions, repeats (cached species met again),
+/// states that tell species apart, fractional oxidation numbers, a non-unique, an impossible,
+/// a syntax error, an unknown element, a comment and a blank line. Invented as test input.
+const MIXED_BATCH: &str = "MnO4- + Fe2+ -> Mn2+ + Fe3+
+# a comment line
+Cr2O7^2- + Fe2+ -> Cr3+ + Fe3+
+
+MnO4- -> Mn2+
+Fe3O4 + H2 -> Fe + H2O
+H2O(l) -> H2(g) + O2(g)
+H2O -> H2 + O2
+H2 + O2 -> H2O + H2O2
+Cu + H2 -> Zn
+MnO4- + -> Mn2+
+Qq2 -> Qq
+K2Cr2O7 + KBr + H2SO4 -> Cr2(SO4)3 + Br2 + K2SO4 + H2O
+MnO4- + Fe2+ -> Mn2+ + Fe3+
+Cl2 -> Cl- + ClO3-
+";
+
+#[test]
+fn a_batch_writes_what_each_equation_alone_writes() {
+    let output = assert_cmd::Command::new(assert_cmd::cargo::cargo_bin!("couplet"))
+        .args(["balance", "--json", "--medium", "acid", "-"])
+        .write_stdin(MIXED_BATCH)
+        .output()
+        .unwrap();
+    // Some lines cannot be balanced: findings, exit 1.
+    assert_eq!(output.status.code(), Some(1));
+    let batch = String::from_utf8(output.stdout).unwrap();
+    let mut objects = batch.lines();
+    let mut compared = 0;
+    for (index, line) in MIXED_BATCH.lines().enumerate() {
+        if line.is_empty() || line.starts_with('#') {
+            continue;
+        }
+        let mut from_batch: serde_json::Value =
+            serde_json::from_str(objects.next().expect("one object per equation")).unwrap();
+        let (_, alone, _) = run(&["balance", "--json", "--medium", "acid", line]);
+        let alone: serde_json::Value = serde_json::from_str(&alone).unwrap();
+        if from_batch.get("error").is_some() {
+            // Only the batch says which line failed.
+            let number = from_batch.as_object_mut().unwrap().remove("line");
+            assert_eq!(number, Some(serde_json::json!(index + 1)), "{line}");
+        }
+        assert_eq!(from_batch, alone, "{line}");
+        compared += 1;
+    }
+    assert_eq!(objects.next(), None);
+    assert_eq!(compared, 13);
+    // Permanganate takes five electrons per Mn (+7 → +2) from five Fe2+ (common practice,
+    // any general-chemistry text): the first and the repeated line say so alike.
+    let first: serde_json::Value = serde_json::from_str(batch.lines().next().unwrap()).unwrap();
+    assert_eq!(first["electrons"], 5);
+    assert_eq!(batch.lines().next(), batch.lines().nth(11));
+}
+
+#[test]
+fn the_library_batch_equals_fresh_writers_per_equation() {
+    use couplet::balance::{BalanceOptions, Medium, balance_text};
+    use couplet::export::balance_json::{BalanceJson, balance_lines_json};
+    for medium in [Medium::None, Medium::Acid, Medium::Base] {
+        let options = BalanceOptions {
+            medium,
+            ..BalanceOptions::default()
+        };
+        let mut batch = Vec::new();
+        let all_balanced = balance_lines_json(MIXED_BATCH, &options, &mut batch).unwrap();
+        assert!(!all_balanced);
+        let mut one_by_one = Vec::new();
+        for (index, line) in MIXED_BATCH.lines().enumerate() {
+            if line.is_empty() || line.starts_with('#') {
+                continue;
+            }
+            // A new writer each time: nothing kept from earlier equations.
+            let result = balance_text(line, &options);
+            BalanceJson::new().write(&mut one_by_one, line, Some(index + 1), medium, &result);
+        }
+        assert_eq!(
+            String::from_utf8(batch).unwrap(),
+            String::from_utf8(one_by_one).unwrap()
+        );
+    }
+}

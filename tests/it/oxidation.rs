@@ -928,3 +928,21 @@ fn ligand_tables_are_checked_when_read() {
     // Ligands are not ions of their own: the ion list (used for lookups by name) has none.
     assert!(table.ions().iter().all(|i| !i.ligand));
 }
+
+#[test]
+#[allow(clippy::result_large_err)]
+fn prepared_oxidation_numbers_give_the_same_analysis() {
+    // Fe3O4 + 4 H2 -> 3 Fe + 4 H2O: Fe +8/3 → 0 (average, DOMAIN.md §Oxidation numbers), H 0 → +1.
+    use couplet::oxidation::analyse_prepared;
+    use std::sync::Arc;
+    let reaction = Reaction::from_equation(&"Fe3O4 + 4 H2 -> 3 Fe + 4 H2O".parse().unwrap());
+    let mut asked = Vec::new();
+    let prepared = analyse_prepared(&reaction, |species| {
+        asked.push(species.ascii());
+        Ok(Arc::new(oxidation_numbers(species).unwrap()))
+    })
+    .unwrap();
+    assert_eq!(prepared, analyse(&reaction).unwrap());
+    assert_eq!(asked, ["Fe3O4", "H2", "Fe", "H2O"]);
+    assert_eq!(prepared.n, rational("8"));
+}

@@ -1,0 +1,435 @@
+//! The JSON lines of `couplet balance --json`: one object per equation with the balanced form,
+//! both sides, electrons, the caution, the redox analysis and the two half-reactions.
+//!
+//! A batch names the same species over and over (H2O, H+, OH-, e-, the common ions), so what
+//! depends on a species alone (its text, its oxidation numbers, its hazard) is worked out once
+//! per distinct species and kept by [`BalanceJson`]. Objects are written straight into one
+//! reused byte buffer: no JSON tree, no string per field. The redox analysis is made once per
+//! equation and shared by the electrons, the redox fields and the half-reaction split.
+
+use crate::balance::{BalanceError, BalanceOptions, BalancedReaction, Medium, balance_text, split};
+use crate::cell::{caution_of_hazards, species_hazard};
+use crate::notation::Species;
+use crate::oxidation::{
+    ElementChange, OxidationError, RedoxAnalysis, RedoxError, SpeciesOxidation, analyse_prepared,
+    oxidation_numbers_shared,
+};
+use crate::reaction::Reaction;
+use num_bigint::BigInt;
+use num_rational::BigRational;
+use num_traits::{One, Signed, ToPrimitive};
+use std::collections::HashMap;
+use std::hash::{BuildHasherDefault, Hasher};
+use std::io::{self, Write};
+use std::sync::Arc;
+
+/// What a batch keeps per distinct species.
+struct SpeciesFacts {
+    /// Canonical ASCII as a JSON string, quotes and escapes included.
+    json: Box<str>,
+    /// Oxidation numbers (the electron has none).
+    oxidation: Result<Arc<SpeciesOxidation>, OxidationError>,
+    /// The caution's hazard when the species is a reactant, and when it is a product.
+    hazard_as_reactant: Option<&'static str>,
+    hazard_as_product: Option<&'static str>,
+}
+
+impl SpeciesFacts {
+    fn of(species: &Species) -> SpeciesFacts {
+        let json = json_string(&species.ascii());
+        let oxidation = if species.is_electron() {
+            Err(OxidationError::Electron)
+        } else {
+            oxidation_numbers_shared(species, &Default::default())
+        };
+        SpeciesFacts {
+            json: json.into(),
+            oxidation,
+            hazard_as_reactant: species_hazard(species, false),
+            hazard_as_product: species_hazard(species, true),
+        }
+    }
+}
+
+/// Multiply-rotate hashing (the scheme of rustc's FxHasher) for the species keys: the keys
+/// are our own parsed formulas, not adversarial, and SipHash over a formula tree cost as much
+/// as the lookup saved.
+#[derive(Default)]
+struct SpeciesHasher(u64);
+
+impl SpeciesHasher {
+    fn add(&mut self, word: u64) {
+        self.0 = (self.0.rotate_left(5) ^ word).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
+    }
+}
+
+impl Hasher for SpeciesHasher {
+    fn write(&mut self, bytes: &[u8]) {
+        let mut chunks = bytes.chunks_exact(8);
+        for chunk in &mut chunks {
+            self.add(u64::from_le_bytes(chunk.try_into().unwrap_or_default()));
+        }
+        let mut last = [0u8; 8];
+        let rest = chunks.remainder();
+        last[..rest.len()].copy_from_slice(rest);
+        self.add(u64::from_le_bytes(last) ^ rest.len() as u64);
+    }
+    fn write_u8(&mut self, i: u8) {
+        self.add(u64::from(i));
+    }
+    fn write_u32(&mut self, i: u32) {
+        self.add(u64::from(i));
+    }
+    fn write_u64(&mut self, i: u64) {
+        self.add(i);
+    }
+    fn write_usize(&mut self, i: usize) {
+        self.add(i as u64);
+    }
+    fn finish(&self) -> u64 {
+        self.0
+    }
+}
+
+/// How many distinct species a [`BalanceJson`] keeps before it starts afresh (memory stays
+/// bounded on a batch of ever-new species; the answers do not change).
+const SPECIES_CAPACITY: usize = 4096;
+
+/// Writes balance results as JSON objects, one per line, keeping per-species facts across the
+/// results it writes. Output does not depend on what was written before.
+#[derive(Default)]
+pub struct BalanceJson {
+    index: HashMap<Species, usize, BuildHasherDefault<SpeciesHasher>>,
+    facts: Vec<SpeciesFacts>,
+    /// Indices into `facts` of the entries of the reaction being written.
+    entries: Vec<usize>,
+}
+
+impl BalanceJson {
+    /// A writer with nothing kept yet.
+    pub fn new() -> BalanceJson {
+        BalanceJson::default()
+    }
+
+    fn facts_of(&mut self, species: &Species) -> usize {
+        if let Some(&known) = self.index.get(species) {
+            return known;
+        }
+        self.facts.push(SpeciesFacts::of(species));
+        self.index.insert(species.clone(), self.facts.len() - 1);
+        self.facts.len() - 1
+    }
+
+    /// Looks up every entry of `reaction` into `self.entries`, in entry order.
+    fn gather(&mut self, reaction: &Reaction) {
+        self.entries.clear();
+        // Start afresh before, not during, a reaction: its indices must stay valid.
+        if self.facts.len() + reaction.entries().len() > SPECIES_CAPACITY {
+            self.index.clear();
+            self.facts.clear();
+        }
+        for entry in reaction.entries() {
+            let index = self.facts_of(&entry.species);
+            self.entries.push(index);
+        }
+    }
+
+    /// Appends the object for one result and a newline to `out`. `line` is the input line
+    /// number, written for errors in a batch; `medium` is the one the equation was balanced in.
+    pub fn write(
+        &mut self,
+        out: &mut Vec<u8>,
+        input: &str,
+        line: Option<usize>,
+        medium: Medium,
+        result: &Result<BalancedReaction, BalanceError>,
+    ) {
+        out.extend_from_slice(b"{\"input\":");
+        write_json_string(out, input);
+        match result {
+            Ok(balanced) => self.write_balanced(out, medium, balanced),
+            Err(error) => write_error(out, line, error),
+        }
+        out.extend_from_slice(b"}\n");
+    }
+
+    fn write_balanced(&mut self, out: &mut Vec<u8>, medium: Medium, balanced: &BalancedReaction) {
+        let reaction = balanced.reaction();
+        self.gather(reaction);
+        out.extend_from_slice(b",\"medium\":\"");
+        out.extend_from_slice(medium.name().as_bytes());
+        out.extend_from_slice(b"\",\"balanced\":\"");
+        self.write_ascii(out, reaction);
+        out.extend_from_slice(b"\",\"reactants\":");
+        self.write_side(out, reaction, true);
+        out.extend_from_slice(b",\"products\":");
+        self.write_side(out, reaction, false);
+
+        let analysis = self.analysis(reaction);
+        out.extend_from_slice(b",\"electrons\":");
+        if balanced.is_half_reaction() {
+            match balanced.electrons() {
+                Some(n) => write_integer(out, &n),
+                None => out.extend_from_slice(b"null"),
+            }
+        } else {
+            match &analysis {
+                Some(analysis) if analysis.n.is_integer() => write_integer(out, analysis.n.numer()),
+                _ => out.extend_from_slice(b"null"),
+            }
+        }
+
+        let facts = &self.facts;
+        let hazards = reaction
+            .entries()
+            .iter()
+            .zip(&self.entries)
+            .filter_map(|(entry, &index)| {
+                if entry.nu.is_positive() {
+                    facts[index].hazard_as_product
+                } else {
+                    facts[index].hazard_as_reactant
+                }
+            });
+        out.extend_from_slice(b",\"caution\":");
+        match caution_of_hazards(hazards) {
+            Some(caution) => write_json_string(out, &caution),
+            None => out.extend_from_slice(b"null"),
+        }
+
+        let Some(analysis) = analysis else { return };
+        out.extend_from_slice(b",\"redox\":{\"oxidized\":");
+        write_changes(out, &analysis.oxidized);
+        out.extend_from_slice(b",\"reduced\":");
+        write_changes(out, &analysis.reduced);
+        out.extend_from_slice(b",\"n\":");
+        if analysis.n.is_integer() {
+            write_integer(out, analysis.n.numer());
+        } else {
+            out.push(b'"');
+            write_signed(out, &analysis.n);
+            out.push(b'"');
+        }
+        out.extend_from_slice(b",\"kind\":\"");
+        out.extend_from_slice(analysis.kind.name().as_bytes());
+        out.extend_from_slice(b"\"}");
+        if let Some(halves) = split(balanced, &analysis) {
+            out.extend_from_slice(b",\"half_reactions\":{\"oxidation\":\"");
+            self.gather(halves.oxidation.reaction());
+            self.write_ascii(out, halves.oxidation.reaction());
+            out.extend_from_slice(b"\",\"reduction\":\"");
+            self.gather(halves.reduction.reaction());
+            self.write_ascii(out, halves.reduction.reaction());
+            out.extend_from_slice(b"\"}");
+        }
+    }
+
+    /// The redox analysis from the kept oxidation numbers; `None` when a species has none.
+    // The error carries exact values and is made at most once per equation.
+    #[allow(clippy::result_large_err)]
+    fn analysis(&self, reaction: &Reaction) -> Option<RedoxAnalysis> {
+        let entries = reaction.entries();
+        analyse_prepared(reaction, |species| {
+            // The analysis asks about the entries' own species: find which by address.
+            let position = entries
+                .iter()
+                .position(|entry| std::ptr::eq(&entry.species, species));
+            let facts = position.map(|i| &self.facts[self.entries[i]]);
+            match facts.map(|facts| &facts.oxidation) {
+                Some(Ok(oxidation)) => Ok(oxidation.clone()),
+                Some(Err(source)) => Err(RedoxError::Oxidation {
+                    species: species.ascii(),
+                    source: source.clone(),
+                }),
+                None => oxidation_numbers_shared(species, &Default::default()).map_err(|source| {
+                    RedoxError::Oxidation {
+                        species: species.ascii(),
+                        source,
+                    }
+                }),
+            }
+        })
+        .ok()
+    }
+
+    /// The entries on one side with their kept facts, in order. `self.entries` must be
+    /// gathered for `reaction`.
+    fn side<'a>(
+        &'a self,
+        reaction: &'a Reaction,
+        reactants: bool,
+    ) -> impl Iterator<Item = (&'a BigRational, &'a SpeciesFacts)> {
+        reaction
+            .entries()
+            .iter()
+            .zip(&self.entries)
+            .filter(move |(entry, _)| {
+                if reactants {
+                    entry.nu.is_negative()
+                } else {
+                    entry.nu.is_positive()
+                }
+            })
+            .map(|(entry, &index)| (&entry.nu, &self.facts[index]))
+    }
+
+    /// The reaction in canonical ASCII (as [`Reaction::to_text`] writes it with `->`), from
+    /// the kept species texts, JSON-escaped without the quotes.
+    fn write_ascii(&self, out: &mut Vec<u8>, reaction: &Reaction) {
+        for reactants in [true, false] {
+            if !reactants {
+                out.extend_from_slice(b" -> ");
+            }
+            for (i, (nu, facts)) in self.side(reaction, reactants).enumerate() {
+                if i > 0 {
+                    out.extend_from_slice(b" + ");
+                }
+                if !(nu.is_integer() && nu.numer().magnitude().is_one()) {
+                    write_magnitude(out, nu);
+                    out.push(b' ');
+                }
+                // Escaping works character by character, so the escaped pieces joined are the
+                // escaped whole.
+                out.extend_from_slice(&facts.json.as_bytes()[1..facts.json.len() - 1]);
+            }
+        }
+    }
+
+    /// `[{"species":…,"coefficient":…},…]` for one side.
+    fn write_side(&self, out: &mut Vec<u8>, reaction: &Reaction, reactants: bool) {
+        out.push(b'[');
+        for (i, (nu, facts)) in self.side(reaction, reactants).enumerate() {
+            if i > 0 {
+                out.push(b',');
+            }
+            out.extend_from_slice(b"{\"species\":");
+            out.extend_from_slice(facts.json.as_bytes());
+            // Coefficients are JSON integers of any size, straight from their digits.
+            out.extend_from_slice(b",\"coefficient\":");
+            write_magnitude(out, nu);
+            out.push(b'}');
+        }
+        out.push(b']');
+    }
+}
+
+/// The `"line"` and `"error"` fields of a failed equation.
+fn write_error(out: &mut Vec<u8>, line: Option<usize>, error: &BalanceError) {
+    if let Some(line) = line {
+        let _ = write!(out, ",\"line\":{line}");
+    }
+    // A notation error keeps its own kind (`chemistry` too), as the command reports it.
+    let kind = match error {
+        BalanceError::Notation(e) => e.kind.name(),
+        _ => error.kind(),
+    };
+    out.extend_from_slice(b",\"error\":{\"kind\":\"");
+    out.extend_from_slice(kind.as_bytes());
+    out.extend_from_slice(b"\",\"message\":");
+    write_json_string(out, &error.to_string());
+    if let BalanceError::NotUnique { basis } = error {
+        out.extend_from_slice(b",\"basis\":[");
+        for (i, reaction) in basis.iter().enumerate() {
+            if i > 0 {
+                out.push(b',');
+            }
+            write_json_string(out, &reaction.to_string());
+        }
+        out.push(b']');
+    }
+    out.push(b'}');
+}
+
+fn write_changes(out: &mut Vec<u8>, changes: &[ElementChange]) {
+    out.push(b'[');
+    for (i, change) in changes.iter().enumerate() {
+        if i > 0 {
+            out.push(b',');
+        }
+        out.extend_from_slice(b"{\"element\":");
+        write_json_string(out, change.element.symbol());
+        out.extend_from_slice(b",\"from\":\"");
+        write_signed(out, &change.from);
+        out.extend_from_slice(b"\",\"to\":\"");
+        write_signed(out, &change.to);
+        out.extend_from_slice(b"\"}");
+    }
+    out.push(b']');
+}
+
+fn json_string(text: &str) -> String {
+    serde_json::to_string(text).unwrap_or_default()
+}
+
+fn write_json_string(out: &mut Vec<u8>, text: &str) {
+    // Writing into a Vec cannot fail.
+    let _ = serde_json::to_writer(&mut *out, text);
+}
+
+/// Decimal digits of an integer of any size; machine-sized ones without an allocation.
+fn write_integer(out: &mut Vec<u8>, value: &BigInt) {
+    let _ = match value.to_i64() {
+        Some(small) => write!(out, "{small}"),
+        None => write!(out, "{value}"),
+    };
+}
+
+/// |value| as `Display` writes it, without computing |value| as a new number.
+fn write_magnitude(out: &mut Vec<u8>, value: &BigRational) {
+    match value.numer().to_i64() {
+        Some(small) => {
+            let _ = write!(out, "{}", small.unsigned_abs());
+        }
+        None => write_integer(out, &value.numer().abs()),
+    }
+    if !value.is_integer() {
+        out.push(b'/');
+        write_integer(out, value.denom());
+    }
+}
+
+/// A rational as `Display` writes it: `n` or `n/d`.
+fn write_rational(out: &mut Vec<u8>, value: &BigRational) {
+    write_integer(out, value.numer());
+    if !value.is_integer() {
+        out.push(b'/');
+        write_integer(out, value.denom());
+    }
+}
+
+/// An oxidation number as [`crate::oxidation::signed_text`] writes it: `+7`, `-2`, `0`, `+8/3`.
+fn write_signed(out: &mut Vec<u8>, value: &BigRational) {
+    if value.is_positive() {
+        out.push(b'+');
+    }
+    write_rational(out, value);
+}
+
+/// Balances `text` one equation per line (blank lines and `#` comments skipped) and writes one
+/// JSON object per line to `out`, the way `couplet balance --json -` does. Returns whether
+/// every equation balanced.
+pub fn balance_lines_json(
+    text: &str,
+    options: &BalanceOptions,
+    out: &mut dyn Write,
+) -> io::Result<bool> {
+    let mut writer = BalanceJson::new();
+    let mut buffer = Vec::with_capacity(1 << 16);
+    let mut all_balanced = true;
+    for (index, line) in text.lines().enumerate() {
+        let line = line.trim();
+        if line.is_empty() || line.starts_with('#') {
+            continue;
+        }
+        let result = balance_text(line, options);
+        all_balanced &= result.is_ok();
+        writer.write(&mut buffer, line, Some(index + 1), options.medium, &result);
+        // Whole objects only, a block at a time: one write per block, not per line.
+        if buffer.len() >= 1 << 15 {
+            out.write_all(&buffer)?;
+            buffer.clear();
+        }
+    }
+    out.write_all(&buffer)?;
+    Ok(all_balanced)
+}
