@@ -455,17 +455,22 @@ pub fn balance_counting(
     (result, meter.used())
 }
 
+/// The user's species with their sides (−1 reactants, +1 products), in order.
+fn written_species(equation: &Equation) -> Vec<(&Species, i8)> {
+    equation
+        .reactants
+        .iter()
+        .map(|t| (&t.species, -1))
+        .chain(equation.products.iter().map(|t| (&t.species, 1)))
+        .collect()
+}
+
 fn balance_metered(
     equation: &Equation,
     options: &BalanceOptions,
     meter: &mut WorkMeter,
 ) -> Result<BalancedReaction, BalanceError> {
-    let written: Vec<(&Species, i8)> = equation
-        .reactants
-        .iter()
-        .map(|t| (&t.species, -1))
-        .chain(equation.products.iter().map(|t| (&t.species, 1)))
-        .collect();
+    let written = written_species(equation);
     for (i, (species, _)) in written.iter().enumerate() {
         if written[..i].iter().any(|(s, _)| same_species(s, species)) {
             return Err(BalanceError::Repeated {
@@ -765,21 +770,167 @@ fn primitive(vector: Vec<BigInt>) -> Vec<BigInt> {
     vector.into_iter().map(|x| x / &content).collect()
 }
 
+/// Candidates `a·vᵢ + b·vⱼ` tried for each pair by [`prefer_written_sides`]: `1 ≤ a ≤ MAX_A`,
+/// `|b| ≤ MAX_B`.
+const MAX_A: i64 = 4;
+const MAX_B: i64 = 8;
+const CANDIDATES_PER_PAIR: u64 = (MAX_A * (2 * MAX_B + 1)) as u64;
+
+/// The largest magnitude of a primitive vector, ordered by value: `Small` holds every value that
+/// fits `u128`, `Big` only larger ones, so the derived order is the order of the values.
+#[derive(Clone, Debug, PartialEq, Eq, PartialOrd, Ord)]
+enum Magnitude {
+    Small(u128),
+    Big(BigInt),
+}
+
+impl Magnitude {
+    fn of(vector: &[BigInt]) -> Magnitude {
+        let largest = max_magnitude(vector);
+        match u128::try_from(&largest) {
+            Ok(small) => Magnitude::Small(small),
+            Err(_) => Magnitude::Big(largest),
+        }
+    }
+}
+
+/// How [`prefer_written_sides`] ranks a candidate: the side score, then the smaller largest
+/// coefficient.
+type Key = (i64, std::cmp::Reverse<Magnitude>);
+
+/// A basis vector in `i128` when every entry is below 2¹²⁰ in magnitude, so that
+/// `a·x + b·y` with `|a|, |b| ≤ 8` cannot overflow.
+fn fixed_width(vector: &[BigInt]) -> Option<Vec<i128>> {
+    vector
+        .iter()
+        .map(|x| (x.bits() < 120).then(|| i128::try_from(x).ok()).flatten())
+        .collect()
+}
+
+/// The key of `a·x + b·y` after [`orient`] and [`primitive`], computed in fixed width without
+/// building the vector. The orientation is read from the signs alone, and the largest
+/// magnitude (which needs the content) only when the side score can still win against
+/// `best`: most candidates lose on the score.
+fn fixed_width_key(
+    x: &[i128],
+    y: &[i128],
+    a: i128,
+    b: i128,
+    sides: &[i8],
+    best: &Key,
+) -> Option<Key> {
+    let (mut same, mut different) = (0i64, 0i64);
+    let mut first: Option<bool> = None;
+    for ((&x, &y), &side) in x.iter().zip(y).zip(sides) {
+        let value = a * x + b * y;
+        if side == 0 || value == 0 {
+            continue;
+        }
+        let agrees = (value > 0) == (side > 0);
+        if agrees {
+            same += 1;
+        } else {
+            different += 1;
+        }
+        first.get_or_insert(agrees);
+    }
+    // As in `orient`: flipped when more species sit on the wrong side, or on a tie when the
+    // first one does; flipping swaps the two counts.
+    let flipped = same < different || (same == different && first == Some(false));
+    let (same, different) = if flipped {
+        (different, same)
+    } else {
+        (same, different)
+    };
+    let score = same - 2 * different;
+    if score < best.0 {
+        return None;
+    }
+    let (mut largest, mut content) = (0u128, 0u128);
+    for (&x, &y) in x.iter().zip(y) {
+        let magnitude = (a * x + b * y).unsigned_abs();
+        largest = largest.max(magnitude);
+        content = num_integer::Integer::gcd(&content, &magnitude);
+    }
+    let largest = largest.checked_div(content).unwrap_or(0);
+    Some((score, std::cmp::Reverse(Magnitude::Small(largest))))
+}
+
+/// `a·x + b·y`, oriented and primitive, as big integers (the winner of a fixed-width search).
+fn fixed_width_combination(x: &[i128], y: &[i128], a: i128, b: i128, sides: &[i8]) -> Vec<BigInt> {
+    let mut vector: Vec<BigInt> = x
+        .iter()
+        .zip(y)
+        .map(|(&x, &y)| BigInt::from(a * x + b * y))
+        .collect();
+    orient(&mut vector, sides);
+    primitive(vector)
+}
+
 /// Rewrites a null-space basis so that each vector keeps as many user species on their written
 /// side as small combinations `a·vᵢ + b·vⱼ` (a ≠ 0, so the span is unchanged) allow: a chemist
 /// reads "these reactions, in any positive mix" far more easily than vectors with species
 /// thrown across the arrow. The rewriting is cosmetic, so a spent meter ends it early (the
 /// basis stays a basis of the same family) instead of failing the balance.
+///
+/// Candidates are ranked by [`Key`], in the order `j`, `a`, `b`, the first best one kept.
+/// When both vectors fit fixed width ([`fixed_width`]) a candidate is scored on the signs of
+/// its entries without being built, and only each row's winner is made into big integers;
+/// otherwise every candidate is built in big integers. Both give the same ranking.
 fn prefer_written_sides(basis: &mut [Vec<BigInt>], sides: &[i8], meter: &mut WorkMeter) {
-    const MAX_A: i64 = 4;
-    const MAX_B: i64 = 8;
+    prefer_written_sides_in(basis, sides, meter, Width::FixedWhenItFits)
+}
+
+/// Whether [`prefer_written_sides`] may score in fixed width (the tests compare both).
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Width {
+    FixedWhenItFits,
+    #[cfg(test)]
+    BigOnly,
+}
+
+fn prefer_written_sides_in(
+    basis: &mut [Vec<BigInt>],
+    sides: &[i8],
+    meter: &mut WorkMeter,
+    width: Width,
+) {
+    let mirror = |v: &Vec<BigInt>| match width {
+        Width::FixedWhenItFits => fixed_width(v),
+        #[cfg(test)]
+        Width::BigOnly => None,
+    };
+    let mut fixed: Vec<Option<Vec<i128>>> = basis.iter().map(mirror).collect();
     for i in 0..basis.len() {
-        let mut best = basis[i].clone();
-        let mut best_key = (
-            side_score(&best, sides),
-            std::cmp::Reverse(max_magnitude(&best)),
+        let mut best_key: Key = (
+            side_score(&basis[i], sides),
+            std::cmp::Reverse(Magnitude::of(&basis[i])),
         );
+        let mut best: Option<Vec<BigInt>> = None;
         for j in (0..basis.len()).filter(|&j| j != i) {
+            if let (Some(x), Some(y)) = (&fixed[i], &fixed[j]) {
+                // Two products and a sum per entry and candidate.
+                let per_candidate = 3 * x.len() as u64;
+                if meter.charge(per_candidate * CANDIDATES_PER_PAIR).is_err() {
+                    break;
+                }
+                let mut winner = None;
+                for a in 1..=MAX_A as i128 {
+                    for b in -MAX_B as i128..=MAX_B as i128 {
+                        match fixed_width_key(x, y, a, b, sides, &best_key) {
+                            Some(key) if key > best_key => {
+                                best_key = key;
+                                winner = Some((a, b));
+                            }
+                            _ => {}
+                        }
+                    }
+                }
+                if let Some((a, b)) = winner {
+                    best = Some(fixed_width_combination(x, y, a, b, sides));
+                }
+                continue;
+            }
             // Each candidate: a combination, an orientation, and a gcd and a division over the
             // vector (quadratic in the words of each entry, plus an allocation per entry).
             let per_candidate: u64 = basis[i]
@@ -790,12 +941,8 @@ fn prefer_written_sides(basis: &mut [Vec<BigInt>], sides: &[i8], meter: &mut Wor
                     8 * words * words
                 })
                 .sum();
-            if meter
-                .charge(per_candidate * (MAX_A * (2 * MAX_B + 1)) as u64)
-                .is_err()
-            {
-                basis[i] = best;
-                return;
+            if meter.charge(per_candidate * CANDIDATES_PER_PAIR).is_err() {
+                break;
             }
             for a in 1..=MAX_A {
                 for b in -MAX_B..=MAX_B {
@@ -808,16 +955,22 @@ fn prefer_written_sides(basis: &mut [Vec<BigInt>], sides: &[i8], meter: &mut Wor
                     let candidate = primitive(candidate);
                     let key = (
                         side_score(&candidate, sides),
-                        std::cmp::Reverse(max_magnitude(&candidate)),
+                        std::cmp::Reverse(Magnitude::of(&candidate)),
                     );
                     if key > best_key {
-                        best = candidate;
+                        best = Some(candidate);
                         best_key = key;
                     }
                 }
             }
         }
-        basis[i] = best;
+        if let Some(best) = best {
+            fixed[i] = mirror(&best);
+            basis[i] = best;
+        }
+        if meter.used() > meter.limit() {
+            return;
+        }
     }
 }
 
@@ -899,4 +1052,82 @@ fn self_check(reaction: &Reaction, written: &[(&Species, i8)]) -> Result<(), Bal
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The null space of a written equation as `solve` hands it to [`prefer_written_sides`]
+    /// (oriented), with the sides of its columns.
+    fn oriented_basis(text: &str) -> (Vec<Vec<BigInt>>, Vec<i8>) {
+        let equation = parse_equation(text).unwrap();
+        let written = written_species(&equation);
+        let columns = columns(&written, Medium::None, false);
+        let sides: Vec<i8> = columns.iter().map(|c| c.side).collect();
+        let (matrix, _) = conservation_matrix(&columns);
+        let mut basis = RowEchelon::new(&matrix).null_space();
+        for vector in basis.iter_mut() {
+            orient(vector, &sides);
+        }
+        (basis, sides)
+    }
+
+    #[test]
+    fn fixed_width_scoring_chooses_what_big_integers_choose() {
+        // m alkanes burned together (a family of dimension m), corpus nonunique-16, and a
+        // family with entries past 2^120, where only the big-integer scoring applies.
+        let mut texts: Vec<String> = (2..=7)
+            .map(|m| {
+                let fuels: Vec<String> = (1..=m).map(|n| format!("C{n}H{}", 2 * n + 2)).collect();
+                format!("{} + O2 -> CO2 + H2O", fuels.join(" + "))
+            })
+            .collect();
+        texts.push("C + O2 + H2 -> CO + CO2 + H2O".to_owned());
+        texts.push("Fe + O2 + Fe2O3 -> FeO + Fe3O4".to_owned());
+        for text in &texts {
+            let (basis, sides) = oriented_basis(text);
+            assert!(basis.len() >= 2, "{text}");
+            let mut fixed = basis.clone();
+            let mut big = basis.clone();
+            let (mut fixed_meter, mut big_meter) =
+                (WorkMeter::new(u64::MAX), WorkMeter::new(u64::MAX));
+            prefer_written_sides_in(&mut fixed, &sides, &mut fixed_meter, Width::FixedWhenItFits);
+            prefer_written_sides_in(&mut big, &sides, &mut big_meter, Width::BigOnly);
+            assert_eq!(fixed, big, "{text}");
+            assert!(fixed_meter.used() < big_meter.used(), "{text}");
+        }
+        // Entries of 2^125 leave the fixed width; the answer is the big-integer one.
+        let huge = BigInt::from(1) << 125usize;
+        let basis = vec![
+            vec![
+                huge.clone(),
+                BigInt::from(-3),
+                BigInt::from(1),
+                BigInt::from(0),
+            ],
+            vec![
+                BigInt::from(2),
+                BigInt::from(5),
+                BigInt::from(0),
+                BigInt::from(1),
+            ],
+        ];
+        assert!(fixed_width(&basis[0]).is_none());
+        let sides = [-1, -1, 1, 1];
+        let (mut a, mut b) = (basis.clone(), basis);
+        prefer_written_sides_in(
+            &mut a,
+            &sides,
+            &mut WorkMeter::new(u64::MAX),
+            Width::FixedWhenItFits,
+        );
+        prefer_written_sides_in(
+            &mut b,
+            &sides,
+            &mut WorkMeter::new(u64::MAX),
+            Width::BigOnly,
+        );
+        assert_eq!(a, b);
+    }
 }
