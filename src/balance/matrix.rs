@@ -398,13 +398,24 @@ impl RowEchelon {
         matrix: &IntegerMatrix,
         meter: &mut WorkMeter,
     ) -> Result<RowEchelon, WorkLimitReached> {
+        match RowEchelon::machine_within(matrix, meter)? {
+            Ok(done) => Ok(done),
+            Err(overflowed) => RowEchelon::big_from(&mut overflowed.widen(), meter),
+        }
+    }
+
+    /// The elimination in machine integers, or its state at the row where `i128` overflowed.
+    fn machine_within(
+        matrix: &IntegerMatrix,
+        meter: &mut WorkMeter,
+    ) -> Result<Result<RowEchelon, Elimination<i128>>, WorkLimitReached> {
         let limit = |stop| match stop {
             Stop::Limit(reached) => Err(reached),
             Stop::Overflow => Ok(()),
         };
         let mut wide = match Elimination::<i64>::start(matrix) {
             Some(mut narrow) => match narrow.run(meter) {
-                Ok(()) => return Ok(RowEchelon::machine(narrow.widen())),
+                Ok(()) => return Ok(Ok(RowEchelon::machine(narrow.widen()))),
                 Err(stop) => {
                     limit(stop)?;
                     narrow.widen::<i128>()
@@ -413,11 +424,10 @@ impl RowEchelon {
             None => Elimination::<i128>::start(matrix).expect("the matrix holds i128 entries"),
         };
         match wide.run(meter) {
-            Ok(()) => Ok(RowEchelon::machine(wide)),
+            Ok(()) => Ok(Ok(RowEchelon::machine(wide))),
             Err(stop) => {
                 limit(stop)?;
-                let mut big = wide.widen::<BigInt>();
-                RowEchelon::big_from(&mut big, meter)
+                Ok(Err(wide))
             }
         }
     }
@@ -605,6 +615,35 @@ fn null_vector_big(
         }
     }
     primitive_row(&vector)
+}
+
+/// An integer basis of the null space of `matrix`, the same as
+/// `RowEchelon::new_within(matrix, meter)?.null_space_within(meter)`. When the minors overflow
+/// `i128` and the null space is one line of a full-row-rank matrix, the line comes from
+/// elimination modulo word-sized primes ([`super::modular`]) instead of big integers.
+pub fn null_space_within(
+    matrix: &IntegerMatrix,
+    meter: &mut WorkMeter,
+) -> Result<Vec<Vec<BigInt>>, WorkLimitReached> {
+    // When Hadamard's bound already says the minors may pass i128, the machine-integer
+    // elimination would most likely be work thrown away: the modular path goes first.
+    let modular_first = super::modular::hadamard_bits(matrix).is_some_and(|bits| bits > 126);
+    if modular_first {
+        if let Some(vector) = super::modular::one_dimensional_null_space(matrix, meter)? {
+            return Ok(vec![vector]);
+        }
+    }
+    match RowEchelon::machine_within(matrix, meter)? {
+        Ok(echelon) => echelon.null_space_within(meter),
+        Err(overflowed) => {
+            if !modular_first {
+                if let Some(vector) = super::modular::one_dimensional_null_space(matrix, meter)? {
+                    return Ok(vec![vector]);
+                }
+            }
+            RowEchelon::big_from(&mut overflowed.widen(), meter)?.null_space_within(meter)
+        }
+    }
 }
 
 /// For every row `r`, an integer basis of the null space of `matrix` without row `r`, from one
