@@ -41,6 +41,7 @@
 
 mod halves;
 pub mod matrix;
+mod modular;
 
 pub use halves::{HalfReactions, split};
 
@@ -50,7 +51,7 @@ use crate::notation::{
     parse_species, render_caret,
 };
 use crate::reaction::{Reaction, same_species};
-use matrix::{IntegerMatrix, RowEchelon, WorkLimitReached, WorkMeter};
+use matrix::{IntegerMatrix, WorkLimitReached, WorkMeter};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
@@ -798,12 +799,12 @@ impl Magnitude {
 /// coefficient.
 type Key = (i64, std::cmp::Reverse<Magnitude>);
 
-/// A basis vector in `i128` when every entry is below 2¹²⁰ in magnitude, so that
-/// `a·x + b·y` with `|a|, |b| ≤ 8` cannot overflow.
-fn fixed_width(vector: &[BigInt]) -> Option<Vec<i128>> {
+/// A basis vector in `i64` when every entry is below 2⁵⁸ in magnitude, so that
+/// `a·x + b·y` with `|a| ≤ 4`, `|b| ≤ 8` cannot overflow.
+fn fixed_width(vector: &[BigInt]) -> Option<Vec<i64>> {
     vector
         .iter()
-        .map(|x| (x.bits() < 120).then(|| i128::try_from(x).ok()).flatten())
+        .map(|x| (x.bits() < 58).then(|| i64::try_from(x).ok()).flatten())
         .collect()
 }
 
@@ -811,14 +812,7 @@ fn fixed_width(vector: &[BigInt]) -> Option<Vec<i128>> {
 /// building the vector. The orientation is read from the signs alone, and the largest
 /// magnitude (which needs the content) only when the side score can still win against
 /// `best`: most candidates lose on the score.
-fn fixed_width_key(
-    x: &[i128],
-    y: &[i128],
-    a: i128,
-    b: i128,
-    sides: &[i8],
-    best: &Key,
-) -> Option<Key> {
+fn fixed_width_key(x: &[i64], y: &[i64], a: i64, b: i64, sides: &[i8], best: &Key) -> Option<Key> {
     let (mut same, mut different) = (0i64, 0i64);
     let mut first: Option<bool> = None;
     for ((&x, &y), &side) in x.iter().zip(y).zip(sides) {
@@ -846,18 +840,24 @@ fn fixed_width_key(
     if score < best.0 {
         return None;
     }
-    let (mut largest, mut content) = (0u128, 0u128);
+    let (mut largest, mut content) = (0u64, 0u64);
     for (&x, &y) in x.iter().zip(y) {
         let magnitude = (a * x + b * y).unsigned_abs();
         largest = largest.max(magnitude);
-        content = num_integer::Integer::gcd(&content, &magnitude);
+        // Once the content is 1 it stays 1: only the largest entry is still needed.
+        if content != 1 {
+            content = num_integer::Integer::gcd(&content, &magnitude);
+        }
     }
     let largest = largest.checked_div(content).unwrap_or(0);
-    Some((score, std::cmp::Reverse(Magnitude::Small(largest))))
+    Some((
+        score,
+        std::cmp::Reverse(Magnitude::Small(u128::from(largest))),
+    ))
 }
 
 /// `a·x + b·y`, oriented and primitive, as big integers (the winner of a fixed-width search).
-fn fixed_width_combination(x: &[i128], y: &[i128], a: i128, b: i128, sides: &[i8]) -> Vec<BigInt> {
+fn fixed_width_combination(x: &[i64], y: &[i64], a: i64, b: i64, sides: &[i8]) -> Vec<BigInt> {
     let mut vector: Vec<BigInt> = x
         .iter()
         .zip(y)
@@ -900,7 +900,7 @@ fn prefer_written_sides_in(
         #[cfg(test)]
         Width::BigOnly => None,
     };
-    let mut fixed: Vec<Option<Vec<i128>>> = basis.iter().map(mirror).collect();
+    let mut fixed: Vec<Option<Vec<i64>>> = basis.iter().map(mirror).collect();
     for i in 0..basis.len() {
         let mut best_key: Key = (
             side_score(&basis[i], sides),
@@ -915,8 +915,8 @@ fn prefer_written_sides_in(
                     break;
                 }
                 let mut winner = None;
-                for a in 1..=MAX_A as i128 {
-                    for b in -MAX_B as i128..=MAX_B as i128 {
+                for a in 1..=MAX_A {
+                    for b in -MAX_B..=MAX_B {
                         match fixed_width_key(x, y, a, b, sides, &best_key) {
                             Some(key) if key > best_key => {
                                 best_key = key;
@@ -987,8 +987,7 @@ fn solve(
     let columns = columns(written, medium, add_electrons);
     let sides: Vec<i8> = columns.iter().map(|c| c.side).collect();
     let (matrix, rows) = conservation_matrix(&columns);
-    let echelon = RowEchelon::new_within(&matrix, meter)?;
-    let mut basis = echelon.null_space_within(meter)?;
+    let mut basis = matrix::null_space_within(&matrix, meter)?;
     let never_taking_part: Vec<Species> = columns
         .iter()
         .enumerate()
@@ -1042,21 +1041,88 @@ fn solve(
 /// vector is primitive, and the tests check it).
 fn self_check(reaction: &Reaction, written: &[(&Species, i8)]) -> Result<(), BalanceError> {
     let internal = || Err(BalanceError::Internal(reaction.to_string()));
-    if !reaction.imbalance().is_balanced() {
+    if !conserves(reaction) {
         return internal();
     }
     for &(species, side) in written {
-        let nu = reaction.nu(species);
-        if sign(nu.numer()) != side || !nu.is_integer() {
+        let Some(entry) = reaction
+            .entries()
+            .iter()
+            .find(|e| same_species(&e.species, species))
+        else {
+            return internal();
+        };
+        if sign(entry.nu.numer()) != side || !entry.nu.is_integer() {
             return internal();
         }
     }
     Ok(())
 }
 
+/// Whether every element and the charge are conserved, recounted from the species'
+/// compositions and the reaction's coefficients alone. Whole coefficients of whole-number
+/// formulas are summed in `i128` while no sum overflows, then in big integers (a balanced
+/// reaction's coefficients can exceed any machine word); anything else takes the rational
+/// recount of [`Reaction::imbalance`]. Integers need no normalising at each step, which is
+/// what makes the rational recount slow for large coefficients.
+fn conserves(reaction: &Reaction) -> bool {
+    let entries = reaction.entries();
+    let integral = entries
+        .iter()
+        .all(|e| e.nu.is_integer() && e.species.composition.is_integral());
+    if !integral {
+        return reaction.imbalance().is_balanced();
+    }
+    if let Some(balanced) = conserves_in_i128(reaction) {
+        return balanced;
+    }
+    let mut totals: Vec<(Option<Element>, BigInt)> = vec![(None, BigInt::zero())];
+    for entry in entries {
+        let nu = entry.nu.numer();
+        totals[0].1 += nu * entry.species.charge();
+        for &(element, count) in entry.species.composition.counts() {
+            let change = nu * count;
+            match totals.iter_mut().find(|(e, _)| *e == Some(element)) {
+                Some((_, total)) => *total += change,
+                None => totals.push((Some(element), change)),
+            }
+        }
+    }
+    totals.iter().all(|(_, total)| total.is_zero())
+}
+
+/// The recount of [`conserves`] in `i128` for whole coefficients; `None` when a coefficient
+/// or a sum does not fit. Up to 32 elements are counted on the stack.
+fn conserves_in_i128(reaction: &Reaction) -> Option<bool> {
+    const STACK: usize = 32;
+    let mut elements = [None::<Element>; STACK];
+    let mut totals = [0i128; STACK];
+    let mut used = 0;
+    let mut charge: i128 = 0;
+    for entry in reaction.entries() {
+        let nu = i128::try_from(entry.nu.numer()).ok()?;
+        charge = charge.checked_add(nu.checked_mul(i128::from(entry.species.charge()))?)?;
+        for &(element, count) in entry.species.composition.counts() {
+            let change = nu.checked_mul(i128::from(count))?;
+            let slot = match elements[..used].iter().position(|e| *e == Some(element)) {
+                Some(slot) => slot,
+                None if used < STACK => {
+                    elements[used] = Some(element);
+                    used += 1;
+                    used - 1
+                }
+                None => return None,
+            };
+            totals[slot] = totals[slot].checked_add(change)?;
+        }
+    }
+    Some(charge == 0 && totals[..used].iter().all(|&t| t == 0))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+    use matrix::RowEchelon;
 
     /// The null space of a written equation as `solve` hands it to [`prefer_written_sides`]
     /// (oriented), with the sides of its columns.
@@ -1075,8 +1141,8 @@ mod tests {
 
     #[test]
     fn fixed_width_scoring_chooses_what_big_integers_choose() {
-        // m alkanes burned together (a family of dimension m), corpus nonunique-16, and a
-        // family with entries past 2^120, where only the big-integer scoring applies.
+        // m alkanes burned together (a family of dimension m), corpus nonunique-16 and the
+        // iron oxides; then a basis with entries past 2^58, where only big integers apply.
         let mut texts: Vec<String> = (2..=7)
             .map(|m| {
                 let fuels: Vec<String> = (1..=m).map(|n| format!("C{n}H{}", 2 * n + 2)).collect();
@@ -1097,7 +1163,7 @@ mod tests {
             assert_eq!(fixed, big, "{text}");
             assert!(fixed_meter.used() < big_meter.used(), "{text}");
         }
-        // Entries of 2^125 leave the fixed width; the answer is the big-integer one.
+        // Entries of 2^125 (past 2^58) leave the fixed width; the answer is the big-integer one.
         let huge = BigInt::from(1) << 125usize;
         let basis = vec![
             vec![
