@@ -5,7 +5,8 @@
 //!
 //! `cargo bench --bench balance -- --sympy-families` skips criterion and prints, for every
 //! family member, its text and couplet's time per balance; `tests/sympy_diff.py --families`
-//! runs it and times sympy on the same equations.
+//! runs it and times sympy on the same equations. `-- --corpus-spread` times every corpus entry
+//! alone and prints the median and the slowest.
 
 use couplet::balance::matrix::{IntegerMatrix, RowEchelon};
 use couplet::balance::{BalanceError, BalanceOptions, ElectronRule, Medium, balance, balance_text};
@@ -276,10 +277,12 @@ fn corpus_and_families(c: &mut Criterion) {
         ("hardest", timed[timed.len() - 1]),
     ] {
         let (id, text, options) = &entries[i];
-        group.bench_function(
-            format!("corpus {label} entry ({id}), text to result"),
-            |b| b.iter(|| black_box(balance_corpus_entry(black_box(text), options))),
-        );
+        // The entry is named outside the benchmark name, which must stay the same from run to
+        // run for criterion to compare runs.
+        eprintln!("corpus {label} entry: {id} ({text})");
+        group.bench_function(format!("corpus {label} entry, text to result"), |b| {
+            b.iter(|| black_box(balance_corpus_entry(black_box(text), options)))
+        });
     }
     group.throughput(Throughput::Elements(entries.len() as u64));
     group.bench_function("corpus, all 98 entries, text to result", |b| {
@@ -314,9 +317,40 @@ fn print_families() {
 
 criterion_group!(benches, balancing, corpus_and_families);
 
+/// The `--corpus-spread` mode: every corpus entry timed alone (text to result), then the
+/// median and the slowest, with their ids.
+fn print_corpus_spread() {
+    let entries = corpus();
+    let mut timed: Vec<(Duration, &str)> = entries
+        .iter()
+        .map(|(id, text, options)| {
+            let time = time_per_call(Duration::from_millis(100), || {
+                black_box(balance_corpus_entry(black_box(text), options));
+            });
+            (time, id.as_str())
+        })
+        .collect();
+    timed.sort();
+    let (median, median_id) = timed[timed.len() / 2];
+    let (slowest, slowest_id) = timed[timed.len() - 1];
+    println!(
+        "corpus of {}: median {:.2} us ({median_id}), slowest {:.2} us ({slowest_id})",
+        timed.len(),
+        median.as_secs_f64() * 1e6,
+        slowest.as_secs_f64() * 1e6
+    );
+    for (time, id) in timed.iter().rev().take(12) {
+        println!("  {id}: {:.2} us", time.as_secs_f64() * 1e6);
+    }
+}
+
 fn main() {
     if std::env::args().any(|a| a == "--sympy-families") {
         print_families();
+        return;
+    }
+    if std::env::args().any(|a| a == "--corpus-spread") {
+        print_corpus_spread();
         return;
     }
     benches();
