@@ -26,9 +26,9 @@
 //! Exact arithmetic on hostile input (dozens of species with six-digit subscripts) can take
 //! minutes. Every balance is metered ([`matrix::WorkMeter`]; one unit is about one 64-bit
 //! multiply) and stops with [`BalanceError::Limit`] (kind `limit`) past
-//! [`BalanceOptions::work_limit`], by default [`DEFAULT_WORK_LIMIT`]. The hardest published
-//! equation of the test corpus uses under a thousand units; the default bound is reached in
-//! well under a second.
+//! [`BalanceOptions::work_limit`], by default [`DEFAULT_WORK_LIMIT`]. The published equations
+//! of the test corpus with one answer use under two thousand units (the non-unique ones under
+//! ten thousand); the default bound is reached in well under a second.
 //!
 //! ```
 //! use couplet::balance::{BalanceOptions, Medium, balance};
@@ -146,9 +146,10 @@ pub struct BalanceOptions {
     pub explain_impossible: bool,
 }
 
-/// The default [`BalanceOptions::work_limit`]: 4 million units, about 0.15 s on one core of
-/// the project's build machine (DEVELOPERS.md has the measurement). The hardest equation of
-/// the published test corpus needs under a thousand.
+/// The default [`BalanceOptions::work_limit`]: 4 million units, about 0.04 s on one core of
+/// the project's build machine with the fraction-free elimination (DEVELOPERS.md has the
+/// measurement). The published test corpus needs under two thousand per equation with one
+/// answer.
 pub const DEFAULT_WORK_LIMIT: u64 = 4_000_000;
 
 impl Default for BalanceOptions {
