@@ -1,11 +1,21 @@
-//! Balancing speed: a typical ionic redox equation, the hardest equation of the published
-//! corpus, and batch throughput over the corpus skeletons (parsing included, as the command
-//! does it). Set-up (reading the texts) stays outside the timed part.
+//! Balancing speed: a typical ionic redox equation, the published corpus (its median and its
+//! slowest entry, text to result), batch throughput, the family of m alkanes burned together
+//! (null space of dimension m) and random dense equations of k species. Set-up (reading the
+//! texts, generating the families) stays outside the timed part.
+//!
+//! `cargo bench --bench balance -- --sympy-families` skips criterion and prints, for every
+//! family member, its text and couplet's time per balance; `tests/sympy_diff.py --families`
+//! runs it and times sympy on the same equations. `-- --corpus-spread` times every corpus entry
+//! alone and prints the median and the slowest.
 
-use couplet::balance::{BalanceOptions, ElectronRule, Medium, balance, balance_text};
-use couplet::notation::parse_equation;
-use criterion::{Criterion, Throughput, criterion_group, criterion_main};
+use couplet::balance::matrix::{IntegerMatrix, RowEchelon};
+use couplet::balance::{BalanceError, BalanceOptions, ElectronRule, Medium, balance, balance_text};
+use couplet::notation::{Equation, parse_equation};
+use criterion::{Criterion, Throughput, criterion_group};
+use num_traits::{Signed, Zero};
+use serde_json::Value;
 use std::hint::black_box;
+use std::time::{Duration, Instant};
 
 /// Corpus redox-45 (permanganate and iron(II) in acid).
 const TYPICAL: &str = "MnO4- + Fe2+ -> Mn2+ + Fe3+";
@@ -90,5 +100,259 @@ fn balancing(c: &mut Criterion) {
     group.finish();
 }
 
-criterion_group!(benches, balancing);
-criterion_main!(benches);
+/// The published corpus (tests/data/balance_corpus.json): text, medium and whether e- may be
+/// added, with the options the corpus test uses.
+fn corpus() -> Vec<(String, String, BalanceOptions)> {
+    let corpus: Vec<Value> =
+        serde_json::from_str(include_str!("../tests/data/balance_corpus.json")).unwrap();
+    corpus
+        .iter()
+        .map(|entry| {
+            let options = BalanceOptions {
+                medium: entry["medium"].as_str().unwrap().parse().unwrap(),
+                electrons: if entry["electrons_allowed"].as_bool().unwrap() {
+                    ElectronRule::Always
+                } else {
+                    ElectronRule::Never
+                },
+                ..BalanceOptions::default()
+            };
+            (
+                entry["id"].as_str().unwrap().to_owned(),
+                entry["input"].as_str().unwrap().to_owned(),
+                options,
+            )
+        })
+        .collect()
+}
+
+/// Text to result, as the command does it; every corpus answer (balance, not unique,
+/// impossible) counts.
+fn balance_corpus_entry(text: &str, options: &BalanceOptions) -> bool {
+    balance_text(text, options).is_ok()
+}
+
+/// Median time per call of `run`, from batches of about a millisecond over `total`.
+fn time_per_call(total: Duration, mut run: impl FnMut()) -> Duration {
+    let start = Instant::now();
+    let mut calls = 0u32;
+    while calls < 3 || start.elapsed() < Duration::from_millis(1) {
+        run();
+        calls += 1;
+    }
+    let per_batch = calls.max(1);
+    let batches = (total.as_secs_f64() / start.elapsed().as_secs_f64()).clamp(5.0, 400.0) as usize;
+    let mut times: Vec<Duration> = (0..batches)
+        .map(|_| {
+            let start = Instant::now();
+            for _ in 0..per_batch {
+                run();
+            }
+            start.elapsed() / per_batch
+        })
+        .collect();
+    times.sort();
+    times[times.len() / 2]
+}
+
+/// m alkanes CnH(2n+2), n = 1..m, burned together: three conservation rows, m + 3 species, a
+/// null space of dimension m.
+fn alkanes(m: usize) -> String {
+    let fuels: Vec<String> = (1..=m)
+        .map(|n| match n {
+            1 => "CH4".to_owned(),
+            n => format!("C{n}H{}", 2 * n + 2),
+        })
+        .collect();
+    format!("{} + O2 -> CO2 + H2O", fuels.join(" + "))
+}
+
+const DENSE_SYMBOLS: &str = "H He Li Be B C N O F Ne Na Mg Al Si P S Cl Ar K Ca Sc Ti V Cr Mn Fe Co Ni Cu Zn Ga Ge As Se Br Kr Rb Sr Y Zr Nb Mo Tc Ru Rh Pd Ag Cd In Sn Sb Te I Xe";
+
+/// A random dense equation of our own (no chemistry): `k` species over `k − 1` elements, each
+/// species holding each element with probability 2/5 and a subscript 1–9, from a fixed linear
+/// congruential sequence; the first draw whose null space has dimension 1 with every species
+/// taking part, each species written on the side its sign puts it.
+fn dense(k: usize) -> String {
+    let symbols: Vec<&str> = DENSE_SYMBOLS.split(' ').take(k - 1).collect();
+    let mut state: u64 = 0x9e37_79b9_7f4a_7c15 ^ k as u64;
+    let mut next = |bound: u64| {
+        state = state
+            .wrapping_mul(6_364_136_223_846_793_005)
+            .wrapping_add(1_442_695_040_888_963_407);
+        (state >> 33) % bound
+    };
+    loop {
+        let species: Vec<Vec<(usize, u64)>> = (0..k)
+            .map(|_| {
+                let mut counts: Vec<(usize, u64)> = Vec::new();
+                for e in 0..symbols.len() {
+                    if next(5) < 2 {
+                        counts.push((e, 1 + next(9)));
+                    }
+                }
+                if counts.is_empty() {
+                    counts.push((next(symbols.len() as u64) as usize, 1 + next(9)));
+                }
+                counts
+            })
+            .collect();
+        let mut matrix = IntegerMatrix::zeros(symbols.len(), k);
+        for (c, counts) in species.iter().enumerate() {
+            for &(e, n) in counts {
+                matrix.set(e, c, i128::from(n));
+            }
+        }
+        let basis = RowEchelon::new(&matrix).null_space();
+        if basis.len() != 1 || basis[0].iter().any(Zero::is_zero) {
+            continue;
+        }
+        let formula = |counts: &Vec<(usize, u64)>| -> String {
+            counts
+                .iter()
+                .map(|&(e, n)| match n {
+                    1 => symbols[e].to_owned(),
+                    n => format!("{}{n}", symbols[e]),
+                })
+                .collect()
+        };
+        let side = |negative: bool| -> Vec<String> {
+            species
+                .iter()
+                .zip(&basis[0])
+                .filter(|(_, x)| x.is_negative() == negative)
+                .map(|(s, _)| formula(s))
+                .collect()
+        };
+        return format!("{} -> {}", side(true).join(" + "), side(false).join(" + "));
+    }
+}
+
+const ALKANES: std::ops::RangeInclusive<usize> = 2..=12;
+const DENSE: [usize; 4] = [20, 24, 32, 48];
+
+/// The families, parsed, with the answer each must give (family, size, text, equation).
+fn families() -> Vec<(&'static str, usize, String, Equation)> {
+    let mut out = Vec::new();
+    for m in ALKANES {
+        let text = alkanes(m);
+        out.push(("alkanes", m, text.clone(), parse_equation(&text).unwrap()));
+    }
+    for k in DENSE {
+        let text = dense(k);
+        out.push(("dense", k, text.clone(), parse_equation(&text).unwrap()));
+    }
+    out
+}
+
+fn balance_family_member(family: &str, equation: &Equation, options: &BalanceOptions) {
+    match (family, balance(equation, options)) {
+        ("alkanes", Err(BalanceError::NotUnique { basis })) => {
+            black_box(basis);
+        }
+        ("dense", Ok(balanced)) => {
+            black_box(balanced);
+        }
+        (_, other) => panic!("{family}: unexpected {other:?}"),
+    }
+}
+
+fn corpus_and_families(c: &mut Criterion) {
+    let mut group = c.benchmark_group("balance");
+    let entries = corpus();
+    // Which entry is the median and which the slowest is found outside the timed part.
+    let mut timed: Vec<(Duration, usize)> = entries
+        .iter()
+        .enumerate()
+        .map(|(i, (_, text, options))| {
+            let time = time_per_call(Duration::from_millis(20), || {
+                black_box(balance_corpus_entry(black_box(text), options));
+            });
+            (time, i)
+        })
+        .collect();
+    timed.sort();
+    for (label, (_, i)) in [
+        ("median", timed[timed.len() / 2]),
+        ("hardest", timed[timed.len() - 1]),
+    ] {
+        let (id, text, options) = &entries[i];
+        // The entry is named outside the benchmark name, which must stay the same from run to
+        // run for criterion to compare runs.
+        eprintln!("corpus {label} entry: {id} ({text})");
+        group.bench_function(format!("corpus {label} entry, text to result"), |b| {
+            b.iter(|| black_box(balance_corpus_entry(black_box(text), options)))
+        });
+    }
+    group.throughput(Throughput::Elements(entries.len() as u64));
+    group.bench_function("corpus, all 98 entries, text to result", |b| {
+        b.iter(|| {
+            for (_, text, options) in &entries {
+                black_box(balance_corpus_entry(black_box(text), options));
+            }
+        })
+    });
+    group.throughput(Throughput::Elements(1));
+    let none = BalanceOptions::default();
+    for (family, size, _, equation) in families() {
+        let unit = if family == "alkanes" { "m" } else { "k" };
+        group.bench_function(format!("{family} {unit}={size} (parsed)"), |b| {
+            b.iter(|| balance_family_member(family, black_box(&equation), &none))
+        });
+    }
+    group.finish();
+}
+
+/// The `--sympy-families` mode: one line per family member, tab-separated: family, size,
+/// couplet's median time per balance in nanoseconds, text.
+fn print_families() {
+    let none = BalanceOptions::default();
+    for (family, size, text, equation) in families() {
+        let time = time_per_call(Duration::from_millis(300), || {
+            balance_family_member(family, black_box(&equation), &none)
+        });
+        println!("{family}\t{size}\t{}\t{text}", time.as_nanos());
+    }
+}
+
+criterion_group!(benches, balancing, corpus_and_families);
+
+/// The `--corpus-spread` mode: every corpus entry timed alone (text to result), then the
+/// median and the slowest, with their ids.
+fn print_corpus_spread() {
+    let entries = corpus();
+    let mut timed: Vec<(Duration, &str)> = entries
+        .iter()
+        .map(|(id, text, options)| {
+            let time = time_per_call(Duration::from_millis(100), || {
+                black_box(balance_corpus_entry(black_box(text), options));
+            });
+            (time, id.as_str())
+        })
+        .collect();
+    timed.sort();
+    let (median, median_id) = timed[timed.len() / 2];
+    let (slowest, slowest_id) = timed[timed.len() - 1];
+    println!(
+        "corpus of {}: median {:.2} us ({median_id}), slowest {:.2} us ({slowest_id})",
+        timed.len(),
+        median.as_secs_f64() * 1e6,
+        slowest.as_secs_f64() * 1e6
+    );
+    for (time, id) in timed.iter().rev().take(12) {
+        println!("  {id}: {:.2} us", time.as_secs_f64() * 1e6);
+    }
+}
+
+fn main() {
+    if std::env::args().any(|a| a == "--sympy-families") {
+        print_families();
+        return;
+    }
+    if std::env::args().any(|a| a == "--corpus-spread") {
+        print_corpus_spread();
+        return;
+    }
+    benches();
+    Criterion::default().configure_from_args().final_summary();
+}

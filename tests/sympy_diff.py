@@ -2,6 +2,7 @@
 """Differential test of `couplet balance` against sympy's exact rational null space.
 
 Usage: python3 tests/sympy_diff.py PATH/TO/couplet [COUNT] [SEED]
+       python3 tests/sympy_diff.py --families [BENCH_BINARY]
 
 Generates COUNT (default 2400, at least 2000) random balanceable reactions and half-reactions
 from random formulas (seeded, so a failure can be replayed), balances each with
@@ -12,7 +13,18 @@ A generated skeleton is kept when sympy finds a one-dimensional null space in wh
 written species has a nonzero coefficient; the written side of each species is then the side
 its sign puts it on, so the skeleton is balanceable by construction. sympy is the reference
 (a general-purpose computer algebra system, https://www.sympy.org).
+
+With --families, the script times instead of comparing: it runs the balance benchmark's
+`--sympy-families` mode (`cargo bench --bench balance -- --sympy-families`, or the given bench
+binary), which prints every member of the alkane family (m alkanes burned together, a null
+space of dimension m) and of the random dense family (k species) with couplet's time per
+balance, times sympy's null space of the same matrices (converted to primitive integer
+vectors, as couplet gives them), and prints the ratio per member. It checks nothing against
+sympy beyond the dimension of the null space: the comparison of answers is the default mode.
 """
+
+import re
+import statistics
 
 import json
 import random
@@ -76,7 +88,11 @@ def nullspace_integer(columns):
     basis = sympy.Matrix(rows).nullspace()
     if len(basis) != 1:
         return None
-    vector = list(basis[0])
+    return primitive_integers(basis[0])
+
+
+def primitive_integers(vector):
+    """A rational vector scaled to integers with gcd 1 (its direction kept)."""
     denominators = 1
     for x in vector:
         denominators = sympy.ilcm(denominators, sympy.Rational(x).q)
@@ -134,9 +150,63 @@ def expected(case):
     return reactants, products
 
 
+def formula_counts(formula):
+    """Element counts of a formula written as symbols and whole subscripts (as the families are)."""
+    counts = {}
+    for symbol, digits in re.findall(r"([A-Z][a-z]?)(\d*)", formula):
+        counts[symbol] = counts.get(symbol, 0) + (int(digits) if digits else 1)
+    return counts
+
+
+def integer_nullspace(columns):
+    """sympy's null space of the conservation matrix, each vector as primitive integers."""
+    elements = []
+    for counts in columns:
+        for e in counts:
+            if e not in elements:
+                elements.append(e)
+    matrix = sympy.Matrix([[c.get(e, 0) for c in columns] for e in elements])
+    return [primitive_integers(vector) for vector in matrix.nullspace()]
+
+
+def median_seconds(run, budget=0.3):
+    times = []
+    start = time.perf_counter()
+    while len(times) < 3 or (time.perf_counter() - start < budget and len(times) < 200):
+        t = time.perf_counter()
+        run()
+        times.append(time.perf_counter() - t)
+    return statistics.median(times)
+
+
+def families(bench_binary):
+    command = [bench_binary, "--sympy-families"] if bench_binary else ["cargo", "bench", "--quiet", "--bench", "balance", "--", "--sympy-families"]
+    run = subprocess.run(command, capture_output=True, text=True, check=True)
+    print(f"{'family':8} {'size':>4} {'couplet':>12} {'sympy':>12} {'sympy/couplet':>14}")
+    slower = 0
+    for line in run.stdout.splitlines():
+        family, size, nanoseconds, text = line.split("\t")
+        left, right = text.split(" -> ")
+        columns = [formula_counts(f) for f in left.split(" + ") + right.split(" + ")]
+        basis = integer_nullspace(columns)
+        # Alkanes: m fuels, so a family of dimension m; dense: one balance.
+        want = int(size) if family == "alkanes" else 1
+        if len(basis) != want:
+            sys.exit(f"{family} {size}: sympy finds a null space of dimension {len(basis)}, not {want}")
+        sympy_s = median_seconds(lambda: integer_nullspace(columns))
+        couplet_s = int(nanoseconds) * 1e-9
+        ratio = sympy_s / couplet_s
+        slower += ratio < 1
+        print(f"{family:8} {size:>4} {couplet_s * 1e6:>9.1f} us {sympy_s * 1e6:>9.1f} us {ratio:>13.1f}x")
+    print(f"members where couplet is slower than sympy: {slower}")
+
+
 def main():
     if len(sys.argv) < 2:
         sys.exit(__doc__)
+    if sys.argv[1] == "--families":
+        families(sys.argv[2] if len(sys.argv) > 2 else None)
+        return
     binary = sys.argv[1]
     count = int(sys.argv[2]) if len(sys.argv) > 2 else 2400
     seed = int(sys.argv[3]) if len(sys.argv) > 3 else 20261202

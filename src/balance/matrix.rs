@@ -1,12 +1,13 @@
 //! Exact integer linear algebra for balancing: the reduced row echelon form of an integer
 //! matrix and the integer basis of its null space, with no floating point anywhere.
 //!
-//! Elimination is fraction-free: a row is combined with the pivot row by cross-multiplying and
-//! then divided by the gcd of its entries, so every entry stays an integer and stays small.
-//! It first runs in `i128` with checked arithmetic; the moment any product or difference would
-//! overflow, the whole elimination restarts in `BigInt`. Published hard equations reach
-//! coefficients in the thousands, and their intermediate values do overflow 64 bits, so the
-//! fallback is a real path, not a formality (it is tested against the big-integer path).
+//! Elimination is fraction-free (Bareiss's exact division, in Gauss–Jordan form): every entry
+//! stays an integer no larger than a minor of the matrix, with no gcd per row. It starts in
+//! checked `i64`; the row at which a product or difference would overflow moves the
+//! elimination to `i128`, and then to `BigInt`, at that point, keeping the work done. Published
+//! hard equations reach coefficients in the thousands, and their intermediate values do
+//! overflow 64 bits, so the wider rings are real paths, not formalities (they are tested
+//! against the big-integer path).
 //!
 //! Work is metered ([`WorkMeter`]): one unit is about one product of two 64-bit words, so a
 //! product of an `a`-word and a `b`-word big integer costs `a·b` units. Hostile input (dozens of
@@ -161,7 +162,6 @@ trait Ring: Clone {
     fn is_negative(&self) -> bool;
     /// `a·b − c·d`, `None` on overflow.
     fn mul_sub(a: &Self, b: &Self, c: &Self, d: &Self) -> Option<Self>;
-    fn gcd(&self, other: &Self) -> Self;
     /// Division known to be exact.
     fn div_exact(&self, divisor: &Self) -> Self;
     fn negated(&self) -> Option<Self>;
@@ -195,10 +195,8 @@ macro_rules! machine_ring {
                     .checked_sub(c.checked_mul(*d)?)
                     .filter(|&x| x != <$int>::MIN)
             }
-            fn gcd(&self, other: &Self) -> Self {
-                Integer::gcd(self, other)
-            }
             fn div_exact(&self, divisor: &Self) -> Self {
+                debug_assert_eq!(self % divisor, 0, "inexact division");
                 self / divisor
             }
             fn negated(&self) -> Option<Self> {
@@ -233,10 +231,8 @@ impl Ring for BigInt {
     fn mul_sub(a: &Self, b: &Self, c: &Self, d: &Self) -> Option<Self> {
         Some(a * b - c * d)
     }
-    fn gcd(&self, other: &Self) -> Self {
-        Integer::gcd(self, other)
-    }
     fn div_exact(&self, divisor: &Self) -> Self {
+        debug_assert!(Zero::is_zero(&(self % divisor)), "inexact division");
         self / divisor
     }
     fn negated(&self) -> Option<Self> {
@@ -245,90 +241,146 @@ impl Ring for BigInt {
 }
 
 /// The reduced row echelon form of an integer matrix, kept in integers: every nonzero row has
-/// a positive pivot, every pivot column is zero outside its pivot row, and every row is
-/// primitive (its entries have gcd 1). Computed once; the null space is read from it.
+/// a positive pivot and every pivot column is zero outside its pivot row. The rows are those
+/// of the fraction-free elimination (every pivot equals the same minor of the matrix);
+/// [`RowEchelon::reduced_rows`] gives them primitive. Computed once; the null space is read
+/// from it.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct RowEchelon {
     columns: usize,
     /// Nonzero rows only, one per pivot.
-    rows: Vec<Vec<BigInt>>,
-    /// The same rows in machine integers, when elimination never left them.
-    small_rows: Option<Vec<Vec<i128>>>,
+    rows: Rows,
     pivot_columns: Vec<usize>,
-    used_big_integers: bool,
 }
 
-fn eliminate<T: Ring>(
-    matrix: &IntegerMatrix,
-    meter: &mut WorkMeter,
-) -> Result<(Vec<Vec<T>>, Vec<usize>), Stop> {
-    let columns = matrix.columns();
-    let mut rows: Vec<Vec<T>> = (0..matrix.rows())
-        .map(|r| {
-            (0..columns)
-                .map(|c| T::from_i128(matrix.get(r, c)))
-                .collect::<Option<Vec<T>>>()
+/// The rows of a [`RowEchelon`], in the ring the elimination finished in.
+#[derive(Clone, Debug, PartialEq, Eq)]
+enum Rows {
+    /// Machine integers (the elimination never left `i64` or `i128`), row-major.
+    Machine(Vec<i128>),
+    /// Big integers.
+    Big(Vec<Vec<BigInt>>),
+}
+
+/// A fraction-free Gauss–Jordan elimination in progress, in one ring.
+///
+/// Bareiss's rule, applied above the pivot as well as below: with pivot `p` in column `c` and
+/// the previous pivot `q` (1 at the start), every other row becomes
+/// `(p·row − row[c]·pivot_row) / q`, and the division is exact because every entry is then a
+/// minor of the matrix (with rows negated where a pivot was made positive). Entries therefore
+/// stay as small as the minors, with no gcd per row, and at the end every pivot equals the
+/// same minor. A row is computed aside and stored only when all its entries fit, so when one
+/// overflows the state is still a consistent point of the elimination: it moves to the wider
+/// ring and goes on from that row, nothing is redone.
+struct Elimination<T> {
+    rows: usize,
+    columns: usize,
+    /// Row-major.
+    entries: Vec<T>,
+    pivot_columns: Vec<usize>,
+    previous: T,
+    /// The column being eliminated.
+    column: usize,
+    /// The row to update next in that column; `None` before the pivot is chosen.
+    next_row: Option<usize>,
+}
+
+impl<T: Ring> Elimination<T> {
+    fn start(matrix: &IntegerMatrix) -> Option<Elimination<T>> {
+        Some(Elimination {
+            rows: matrix.rows(),
+            columns: matrix.columns(),
+            entries: matrix
+                .entries
+                .iter()
+                .map(|&x| T::from_i128(x))
+                .collect::<Option<_>>()?,
+            pivot_columns: Vec::new(),
+            previous: T::from_i128(1)?,
+            column: 0,
+            next_row: None,
         })
-        .collect::<Option<_>>()
-        .ok_or(Stop::Overflow)?;
-    let mut pivot_columns = Vec::new();
-    let mut rank = 0;
-    for column in 0..columns {
-        let Some(found) = (rank..rows.len()).find(|&r| !rows[r][column].is_zero()) else {
-            continue;
+    }
+
+    /// The same state in a wider ring (every machine integer fits the wider one).
+    fn widen<U: Ring>(self) -> Elimination<U> {
+        let widen = |x: T| {
+            U::from_i128(x.into_i128().expect("machine integers fit i128"))
+                .expect("a wider ring holds every narrower value")
         };
-        rows.swap(rank, found);
-        if rows[rank][column].is_negative() {
-            for entry in rows[rank].iter_mut() {
-                *entry = entry.negated().ok_or(Stop::Overflow)?;
-            }
-        }
-        let pivot_row = rows[rank].clone();
-        let pivot = &pivot_row[column];
-        for (r, row) in rows.iter_mut().enumerate() {
-            if r == rank || row[column].is_zero() {
-                continue;
-            }
-            let g = pivot.gcd(&row[column]);
-            let row_factor = pivot.div_exact(&g);
-            let pivot_factor = row[column].div_exact(&g);
-            let mut content = T::zero_value();
-            let mut work = 0u64;
-            for (entry, pivot_entry) in row.iter_mut().zip(&pivot_row) {
-                work +=
-                    entry.words() * row_factor.words() + pivot_entry.words() * pivot_factor.words();
-                *entry = T::mul_sub(entry, &row_factor, pivot_entry, &pivot_factor)
-                    .ok_or(Stop::Overflow)?;
-                // Euclid's gcd on w-word numbers costs about w² word operations.
-                work += entry.words() * content.words().max(entry.words());
-                content = content.gcd(entry);
-            }
-            if !content.is_zero() {
-                for entry in row.iter_mut() {
-                    work += entry.words() * content.words();
-                    *entry = entry.div_exact(&content);
-                }
-            }
-            meter.charge(work)?;
-        }
-        pivot_columns.push(column);
-        rank += 1;
-        if rank == rows.len() {
-            break;
+        Elimination {
+            rows: self.rows,
+            columns: self.columns,
+            entries: self.entries.into_iter().map(widen).collect(),
+            pivot_columns: self.pivot_columns,
+            previous: widen(self.previous),
+            column: self.column,
+            next_row: self.next_row,
         }
     }
-    rows.truncate(rank);
-    Ok((rows, pivot_columns))
-}
 
-fn widen<T: Ring>(rows: Vec<Vec<T>>) -> Vec<Vec<i128>> {
-    rows.into_iter()
-        .map(|r| {
-            r.into_iter()
-                .map(|x| x.into_i128().expect("machine integers widen to i128"))
-                .collect()
-        })
-        .collect()
+    fn run(&mut self, meter: &mut WorkMeter) -> Result<(), Stop> {
+        let columns = self.columns;
+        let mut scratch: Vec<T> = vec![T::zero_value(); columns];
+        while self.column < columns && self.pivot_columns.len() < self.rows {
+            let column = self.column;
+            let rank = self.pivot_columns.len();
+            if self.next_row.is_none() {
+                let Some(found) =
+                    (rank..self.rows).find(|&r| !self.entries[r * columns + column].is_zero())
+                else {
+                    self.column += 1;
+                    continue;
+                };
+                for c in 0..columns {
+                    self.entries.swap(rank * columns + c, found * columns + c);
+                }
+                if self.entries[rank * columns + column].is_negative() {
+                    let row = &mut self.entries[rank * columns..(rank + 1) * columns];
+                    for (slot, entry) in scratch.iter_mut().zip(row.iter()) {
+                        *slot = entry.negated().ok_or(Stop::Overflow)?;
+                    }
+                    row.clone_from_slice(&scratch);
+                }
+                self.next_row = Some(0);
+            }
+            let pivot_start = rank * columns;
+            while let Some(r) = self.next_row.filter(|&r| r < self.rows) {
+                if r != rank {
+                    let (pivot_row, row) = if r < rank {
+                        let (before, after) = self.entries.split_at(pivot_start);
+                        (&after[..columns], &before[r * columns..(r + 1) * columns])
+                    } else {
+                        let (before, after) = self.entries.split_at(r * columns);
+                        (
+                            &before[pivot_start..pivot_start + columns],
+                            &after[..columns],
+                        )
+                    };
+                    let pivot = &pivot_row[column];
+                    let factor = &row[column];
+                    let mut work = 0u64;
+                    for ((slot, entry), pivot_entry) in scratch.iter_mut().zip(row).zip(pivot_row) {
+                        let product =
+                            T::mul_sub(entry, pivot, factor, pivot_entry).ok_or(Stop::Overflow)?;
+                        work += entry.words() * pivot.words()
+                            + factor.words() * pivot_entry.words()
+                            + product.words() * self.previous.words();
+                        *slot = product.div_exact(&self.previous);
+                    }
+                    meter.charge(work)?;
+                    self.entries[r * columns..(r + 1) * columns].clone_from_slice(&scratch);
+                }
+                self.next_row = Some(r + 1);
+            }
+            self.previous = self.entries[pivot_start + column].clone();
+            self.pivot_columns.push(column);
+            self.column += 1;
+            self.next_row = None;
+        }
+        self.entries.truncate(self.pivot_columns.len() * columns);
+        Ok(())
+    }
 }
 
 impl RowEchelon {
@@ -339,59 +391,98 @@ impl RowEchelon {
             .expect("an unlimited meter is never spent")
     }
 
-    /// As [`RowEchelon::new`], charging `meter`; an error once its budget is spent. Work done
-    /// in a ring that then overflowed is charged too.
+    /// As [`RowEchelon::new`], charging `meter`; an error once its budget is spent. The
+    /// elimination starts in `i64` and moves to `i128`, then to big integers, at the row where
+    /// a value first overflows, keeping the work already done.
     pub fn new_within(
         matrix: &IntegerMatrix,
         meter: &mut WorkMeter,
     ) -> Result<RowEchelon, WorkLimitReached> {
-        let small = match eliminate::<i64>(matrix, meter) {
-            Ok((rows, pivots)) => Some((widen(rows), pivots)),
-            Err(Stop::Limit(reached)) => return Err(reached),
-            Err(Stop::Overflow) => match eliminate::<i128>(matrix, meter) {
-                Ok(done) => Some(done),
-                Err(Stop::Limit(reached)) => return Err(reached),
-                Err(Stop::Overflow) => None,
-            },
+        match RowEchelon::machine_within(matrix, meter)? {
+            Ok(done) => Ok(done),
+            Err(overflowed) => RowEchelon::big_from(&mut overflowed.widen(), meter),
+        }
+    }
+
+    /// The elimination in machine integers, or its state at the row where `i128` overflowed.
+    fn machine_within(
+        matrix: &IntegerMatrix,
+        meter: &mut WorkMeter,
+    ) -> Result<Result<RowEchelon, Elimination<i128>>, WorkLimitReached> {
+        let limit = |stop| match stop {
+            Stop::Limit(reached) => Err(reached),
+            Stop::Overflow => Ok(()),
         };
-        match small {
-            Some((rows, pivot_columns)) => Ok(RowEchelon {
-                columns: matrix.columns(),
-                rows: rows
-                    .iter()
-                    .map(|r| r.iter().map(|&x| BigInt::from(x)).collect())
-                    .collect(),
-                small_rows: Some(rows),
-                pivot_columns,
-                used_big_integers: false,
-            }),
-            None => RowEchelon::big_within(matrix, meter),
+        let mut wide = match Elimination::<i64>::start(matrix) {
+            Some(mut narrow) => match narrow.run(meter) {
+                Ok(()) => return Ok(Ok(RowEchelon::machine(narrow.widen()))),
+                Err(stop) => {
+                    limit(stop)?;
+                    narrow.widen::<i128>()
+                }
+            },
+            None => Elimination::<i128>::start(matrix).expect("the matrix holds i128 entries"),
+        };
+        match wide.run(meter) {
+            Ok(()) => Ok(Ok(RowEchelon::machine(wide))),
+            Err(stop) => {
+                limit(stop)?;
+                Ok(Err(wide))
+            }
         }
     }
 
     /// Reduces `matrix` in big integers throughout (the reference the fast path is checked
     /// against).
     pub fn new_big(matrix: &IntegerMatrix) -> RowEchelon {
-        RowEchelon::big_within(matrix, &mut WorkMeter::new(u64::MAX))
+        let mut big = Elimination::<BigInt>::start(matrix).expect("big integers hold every i128");
+        RowEchelon::big_from(&mut big, &mut WorkMeter::new(u64::MAX))
             .expect("an unlimited meter is never spent")
     }
 
-    fn big_within(
-        matrix: &IntegerMatrix,
+    fn machine(done: Elimination<i128>) -> RowEchelon {
+        RowEchelon {
+            columns: done.columns,
+            rows: Rows::Machine(done.entries),
+            pivot_columns: done.pivot_columns,
+        }
+    }
+
+    fn big_from(
+        elimination: &mut Elimination<BigInt>,
         meter: &mut WorkMeter,
     ) -> Result<RowEchelon, WorkLimitReached> {
-        let (rows, pivot_columns) = match eliminate::<BigInt>(matrix, meter) {
-            Ok(done) => done,
+        match elimination.run(meter) {
+            Ok(()) => {}
             Err(Stop::Limit(reached)) => return Err(reached),
             Err(Stop::Overflow) => unreachable!("big-integer elimination cannot overflow"),
-        };
+        }
+        let columns = elimination.columns;
+        let entries = std::mem::take(&mut elimination.entries);
+        let mut rows = Vec::with_capacity(elimination.pivot_columns.len());
+        let mut entries = entries.into_iter();
+        for _ in 0..elimination.pivot_columns.len() {
+            rows.push(entries.by_ref().take(columns).collect());
+        }
         Ok(RowEchelon {
-            columns: matrix.columns(),
-            rows,
-            small_rows: None,
-            pivot_columns,
-            used_big_integers: true,
+            columns,
+            rows: Rows::Big(rows),
+            pivot_columns: std::mem::take(&mut elimination.pivot_columns),
         })
+    }
+
+    /// A row echelon form from rows the caller has reduced (positive pivots, pivot columns
+    /// zero outside their row).
+    fn from_big_rows(
+        columns: usize,
+        rows: Vec<Vec<BigInt>>,
+        pivot_columns: Vec<usize>,
+    ) -> RowEchelon {
+        RowEchelon {
+            columns,
+            rows: Rows::Big(rows),
+            pivot_columns,
+        }
     }
 
     /// The rank: number of pivots.
@@ -416,14 +507,30 @@ impl RowEchelon {
             .collect()
     }
 
-    /// The nonzero rows of the reduced form, one per pivot.
-    pub fn reduced_rows(&self) -> &[Vec<BigInt>] {
-        &self.rows
+    /// The rows as big integers, as stored (not made primitive).
+    fn big_rows(&self) -> Vec<Vec<BigInt>> {
+        match &self.rows {
+            Rows::Machine(entries) => entries
+                .chunks(self.columns.max(1))
+                .take(self.rank())
+                .map(|row| row.iter().map(|&x| BigInt::from(x)).collect())
+                .collect(),
+            Rows::Big(rows) => rows.clone(),
+        }
+    }
+
+    /// The nonzero rows of the reduced form, one per pivot, each primitive (gcd 1): the
+    /// unique integer form of the reduced row echelon form.
+    pub fn reduced_rows(&self) -> Vec<Vec<BigInt>> {
+        self.big_rows()
+            .iter()
+            .map(|row| primitive_row(row))
+            .collect()
     }
 
     /// True when the elimination overflowed `i128` and ran in big integers.
     pub fn used_big_integers(&self) -> bool {
-        self.used_big_integers
+        matches!(self.rows, Rows::Big(_))
     }
 
     /// An integer basis of the null space: one primitive vector per free column, positive in
@@ -455,14 +562,18 @@ impl RowEchelon {
         if let Some(vector) = self.null_vector_small(free) {
             return vector.into_iter().map(BigInt::from).collect();
         }
-        self.null_vector_big(free)
+        null_vector_big(&self.big_rows(), &self.pivot_columns, self.columns, free)
     }
 
-    /// The same as [`RowEchelon::null_vector_big`] in checked `i128`; `None` on overflow.
+    /// The same as [`null_vector_big`] in checked `i128`; `None` on overflow or when the rows
+    /// are big integers.
     fn null_vector_small(&self, free: usize) -> Option<Vec<i128>> {
-        let rows = self.small_rows.as_ref()?;
+        let Rows::Machine(entries) = &self.rows else {
+            return None;
+        };
+        let rows = entries.chunks(self.columns.max(1));
         let mut common: i128 = 1;
-        for (row, &pivot_column) in rows.iter().zip(&self.pivot_columns) {
+        for (row, &pivot_column) in rows.clone().zip(&self.pivot_columns) {
             if row[free] != 0 {
                 let pivot = row[pivot_column];
                 common = (common / Integer::gcd(&common, &pivot)).checked_mul(pivot)?;
@@ -470,7 +581,7 @@ impl RowEchelon {
         }
         let mut vector = vec![0i128; self.columns];
         vector[free] = common;
-        for (row, &pivot_column) in rows.iter().zip(&self.pivot_columns) {
+        for (row, &pivot_column) in rows.zip(&self.pivot_columns) {
             let a = row[free];
             if a != 0 {
                 vector[pivot_column] = a.checked_mul(common / row[pivot_column])?.checked_neg()?;
@@ -479,30 +590,59 @@ impl RowEchelon {
         let content = vector.iter().fold(0i128, |g, x| Integer::gcd(&g, x));
         Some(vector.into_iter().map(|x| x / content).collect())
     }
+}
 
-    fn null_vector_big(&self, free: usize) -> Vec<BigInt> {
-        // With pivot d_r in row r, the vector x_free = 1, x_pivot(r) = −a_r,free / d_r solves
-        // the system; multiplying by the lcm of the pivots involved clears the fractions.
-        let mut common = BigInt::from(1);
-        for (row, &pivot_column) in self.rows.iter().zip(&self.pivot_columns) {
-            if !Zero::is_zero(&row[free]) {
-                common = common.lcm(&row[pivot_column]);
+/// The null vector of free column `free` from reduced rows (positive pivots, pivot columns
+/// zero outside their row): with pivot d_r in row r, x_free = 1, x_pivot(r) = −a_r,free / d_r
+/// solves the system; multiplying by the lcm of the pivots involved clears the fractions.
+fn null_vector_big(
+    rows: &[Vec<BigInt>],
+    pivot_columns: &[usize],
+    columns: usize,
+    free: usize,
+) -> Vec<BigInt> {
+    let mut common = BigInt::from(1);
+    for (row, &pivot_column) in rows.iter().zip(pivot_columns) {
+        if !Zero::is_zero(&row[free]) {
+            common = common.lcm(&row[pivot_column]);
+        }
+    }
+    let mut vector = vec![BigInt::zero(); columns];
+    vector[free] = common.clone();
+    for (row, &pivot_column) in rows.iter().zip(pivot_columns) {
+        if !Zero::is_zero(&row[free]) {
+            vector[pivot_column] = -(&row[free] * (&common / &row[pivot_column]));
+        }
+    }
+    primitive_row(&vector)
+}
+
+/// An integer basis of the null space of `matrix`, the same as
+/// `RowEchelon::new_within(matrix, meter)?.null_space_within(meter)`. When the minors overflow
+/// `i128` and the null space is one line of a full-row-rank matrix, the line comes from
+/// elimination modulo word-sized primes ([`super::modular`]) instead of big integers.
+pub fn null_space_within(
+    matrix: &IntegerMatrix,
+    meter: &mut WorkMeter,
+) -> Result<Vec<Vec<BigInt>>, WorkLimitReached> {
+    // When Hadamard's bound already says the minors may pass i128, the machine-integer
+    // elimination would most likely be work thrown away: the modular path goes first.
+    let modular_first = super::modular::hadamard_bits(matrix).is_some_and(|bits| bits > 126);
+    if modular_first {
+        if let Some(vector) = super::modular::one_dimensional_null_space(matrix, meter)? {
+            return Ok(vec![vector]);
+        }
+    }
+    match RowEchelon::machine_within(matrix, meter)? {
+        Ok(echelon) => echelon.null_space_within(meter),
+        Err(overflowed) => {
+            if !modular_first {
+                if let Some(vector) = super::modular::one_dimensional_null_space(matrix, meter)? {
+                    return Ok(vec![vector]);
+                }
             }
+            RowEchelon::big_from(&mut overflowed.widen(), meter)?.null_space_within(meter)
         }
-        let mut vector = vec![BigInt::zero(); self.columns];
-        vector[free] = common.clone();
-        for (row, &pivot_column) in self.rows.iter().zip(&self.pivot_columns) {
-            if !Zero::is_zero(&row[free]) {
-                vector[pivot_column] = -(&row[free] * (&common / &row[pivot_column]));
-            }
-        }
-        let content = vector
-            .iter()
-            .fold(BigInt::zero(), |g, x| Integer::gcd(&g, x));
-        for x in vector.iter_mut() {
-            *x = &*x / &content;
-        }
-        vector
     }
 }
 
@@ -528,27 +668,26 @@ pub fn null_spaces_without_each_row(
         augmented.set(r, columns + r, 1);
     }
     let reduced = RowEchelon::new_within(&augmented, meter)?;
+    let reduced_rows = reduced.big_rows();
     // Rows whose pivot lies in A's columns form the reduced form of A; the others are the
     // zero rows of E.
     let mut pivot_rows: Vec<(usize, &Vec<BigInt>)> = Vec::new();
     let mut zero_rows: Vec<&Vec<BigInt>> = Vec::new();
-    for (row, &pivot) in reduced.rows.iter().zip(&reduced.pivot_columns) {
+    for (row, &pivot) in reduced_rows.iter().zip(&reduced.pivot_columns) {
         if pivot < columns {
             pivot_rows.push((pivot, row));
         } else {
             zero_rows.push(row);
         }
     }
-    let own = RowEchelon {
+    let own = RowEchelon::from_big_rows(
         columns,
-        rows: pivot_rows
+        pivot_rows
             .iter()
             .map(|(_, row)| primitive_row(&row[..columns]))
             .collect(),
-        small_rows: None,
-        pivot_columns: pivot_rows.iter().map(|&(p, _)| p).collect(),
-        used_big_integers: reduced.used_big_integers,
-    };
+        pivot_rows.iter().map(|&(p, _)| p).collect(),
+    );
     let null_space = own.null_space_within(meter)?;
     let mut out = Vec::with_capacity(rows);
     for r in 0..rows {
@@ -670,7 +809,7 @@ mod tests {
         }
         let m = IntegerMatrix::from_rows(&rows).unwrap();
         assert_eq!(m.columns(), columns);
-        RowEchelon::new_big(&m).reduced_rows().to_vec()
+        RowEchelon::new_big(&m).reduced_rows()
     }
 
     #[test]
@@ -717,6 +856,53 @@ mod tests {
             Ok(RowEchelon::new(&m))
         );
         assert!(meter.used() > 0);
+    }
+
+    /// Matrices of our own from a fixed linear congruential sequence: `rows × columns`, about
+    /// half the entries nonzero, magnitudes below `bound`.
+    fn random_matrices(count: usize, bound: u64) -> Vec<IntegerMatrix> {
+        let mut state: u64 = 0x5851_f42d_4c95_7f2d;
+        let mut next = |n: u64| {
+            state = state
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (state >> 33) % n
+        };
+        (0..count)
+            .map(|_| {
+                let rows = 1 + next(12) as usize;
+                let columns = 1 + next(14) as usize;
+                let mut m = IntegerMatrix::zeros(rows, columns);
+                for r in 0..rows {
+                    for c in 0..columns {
+                        if next(2) == 0 {
+                            let x = next(bound) as i128;
+                            m.set(r, c, if next(2) == 0 { x } else { -x });
+                        }
+                    }
+                }
+                m
+            })
+            .collect()
+    }
+
+    #[test]
+    fn widening_mid_elimination_gives_the_big_integer_answer() {
+        // Small entries stay in i64; entries to 2^20 overflow i64 and often i128 part-way
+        // through, so the elimination moves ring at some row and goes on from there.
+        let mut widened = [0usize; 2];
+        for bound in [10, 1 << 20] {
+            for m in random_matrices(300, bound) {
+                let fast = RowEchelon::new(&m);
+                let reference = RowEchelon::new_big(&m);
+                widened[usize::from(fast.used_big_integers())] += 1;
+                assert_eq!(fast.pivot_columns(), reference.pivot_columns(), "{m:?}");
+                assert_eq!(fast.reduced_rows(), reference.reduced_rows(), "{m:?}");
+                assert_eq!(fast.null_space(), reference.null_space(), "{m:?}");
+                assert_null_space_identities(&m, &fast);
+            }
+        }
+        assert!(widened[0] > 0 && widened[1] > 0, "{widened:?}");
     }
 
     #[test]

@@ -649,3 +649,27 @@ fn hazardous_reactions_carry_a_caution() {
             predicates::str::contains("caution"),
         ));
 }
+
+#[test]
+fn every_corpus_entry_stays_far_below_the_default_work_limit() {
+    // The module documentation promises that the published equations with one answer use
+    // under two thousand units of the default four million; the non-unique ones also pay for
+    // rewriting their basis (68 candidates per pair of reactions).
+    let corpus: Vec<Value> = serde_json::from_str(CORPUS).unwrap();
+    let (mut unique, mut any) = ((0, ""), (0, ""));
+    for entry in &corpus {
+        let options = options(
+            entry["medium"].as_str().unwrap(),
+            entry["electrons_allowed"].as_bool().unwrap(),
+        );
+        let equation = parse_equation(entry["input"].as_str().unwrap()).unwrap();
+        let (_, used) = balance_counting(&equation, &options);
+        let id = entry["id"].as_str().unwrap();
+        if !entry["balanced"].is_null() {
+            unique = unique.max((used, id));
+        }
+        any = any.max((used, id));
+    }
+    assert!(unique.0 < 2_000, "{unique:?}");
+    assert!(any.0 < 10_000, "{any:?}");
+}
