@@ -550,17 +550,140 @@ fn a_file_over_the_size_limit_is_reported_without_being_read() {
     let path = dir.path().join("huge.toml");
     let entry =
         "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.7996\nsource = \"invented\"\n\n";
-    let mut text = String::with_capacity(100 * 1024 * 1024 + entry.len());
-    while text.len() < 100 * 1024 * 1024 {
-        text.push_str(entry);
-    }
+    let text = entry.repeat(3 * 1024 * 1024 / entry.len() + 1);
     std::fs::write(&path, &text).unwrap();
-    let json = assert_clear_error(&path, "CPL106");
+    let (json, status) = run_json(&["--max-file-mib", "2", path.to_str().unwrap()]);
+    assert_eq!(status, 1, "{json}");
+    assert_eq!(codes(&json), ["CPL106"]);
     let message = json["diagnostics"][0]["message"].as_str().unwrap();
     assert!(
-        message.contains("100.0 MiB") && message.contains("32 MiB"),
+        message.contains("3.0 MiB") && message.contains("up to 2 MiB"),
         "{message}"
     );
+    // Under the default bound (2 GiB) the same file is read, in pieces, and checked.
+    let (json, status) = run_json(&[path.to_str().unwrap()]);
+    assert_eq!(status, 0, "{json}");
+    assert_eq!(
+        json["summary"]["entries"].as_u64(),
+        Some((3 * 1024 * 1024 / entry.len() + 1) as u64)
+    );
+}
+
+#[test]
+fn a_huge_line_or_a_huge_file_that_cannot_be_cut_is_refused_clearly() {
+    let dir = tempfile::tempdir().unwrap();
+    // 40 MiB of one line: refused once 16 MiB of it are read, not held or parsed.
+    let path = dir.path().join("line.toml");
+    let mut text = String::from("[[couple]]\nnote = \"");
+    text.push_str(&"x".repeat(40 << 20));
+    text.push_str("\"\n");
+    std::fs::write(&path, &text).unwrap();
+    let refused = |path: &Path| {
+        let json = assert_clear_error(path, "CPL106");
+        json["diagnostics"][0]["message"]
+            .as_str()
+            .unwrap()
+            .to_owned()
+    };
+    let message = refused(&path);
+    assert!(
+        message.starts_with("line 2 (from byte 11) is longer than 16 MiB"),
+        "{message}"
+    );
+    // Over 32 MiB with a multi-line string: it cannot be cut between couples, and reading it
+    // whole would need twenty times its size.
+    let path = dir.path().join("multiline.toml");
+    let entry =
+        "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.7996\nsource = \"invented\"\n\n";
+    let mut text = String::from(
+        "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.7996\nnote = '''\ntwo lines'''\n\n",
+    );
+    text.push_str(&entry.repeat((33 << 20) / entry.len()));
+    std::fs::write(&path, &text).unwrap();
+    let message = refused(&path);
+    assert!(
+        message.contains("has a multi-line string at line 4"),
+        "{message}"
+    );
+}
+
+/// Findings of a file read whole and of the same file read in pieces, as comparable tuples.
+fn findings_of(
+    report: &couplet::check::Report,
+) -> Vec<(String, usize, usize, String, Option<String>)> {
+    report
+        .findings
+        .iter()
+        .map(|f| {
+            (
+                f.rule.code().to_owned(),
+                f.span.start,
+                f.span.end,
+                f.message.clone(),
+                f.suggestion.clone(),
+            )
+        })
+        .collect()
+}
+
+#[test]
+fn a_file_read_in_pieces_gets_the_findings_of_the_file_read_whole() {
+    // Invented entries, a few faulty, over several pieces, in both formats.
+    let mut toml = String::from("# invented\n");
+    let mut csv = String::from("# invented\nid,reaction,e0,source\n");
+    for k in 0..24_000 {
+        let (reaction, e0) = match k % 1000 {
+            7 => ("MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O", "1.51"),
+            8 => ("Cu2+ + 2 e- -> Cu(s)", "0.9"),
+            9 => ("Fe3+ + e- -> Fe2+", "\"0.77 V\""),
+            _ => ("Cu2+ + 2 e- -> Cu(s)", "0.342"),
+        };
+        let id = if k == 23_000 {
+            "c3".to_owned()
+        } else {
+            format!("c{k}")
+        };
+        toml.push_str(&format!(
+            "[[couple]]\nid = \"{id}\"\nreaction = \"{reaction}\"\ne0 = {e0}\nsource = \"x\"\n\n"
+        ));
+        csv.push_str(&format!(
+            "{id},\"{reaction}\",{},\"invented, for this test\"\n",
+            e0.trim_matches('"')
+        ));
+    }
+    let dir = tempfile::tempdir().unwrap();
+    for (name, text, format) in [
+        ("t.toml", &toml, FileFormat::Toml),
+        ("t.csv", &csv, FileFormat::Csv),
+    ] {
+        assert!(text.len() > 1 << 20);
+        let path = dir.path().join(name);
+        std::fs::write(&path, text).unwrap();
+        let pieces = couplet::check::load_file(&path).unwrap();
+        assert!(pieces.is_in_pieces());
+        let options = CheckOptions::default();
+        let streamed = check(vec![pieces], &options);
+        let whole = check(
+            vec![SourceFile::new(
+                path.display().to_string(),
+                CoupleFile::from_text(text, format),
+            )],
+            &options,
+        );
+        assert_eq!(streamed.summary(), whole.summary());
+        assert_eq!(findings_of(&streamed), findings_of(&whole));
+        assert!(streamed.findings.len() > 40, "{}", streamed.findings.len());
+        // Fixes of a file read in pieces replace the values in place and read back.
+        let fixes = streamed.fixes_for(0);
+        assert_eq!(fixes.len(), 24);
+        let fixed = couplet::check::fix::apply_source(&streamed.files[0], &fixes).unwrap();
+        let again = CoupleFile::from_text(&fixed, format);
+        assert_eq!(again.records.len(), 24_000);
+        assert_eq!(
+            again.records[7].reaction.as_ref().unwrap().value,
+            "MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O"
+        );
+    }
 }
 
 #[test]
@@ -694,11 +817,14 @@ fn report_of(text: &str, format: FileFormat, options: &CheckOptions) -> couplet:
     )
 }
 
+/// `count` entries with the hostile reaction, each written differently (trailing spaces) so
+/// that each is judged on its own: the checker judges a reaction text once per batch.
 fn hostile_entries(count: usize) -> String {
     let reaction = crate::balance::hostile_equation(64, 70);
     (0..count)
         .map(|i| {
-            format!("[[couple]]\nid = \"h{i}\"\nreaction = \"{reaction}\"\ne0 = 0.1\nsource = \"invented\"\n")
+            let spaces = " ".repeat(i);
+            format!("[[couple]]\nid = \"h{i}\"\nreaction = \"{reaction}{spaces}\"\ne0 = 0.1\nsource = \"invented\"\n")
         })
         .collect()
 }
@@ -732,6 +858,18 @@ fn a_hostile_reaction_costs_the_checker_at_most_its_work_limit() {
             .iter()
             .all(|f| f.suggestion.is_none() && f.fix.is_none())
     );
+    // The same text four times is balanced once: no budget is spent on the repeats.
+    let reaction = crate::balance::hostile_equation(64, 70);
+    let same: String = (0..4)
+        .map(|i| format!("[[couple]]\nid = \"s{i}\"\nreaction = \"{reaction}\"\ne0 = 0.1\nsource = \"invented\"\n"))
+        .collect();
+    let report = report_of(&same, FileFormat::Toml, &options);
+    let own: Vec<_> = report
+        .findings
+        .iter()
+        .filter(|f| f.rule.code() == "CPL204" && f.message.ends_with(own_limit))
+        .collect();
+    assert_eq!(own.len(), 4);
 }
 
 #[test]
