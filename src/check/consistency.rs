@@ -192,6 +192,17 @@ fn build<T: Whole>(species: Vec<String>, numbers: Vec<T>) -> WrittenCouple {
     }
     let electrons = -number(&terms, ELECTRON);
     let hydroxide = number(&terms, HYDROXIDE);
+    if !hydroxide.is_zero() {
+        terms.retain(|(s, _)| s != HYDROXIDE);
+        for (key, change) in [(WATER, hydroxide.clone()), (PROTON, -hydroxide.clone())] {
+            match terms.iter_mut().find(|(s, _)| s == key) {
+                Some(term) => term.1 = term.1.clone() + change,
+                None => terms.push((key.to_owned(), change)),
+            }
+        }
+        terms.retain(|(_, n)| !n.is_zero());
+        terms.sort_by(|a, b| a.0.cmp(&b.0));
+    }
     let common = terms.iter().fold(T::zero(), |g, (_, n)| g.gcd(n));
     let divide = |n: &T| {
         if common.is_zero() {
@@ -656,16 +667,16 @@ impl TableChecker {
         let residual: f64 = (0..3)
             .map(|c| weights[c] * electrons[c] * forms[c].acid_volts)
             .sum();
-        // The couple whose weight differs in sign from the other two is the sum of the other
-        // two with positive weights: it is the derived one, and the one judged.
-        let positive = weights.iter().filter(|w| **w > 0.0).count();
-        let judged = if positive == 1 {
-            weights.iter().position(|w| *w > 0.0)
-        } else {
-            weights.iter().position(|w| *w < 0.0)
-        }?;
+        let pinned = |c: usize| (weights[c] * electrons[c]).abs();
+        // The couple with the fewest electrons in the relation; the earliest on a tie.
+        let judged = (0..3).min_by(|&p, &q| {
+            pinned(p).total_cmp(&pinned(q)).then_with(|| {
+                let (x, y) = (forms[p].entry, forms[q].entry);
+                (x.file, x.span.start).cmp(&(y.file, y.span.start))
+            })
+        })?;
         let mismatch = residual / (weights[judged] * electrons[judged]);
-        if mismatch.is_nan() || mismatch.abs() <= self.tolerance_volts {
+        if mismatch.is_nan() || mismatch.abs() <= self.threshold_volts {
             return None;
         }
         let this = forms[judged];
@@ -878,6 +889,16 @@ mod tests {
             couple("Cl2(aq) + 2 e- -> 2 Cl-")
         );
         assert_eq!(couple("Ag+ -> Ag(s)"), None);
+    }
+
+    #[test]
+    fn the_base_form_has_the_acid_form_and_its_hydroxide() {
+        let acid = couple("O2(g) + 4 H+ + 4 e- -> 2 H2O").unwrap();
+        let base = couple("O2(g) + 2 H2O + 4 e- -> 4 OH-").unwrap();
+        assert_eq!(acid.species, base.species);
+        assert_eq!(acid.numbers, base.numbers);
+        assert!(!acid.written_for_base() && base.written_for_base());
+        assert_eq!(base.hydroxide, Numbers::Small(vec![1, 1].into()));
     }
 
     #[test]

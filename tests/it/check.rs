@@ -211,6 +211,31 @@ const KNOWN_TABLE_FINDINGS: [(&str, &str); 19] = [
     ("CPL306", "y3+/y"),
 ];
 
+/// The CPL403 findings the built-in table has now that the rule follows free energies through
+/// intermediates and between acid and base forms (pKw): mixed compilations. Tolerated here
+/// for now, while the table's entries are being fixed and documented elsewhere; remove each
+/// when its data are settled. Mismatches (on the couple named): cr3+/cr2+ 20.0 mV, cl2/cl-
+/// 21.6 mV (with the ClO4- pair) and 37.1 mV (with ClO3-/Cl2 and the base ClO3-/Cl-),
+/// i2(s)/i- 71.5 mV, clo4-/clo3--acid 13.8 mV, clo4-/clo3--base 38.1 mV (its acid form) and
+/// 42.1, 24.3 and 32.1 mV (cycles), hno2/no 19.0 mV twice (with NO3- and with N2O), au+/au
+/// 18.0 mV, io3-/i--acid 11.9 mV (its base form), no2-/no 180.7 mV.
+const KNOWN_CONSISTENCY_FINDINGS: [(&str, &str); 14] = [
+    ("CPL403", "cr3+/cr2+"),
+    ("CPL403", "cl2/cl-"),
+    ("CPL403", "cl2/cl-"),
+    ("CPL403", "i2(s)/i-"),
+    ("CPL403", "clo4-/clo3--acid"),
+    ("CPL403", "clo4-/clo3--base"),
+    ("CPL403", "clo4-/clo3--base"),
+    ("CPL403", "clo4-/clo3--base"),
+    ("CPL403", "clo4-/clo3--base"),
+    ("CPL403", "hno2/no"),
+    ("CPL403", "hno2/no"),
+    ("CPL403", "au+/au"),
+    ("CPL403", "io3-/i--acid"),
+    ("CPL403", "no2-/no"),
+];
+
 #[test]
 fn builtin_table_checks_clean_but_for_known_source_disagreements() {
     let (json, _) = run_json(&["data/"]);
@@ -237,12 +262,16 @@ fn builtin_table_checks_clean_but_for_known_source_disagreements() {
     found.sort();
     let mut known: Vec<(String, String)> = KNOWN_TABLE_FINDINGS
         .iter()
+        .chain(&KNOWN_CONSISTENCY_FINDINGS)
         .map(|(c, l)| (c.to_string(), l.to_string()))
         .collect();
     known.sort();
     assert_eq!(found, known, "{json}");
     assert_eq!(json["summary"]["entries"], 210);
-    assert_eq!(json["summary"]["warnings"], KNOWN_TABLE_FINDINGS.len());
+    assert_eq!(
+        json["summary"]["warnings"],
+        KNOWN_TABLE_FINDINGS.len() + KNOWN_CONSISTENCY_FINDINGS.len()
+    );
 }
 
 #[test]
@@ -1164,8 +1193,14 @@ fn unlabelled_species_match_their_labelled_form_as_cell_reads_them() {
     let report = report_of(text, FileFormat::Toml, &options);
     assert_eq!(rule_codes(&report), ["CPL402"]);
     // Fe3+/Fe2+ +0.771 V, Fe2+/Fe -0.447 V, Fe3+/Fe -0.037 V (same table, from memory):
-    // free energies add, (2(-0.447) + 0.771)/3 = -0.041 V, within 0.01 V of -0.037 V. The
-    // metal written once as Fe and once as Fe(s) still links the couples.
+    // free energies add, 3(-0.037) = 0.771 + 2(-0.447) up to 0.012 V, which on the couple the
+    // cycle pins most tightly (Fe3+/Fe2+, 1 e-) is 12 mV: within a threshold of 15 mV (these
+    // recalled values are that far apart at the default 10 mV). The metal written once as Fe
+    // and once as Fe(s) still links the couples.
+    let options = CheckOptions {
+        additivity_threshold_volts: 0.015,
+        ..options
+    };
     let consistent = "[[couple]]\nreaction = \"Fe3+ + e- -> Fe2+\"\ne0 = 0.771\nsource = \"CRC\"\n\n[[couple]]\nreaction = \"Fe2+ + 2 e- -> Fe\"\ne0 = -0.447\nsource = \"CRC\"\n\n[[couple]]\nreaction = \"Fe3+ + 3 e- -> Fe(s)\"\ne0 = -0.037\nsource = \"CRC\"\n";
     let report = report_of(consistent, FileFormat::Toml, &options);
     assert_eq!(rule_codes(&report), Vec::<&str>::new());
@@ -1296,4 +1331,225 @@ proptest::proptest! {
         couplet::check::output::write_sarif(&report, &mut sarif).unwrap();
         proptest::prop_assert!(serde_json::from_slice::<Value>(&sarif).is_ok());
     }
+}
+
+// ---- free energies through intermediates and pKw (CPL403) ----
+
+/// Independent values for the expected mismatches: RT/F·ln10 from the exact SI constants
+/// (k = 1.380649e-23 J/K, e = 1.602176634e-19 C; CODATA 2018 lists them as exact) at
+/// 298.15 K, and pKw = 13.995 at 25 °C (Bandura & Lvov 2006, J. Phys. Chem. Ref. Data 35, 15).
+fn water_volts() -> f64 {
+    1.380649e-23 * 298.15 / 1.602176634e-19 * std::f64::consts::LN_10 * 13.995
+}
+
+/// A CPL403 case from `tests/data/consistency/`: the couple the finding must be on, and the
+/// free-energy cycle as (id, signed electrons, OH- per electron written): Σ ν·n·E = 0 when
+/// free energies add up, with E of a base couple taken to acid as E + (h/n)·(RT/F)·ln10·pKw.
+/// The expected mismatch is |Σ ν·n·E| / n(judged), the potential shift of the couple with the
+/// fewest electrons in the cycle that would close it (for an acid/base pair, the difference
+/// of the two acid-form potentials).
+struct Cycle {
+    fixture: &'static str,
+    judged: &'static str,
+    terms: &'static [(&'static str, f64, f64)],
+    judged_electrons: f64,
+}
+
+const CYCLES: [Cycle; 7] = [
+    // 2 ClO4-/Cl- (16 e-) = ClO4-/Cl2 (14 e-) + Cl2/Cl- (2 e-)
+    Cycle {
+        fixture: "chlorine-perchlorate.toml",
+        judged: "cl2/cl-",
+        terms: &[
+            ("clo4-/cl-", 16.0, 0.0),
+            ("clo4-/cl2", -14.0, 0.0),
+            ("cl2/cl-", -2.0, 0.0),
+        ],
+        judged_electrons: 2.0,
+    },
+    // Cr3+/Cr (3 e-) = Cr3+/Cr2+ (1 e-) + Cr2+/Cr (2 e-)
+    Cycle {
+        fixture: "chromium.toml",
+        judged: "cr3+/cr2+",
+        terms: &[
+            ("cr3+/cr", 3.0, 0.0),
+            ("cr3+/cr2+", -1.0, 0.0),
+            ("cr2+/cr", -2.0, 0.0),
+        ],
+        judged_electrons: 1.0,
+    },
+    // Au3+/Au (3 e-) = Au3+/Au+ (2 e-) + Au+/Au (1 e-)
+    Cycle {
+        fixture: "gold.toml",
+        judged: "au+/au",
+        terms: &[
+            ("au3+/au", 3.0, 0.0),
+            ("au3+/au+", -2.0, 0.0),
+            ("au+/au", -1.0, 0.0),
+        ],
+        judged_electrons: 1.0,
+    },
+    // NO3-/NO (3 e-) = NO3-/HNO2 (2 e-) + HNO2/NO (1 e-)
+    Cycle {
+        fixture: "nitrous-acid-nitrate.toml",
+        judged: "hno2/no",
+        terms: &[
+            ("no3-/no", 3.0, 0.0),
+            ("no3-/hno2", -2.0, 0.0),
+            ("hno2/no", -1.0, 0.0),
+        ],
+        judged_electrons: 1.0,
+    },
+    // HNO2/N2O (4 e-) = 2 HNO2/NO (2 e-) + NO/N2O (2 e-): HNO2/NO and NO/N2O are pinned
+    // alike; the finding is on the earlier entry, HNO2/NO.
+    Cycle {
+        fixture: "nitrous-acid-nitrous-oxide.toml",
+        judged: "hno2/no",
+        terms: &[
+            ("hno2/n2o", 4.0, 0.0),
+            ("hno2/no", -2.0, 0.0),
+            ("no/n2o", -2.0, 0.0),
+        ],
+        judged_electrons: 2.0,
+    },
+    // ClO4-/ClO3- in acid and in base (2 OH- per 2 e-): one couple.
+    Cycle {
+        fixture: "perchlorate-acid-base.toml",
+        judged: "clo4-/clo3--base",
+        terms: &[
+            ("clo4-/clo3--acid", 2.0, 0.0),
+            ("clo4-/clo3--base", -2.0, 1.0),
+        ],
+        judged_electrons: 2.0,
+    },
+    // 2 ClO3-/Cl- (base, 6 OH- per 6 e-; 12 e-) = ClO3-/Cl2 (acid, 10 e-) + Cl2/Cl- (2 e-)
+    Cycle {
+        fixture: "chlorate-across-media.toml",
+        judged: "cl2/cl-",
+        terms: &[
+            ("clo3-/cl--base", 12.0, 1.0),
+            ("clo3-/cl2", -10.0, 0.0),
+            ("cl2/cl-", -2.0, 0.0),
+        ],
+        judged_electrons: 2.0,
+    },
+];
+
+/// The number before `unit` at the end of `text`'s clause `… {number}{unit}`.
+fn number_before(text: &str, unit: &str) -> f64 {
+    let end = text
+        .find(unit)
+        .unwrap_or_else(|| panic!("no '{unit}' in {text}"));
+    let start = text[..end].rfind(' ').map_or(0, |i| i + 1);
+    text[start..end].parse().unwrap()
+}
+
+#[test]
+fn the_builtin_inconsistencies_are_found_with_their_mismatch_and_sources() {
+    let options = CheckOptions {
+        formation: None,
+        ..CheckOptions::default()
+    };
+    for cycle in &CYCLES {
+        let path = format!("tests/data/consistency/{}", cycle.fixture);
+        let text = std::fs::read_to_string(&path).unwrap();
+        let table: toml::Table = toml::from_str(&text).unwrap();
+        let couple = |id: &str| {
+            table["couple"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .find(|c| c["id"].as_str() == Some(id))
+                .unwrap()
+                .clone()
+        };
+        let residual: f64 = cycle
+            .terms
+            .iter()
+            .map(|&(id, electrons, hydroxide_per_electron)| {
+                let e0 = couple(id)["e0"].as_float().unwrap();
+                electrons * (e0 + hydroxide_per_electron * water_volts())
+            })
+            .sum();
+        let expected_mv = (residual / cycle.judged_electrons).abs() * 1000.0;
+        let report = check(
+            vec![couplet::check::load_file(Path::new(&path)).unwrap()],
+            &options,
+        );
+        let findings: Vec<_> = report
+            .findings
+            .iter()
+            .filter(|f| f.rule.code() == "CPL403")
+            .collect();
+        assert_eq!(findings.len(), 1, "{}: {findings:?}", cycle.fixture);
+        let finding = findings[0];
+        // On the judged couple's e0.
+        let judged = couple(cycle.judged);
+        let (line, _) = report.line_column(finding);
+        let e0_line = text
+            .lines()
+            .enumerate()
+            .skip_while(|(_, l)| *l != format!("id = \"{}\"", cycle.judged))
+            .find(|(_, l)| l.starts_with("e0 = "))
+            .map(|(i, _)| i + 1);
+        assert_eq!(
+            Some(line),
+            e0_line,
+            "{}: {}",
+            cycle.fixture,
+            finding.message
+        );
+        let unit = if cycle.terms.len() == 2 {
+            " mV apart"
+        } else {
+            " mV off"
+        };
+        let found_mv = number_before(&finding.message, unit);
+        // The message rounds to 0.1 mV; pKw 13.995 here against 13.9947 of the library's Kw(T)
+        // moves a base term by (h·ν/n)·59.16 mV·0.0003, up to 0.1 mV in these cycles.
+        assert!(
+            (found_mv - expected_mv).abs() <= 0.2,
+            "{}: {found_mv} mV, expected {expected_mv:.2} mV: {}",
+            cycle.fixture,
+            finding.message
+        );
+        assert!(expected_mv > 10.0, "{}", cycle.fixture);
+        // Every entry's source is named.
+        for (id, _, _) in cycle.terms {
+            let source = couple(id)["source"].as_str().unwrap().to_owned();
+            assert!(
+                finding.message.contains(&source),
+                "{}: {source} not in {}",
+                cycle.fixture,
+                finding.message
+            );
+        }
+        // For a cycle, the e0 that closes it: Σ ν·n·E = 0 solved for the judged E.
+        if cycle.terms.len() == 3 {
+            let (_, nu, _) = cycle.terms.iter().find(|t| t.0 == cycle.judged).unwrap();
+            let e0 = judged["e0"].as_float().unwrap();
+            let closing = e0 - residual / nu;
+            let predicted = number_before(&finding.message, " V, not");
+            assert!(
+                (predicted - closing).abs() < 2e-4,
+                "{}: {predicted} vs {closing}",
+                cycle.fixture
+            );
+        }
+    }
+}
+
+#[test]
+fn the_additivity_threshold_is_a_flag() {
+    // Cr3+/Cr2+ is 20.0 mV off in the chromium cycle (see CYCLES).
+    let path = "tests/data/consistency/chromium.toml";
+    let (json, _) = run_json(&["--additivity-threshold", "0.015", path]);
+    assert!(codes(&json).iter().any(|c| c == "CPL403"), "{json}");
+    let (json, _) = run_json(&["--additivity-threshold", "0.025", path]);
+    assert!(!codes(&json).iter().any(|c| c == "CPL403"), "{json}");
+    // A warning: the job fails only with --deny-warnings.
+    let (_, status) = run_json(&["--formation-threshold", "0", path]);
+    assert_eq!(status, 0);
+    let (_, status) = run_json(&["--formation-threshold", "0", "--deny-warnings", path]);
+    assert_eq!(status, 1);
 }
