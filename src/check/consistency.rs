@@ -129,9 +129,9 @@ impl Numbers {
 }
 
 /// A couple as the table-wide checks keep it, independent of how it was written: electrons on
-/// the left, species (by [`species_key`]) in a fixed order with their numbers in lowest
-/// integers, OH- rewritten as H2O − H+ (the acid form), and how many OH- per electron were
-/// written (0 for a couple written for acid or neutral solution).
+/// the left, species (formula and phase, as Q reads them) in a fixed order with their numbers
+/// in lowest integers, OH- rewritten as H2O − H+ (the acid form), and how many OH- per
+/// electron were written (0 for a couple written for acid or neutral solution).
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct WrittenCouple {
     species: Vec<String>,
