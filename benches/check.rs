@@ -1,5 +1,10 @@
 //! `couplet check` on a generated table of 100,000 couples (built-in entries, varied), beside
 //! the time to only parse the same text with the toml crate.
+//!
+//! `COUPLET_BENCH_TABLES=DIR cargo bench --bench check` writes the generated tables of 10,000,
+//! 100,000 and 1,000,000 couples to `DIR/gen-10k.toml`, `gen-100k.toml`, `gen-1m.toml` and
+//! stops: those are the files the `/usr/bin/time -v couplet check` figures in DEVELOPERS.md
+//! were measured on (keep them out of git).
 
 use couplet::check::{CheckOptions, SourceFile, check};
 use couplet::notation::parse_equation;
@@ -13,15 +18,15 @@ use std::time::Duration;
 
 const COUPLES: usize = 100_000;
 
-/// 100,000 entries cycling through the built-in table: unique ids, every third reaction
+/// `couples` entries cycling through the built-in table: unique ids, every third reaction
 /// written with doubled coefficients (the same couple), e0 moved by up to ±3 mV (inside the
 /// default tolerance), every tenth reaction in a literal string.
-pub fn generated_table() -> String {
+pub fn generated_table(couples: usize) -> String {
     let builtin = std::fs::read_to_string("data/potentials.toml").expect("data/potentials.toml");
     let table = CoupleFile::from_text(&builtin, FileFormat::Toml);
-    let mut text = String::with_capacity(COUPLES * 200);
+    let mut text = String::with_capacity(couples * 160);
     text.push_str("# generated for the benchmark from data/potentials.toml\n");
-    for k in 0..COUPLES {
+    for k in 0..couples {
         let record = &table.records[k % table.records.len()];
         let reaction = &record.reaction.as_ref().unwrap().value;
         let reaction = if k % 3 == 1 {
@@ -58,7 +63,16 @@ pub fn generated_table() -> String {
 }
 
 fn bench(c: &mut Criterion) {
-    let text = generated_table();
+    if let Some(dir) = std::env::var_os("COUPLET_BENCH_TABLES") {
+        let dir = std::path::PathBuf::from(dir);
+        for (name, couples) in [("10k", 10_000), ("100k", 100_000), ("1m", 1_000_000)] {
+            let path = dir.join(format!("gen-{name}.toml"));
+            std::fs::write(&path, generated_table(couples)).expect("the table is written");
+            eprintln!("wrote {}", path.display());
+        }
+        return;
+    }
+    let text = generated_table(COUPLES);
     eprintln!(
         "generated {COUPLES} couples, {:.1} MB",
         text.len() as f64 / 1e6
@@ -71,6 +85,14 @@ fn bench(c: &mut Criterion) {
     });
     group.bench_function("read_records", |b| {
         b.iter(|| black_box(CoupleFile::from_text(black_box(&text), FileFormat::Toml)))
+    });
+    group.bench_function("read_in_pieces_and_check", |b| {
+        b.iter(|| {
+            let file = SourceFile::in_pieces("gen.toml", text.clone(), FileFormat::Toml)
+                .expect("the generated table can be cut");
+            let report = check(vec![file], &CheckOptions::default());
+            black_box(report.findings.len())
+        })
     });
     group.bench_function("read_and_check", |b| {
         b.iter(|| {

@@ -9,6 +9,7 @@
 //!   ±2 mV/K (from memory): a larger value is most often µV/K typed as mV/K.
 
 use super::WorkBudget;
+use super::consistency::{TableEntry, WrittenCouple};
 use super::{CheckOptions, Finding, Fix, Rule};
 use crate::balance::{
     BalanceError, BalanceOptions, BalancedReaction, ElectronRule, Medium, balance_counting,
@@ -18,6 +19,7 @@ use crate::reaction::Reaction;
 use crate::table::{CoupleFile, CoupleRecord, Field, ProblemKind};
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
+use std::collections::HashMap;
 use std::sync::LazyLock;
 
 /// Largest |e0| taken as plausible, in volts.
@@ -33,39 +35,17 @@ static PROTON: LazyLock<Species> =
 static HYDROXIDE: LazyLock<Species> =
     LazyLock::new(|| parse_species("OH-").expect("built-in species parse"));
 
-/// What the table-wide checks need from one entry.
-#[derive(Clone, Debug)]
-pub struct JudgedEntry {
-    /// The file (index into the report's files).
-    pub file: usize,
-    /// The couple (index into the file's records).
-    pub record: usize,
-    /// The id and where it was written.
-    pub id: Option<(String, Span)>,
-    /// The reaction, when it is a balanced reduction with a usable e0 (what the table-wide
-    /// checks compare).
-    pub reduction: Option<Reaction>,
-    /// e0 in volts when present and finite, with its span.
-    pub e0_volts: Option<(f64, Span)>,
-    /// Where the entry starts.
-    pub span: Span,
-}
-
 /// The medium an entry declares.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
 enum DeclaredMedium {
     Acid,
     Base,
     Neutral,
 }
 
-/// All findings of one file's entries, and what the table-wide checks need.
-pub fn check_file(
-    file_index: usize,
-    file: &CoupleFile,
-    options: &CheckOptions,
-    budget: &WorkBudget,
-) -> (Vec<Finding>, Vec<JudgedEntry>) {
+/// The findings of a file's form: problems the reader found and unknown top-level keys.
+/// `text` is the whole file's (a piece's spans are file offsets).
+pub fn check_form(file_index: usize, text: &str, file: &CoupleFile) -> Vec<Finding> {
     let mut findings = Vec::new();
     let finding = |rule, span, message: String| Finding {
         rule,
@@ -80,7 +60,7 @@ pub fn check_file(
             (ProblemKind::MissingKey, Some("e0")) => Rule::MissingE0,
             (ProblemKind::MissingKey, _) => Rule::MissingReaction,
             (ProblemKind::WrongType, Some(key @ ("e0" | "dedt"))) => {
-                let written = file.text.get(problem.span.start..problem.span.end);
+                let written = text.get(problem.span.start..problem.span.end);
                 if let Some(suggestion) = written.and_then(|w| unit_suggestion(key, w)) {
                     let mut f = finding(
                         Rule::MixedUnits,
@@ -108,29 +88,27 @@ pub fn check_file(
             format!("unknown top-level key '{}'", key.value),
         ));
     }
-    // Entries are independent: large files are judged in chunks on the available cores, and
-    // the chunks joined in file order so that the output does not depend on the split.
+    findings
+}
+
+/// The findings of records judged one by one, and what the table-wide checks need of each.
+/// Many records are judged in chunks on the available cores, and the chunks joined in file
+/// order so that the output does not depend on the split.
+pub fn check_records(
+    file_index: usize,
+    records: &[CoupleRecord],
+    options: &CheckOptions,
+    budget: &WorkBudget,
+) -> (Vec<Finding>, Vec<TableEntry>) {
     let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
-    let chunk = if file.records.len() >= PARALLEL_FROM_ENTRIES && threads > 1 {
-        file.records.len().div_ceil(threads)
-    } else {
-        file.records.len().max(1)
-    };
-    let judge = |records: &[CoupleRecord]| {
-        let mut findings = Vec::new();
-        let mut judged = Vec::with_capacity(records.len());
-        for record in records {
-            let (entry_findings, entry) = check_record(file_index, record, options, budget);
-            findings.extend(entry_findings);
-            judged.push(entry);
-        }
-        (findings, judged)
-    };
-    let parts: Vec<(Vec<Finding>, Vec<JudgedEntry>)> = std::thread::scope(|scope| {
-        let handles: Vec<_> = file
-            .records
+    if records.len() < PARALLEL_FROM_ENTRIES || threads == 1 {
+        return judge_records(file_index, records, options, budget);
+    }
+    let chunk = records.len().div_ceil(threads);
+    let parts: Vec<(Vec<Finding>, Vec<TableEntry>)> = std::thread::scope(|scope| {
+        let handles: Vec<_> = records
             .chunks(chunk)
-            .map(|records| scope.spawn(move || judge(records)))
+            .map(|records| scope.spawn(move || judge_records(file_index, records, options, budget)))
             .collect();
         handles
             .into_iter()
@@ -140,12 +118,31 @@ pub fn check_file(
             })
             .collect()
     });
-    let mut judged = Vec::with_capacity(file.records.len());
-    for (part_findings, part_judged) in parts {
+    let mut findings = Vec::new();
+    let mut entries = Vec::with_capacity(records.len());
+    for (part_findings, part_entries) in parts {
         findings.extend(part_findings);
-        judged.extend(part_judged);
+        entries.extend(part_entries);
     }
-    (findings, judged)
+    (findings, entries)
+}
+
+/// As [`check_records`], on the calling thread.
+pub fn judge_records(
+    file_index: usize,
+    records: &[CoupleRecord],
+    options: &CheckOptions,
+    budget: &WorkBudget,
+) -> (Vec<Finding>, Vec<TableEntry>) {
+    let mut findings = Vec::new();
+    let mut entries = Vec::with_capacity(records.len());
+    let mut memo = Memo::new();
+    for record in records {
+        let (entry_findings, entry) = check_record(file_index, record, options, budget, &mut memo);
+        findings.extend(entry_findings);
+        entries.push(entry);
+    }
+    (findings, entries)
 }
 
 fn unit_of(key: &str) -> &'static str {
@@ -183,12 +180,17 @@ fn trim_float(value: f64) -> String {
     }
 }
 
+/// Reactions already judged in this batch, by text and declared medium, with spans relative
+/// to the start of the reaction text.
+type Memo = HashMap<(String, Option<DeclaredMedium>), Analysis>;
+
 fn check_record(
     file_index: usize,
     record: &CoupleRecord,
     options: &CheckOptions,
     budget: &WorkBudget,
-) -> (Vec<Finding>, JudgedEntry) {
+    memo: &mut Memo,
+) -> (Vec<Finding>, TableEntry) {
     let mut findings = Vec::new();
     let mut push = |rule, span, message: String, suggestion: Option<String>, fix| {
         findings.push(Finding {
@@ -234,30 +236,29 @@ fn check_record(
         },
     };
 
-    let mut reduction = None;
-    if let Some(field) = &record.reaction {
-        match parse_equation(&field.value) {
-            Err(error) => {
-                let span = match field.content_start {
-                    Some(_) => Span::new(
-                        field.file_offset(error.span.start),
-                        field.file_offset(error.span.end.max(error.span.start)),
-                    ),
-                    None => field.span,
-                };
-                push(Rule::Notation, span, error.message.clone(), None, None);
-            }
-            Ok(equation) => {
-                let (chemistry, is_reduction) =
-                    check_chemistry(record.index, field, &equation, medium, options, budget);
-                for (rule, span, message, suggestion, fix) in chemistry {
-                    push(rule, span, message, suggestion, fix);
-                }
-                if is_reduction {
-                    reduction = Some(Reaction::from_equation(&equation));
-                }
-            }
+    let analysis = record.reaction.as_ref().map(|field| {
+        // The same reaction text in the same medium, written without escapes, is judged the
+        // same wherever it stands: data lakes repeat couples, so each piece judges each distinct
+        // reaction once and moves the findings to where the others stand.
+        let cacheable = field.content_start.is_some() && field.escapes.is_empty();
+        if !cacheable {
+            return analyse(record.index, field, medium, options, budget);
         }
+        let start = field.content_start.unwrap_or(field.span.start);
+        let key = (field.value.clone(), medium);
+        memo.entry(key)
+            .or_insert_with(|| {
+                analyse(record.index, field, medium, options, budget).relative(field.span, start)
+            })
+            .placed(field.span, start, record.index)
+    });
+    let (mut couple, mut formation_e0) = (None, None);
+    if let Some(analysis) = analysis {
+        for (rule, span, message, suggestion, fix) in analysis.findings {
+            push(rule, span, message, suggestion, fix);
+        }
+        couple = analysis.couple;
+        formation_e0 = analysis.formation_e0;
     }
 
     let mut e0_volts = None;
@@ -347,20 +348,125 @@ fn check_record(
         );
     }
 
-    let entry = JudgedEntry {
+    if options.refuse_unverified {
+        findings.extend(super::verification::check_record(file_index, record));
+    }
+    // The table-wide checks compare potentials: a reaction without a usable e0 takes no part
+    // in them; of one that does, only its compact couple is kept.
+    let couple = match (couple, e0_volts) {
+        (Some(couple), Some((e0, span))) => {
+            if let (Some(formation), Some((computed, rows))) = (&options.formation, &formation_e0) {
+                findings.extend(super::formation::finding(
+                    file_index, e0, span, *computed, rows, formation,
+                ));
+            }
+            Some((couple, e0, span))
+        }
+        _ => None,
+    };
+    let entry = TableEntry {
         file: file_index,
-        record: record.index,
-        id: record.id.as_ref().map(|f| (f.value.clone(), f.span)),
-        // The table-wide checks compare potentials: a reaction without a usable e0 takes no
-        // part in them, so it is not kept (a parsed reaction is the largest part of an entry).
-        reduction: reduction.filter(|_| e0_volts.is_some()),
-        e0_volts,
         span: record.span,
+        id: record.id.as_ref().map(|f| (f.value.clone(), f.span)),
+        couple,
+        source: record.source.as_ref().map(|f| f.span),
     };
     (findings, entry)
 }
 
 type ChemistryFinding = (Rule, Span, String, Option<String>, Option<Fix>);
+
+/// What judging one reaction gives: its findings, and for a balanced reduction its compact
+/// couple and the E° formation data give it (with the rows used).
+#[derive(Clone, Debug)]
+struct Analysis {
+    findings: Vec<ChemistryFinding>,
+    couple: Option<std::sync::Arc<WrittenCouple>>,
+    formation_e0: Option<(f64, String)>,
+}
+
+/// Marks a span that is the whole reaction value in a stored [`Analysis`].
+const WHOLE_VALUE: Span = Span {
+    start: usize::MAX,
+    end: usize::MAX,
+};
+
+impl Analysis {
+    /// The analysis of a value at `value` (its text starting at `start`) with spans relative to
+    /// `start`, so that it can be placed at another value of the same text.
+    fn relative(mut self, value: Span, start: usize) -> Analysis {
+        for finding in &mut self.findings {
+            // (Span's == ignores positions: compare them.)
+            finding.1 = if (finding.1.start, finding.1.end) == (value.start, value.end) {
+                WHOLE_VALUE
+            } else {
+                Span::new(finding.1.start - start, finding.1.end - start)
+            };
+        }
+        self
+    }
+
+    /// A relative analysis placed at a value at `value` whose text starts at `start`, for
+    /// couple `record`.
+    fn placed(&self, value: Span, start: usize, record: usize) -> Analysis {
+        let mut placed = self.clone();
+        for finding in &mut placed.findings {
+            finding.1 = if finding.1.start == WHOLE_VALUE.start {
+                value
+            } else {
+                Span::new(finding.1.start + start, finding.1.end + start)
+            };
+            if let Some(fix) = &mut finding.4 {
+                fix.record = record;
+                fix.span = value;
+            }
+        }
+        placed
+    }
+}
+
+/// Judges one reaction value.
+fn analyse(
+    record_index: usize,
+    field: &Field<String>,
+    medium: Option<DeclaredMedium>,
+    options: &CheckOptions,
+    budget: &WorkBudget,
+) -> Analysis {
+    let mut analysis = Analysis {
+        findings: Vec::new(),
+        couple: None,
+        formation_e0: None,
+    };
+    match parse_equation(&field.value) {
+        Err(error) => {
+            let span = match field.content_start {
+                Some(_) => Span::new(
+                    field.file_offset(error.span.start),
+                    field.file_offset(error.span.end.max(error.span.start)),
+                ),
+                None => field.span,
+            };
+            analysis
+                .findings
+                .push((Rule::Notation, span, error.message.clone(), None, None));
+        }
+        Ok(equation) => {
+            let (chemistry, is_reduction) =
+                check_chemistry(record_index, field, &equation, medium, options, budget);
+            analysis.findings = chemistry;
+            if is_reduction {
+                let reaction = Reaction::from_equation(&equation);
+                analysis.couple = WrittenCouple::of(&reaction).map(std::sync::Arc::new);
+                analysis.formation_e0 = options
+                    .formation
+                    .as_ref()
+                    .and_then(|formation| super::formation::formation_e0(&reaction, formation));
+            }
+        }
+    }
+    analysis
+}
 
 /// The file span of a species inside the reaction string (the whole string when the text
 /// cannot be mapped one to one).
@@ -467,7 +573,8 @@ fn check_chemistry(
         // balancer's half-reaction (electrons added) as the fix.
         let suggested = suggest();
         let message = "no e- is written: a couple is a half-reaction, written as a reduction";
-        let (message, suggestion, fix) = suggested.into_parts(message, equation, record_index);
+        let (message, suggestion, fix) =
+            suggested.into_parts(message, equation, record_index, field.span);
         findings.push((Rule::NoElectrons, whole, message, suggestion, fix));
         return (findings, false);
     } else if electrons.is_positive() {
@@ -533,7 +640,8 @@ fn check_chemistry(
             }
             (Rule::AtomsNotConserved, message)
         };
-        let (message, suggestion, fix) = suggested.into_parts(&message, equation, record_index);
+        let (message, suggestion, fix) =
+            suggested.into_parts(&message, equation, record_index, field.span);
         findings.push((rule, whole, message, suggestion, fix));
     }
 
@@ -579,6 +687,7 @@ impl Suggestion {
         message: &str,
         written: &Equation,
         record: usize,
+        span: Span,
     ) -> (String, Option<String>, Option<Fix>) {
         match self {
             Suggestion::Balanced(balanced) => {
@@ -589,6 +698,7 @@ impl Suggestion {
                         Some(text.clone()),
                         Some(Fix {
                             record,
+                            span,
                             reaction: text,
                         }),
                     ),

@@ -16,7 +16,7 @@
 //! between write and rename leaves something recognisable; such leftovers older than
 //! [`STALE_TEMPORARY`] are removed by the next fix of the same file.
 
-use super::Fix;
+use super::{Fix, SourceFile};
 use crate::table::{CoupleFile, FileFormat};
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -118,6 +118,55 @@ pub fn apply(file: &CoupleFile, fixes: &[&Fix]) -> Result<String, FixError> {
         return Err(FixError::ReadBack);
     }
     Ok(text)
+}
+
+/// The text of `source` with the given fixes applied: [`apply`] for a file whose records are
+/// kept. A file read in pieces holds only plain `[[couple]]` tables (TOML) or rows (CSV), so
+/// each reaction value is replaced where it is written, in the quoting style it had, and the
+/// new text is read back piece by piece: the same number of couples, each fixed one reading
+/// as intended.
+pub fn apply_source(source: &SourceFile, fixes: &[&Fix]) -> Result<String, FixError> {
+    if !source.is_in_pieces() {
+        return apply(&source.file, fixes);
+    }
+    let file = &source.file;
+    let mut edits = Vec::with_capacity(fixes.len());
+    for fix in fixes {
+        let written = file
+            .text
+            .get(fix.span.start..fix.span.end)
+            .ok_or(FixError::NotFound(fix.record))?;
+        edits.push((
+            fix.span.start,
+            fix.span.end,
+            written_value(file.format, written, &fix.reaction),
+        ));
+    }
+    // From the end, so earlier offsets stay valid.
+    edits.sort_by_key(|e| std::cmp::Reverse(e.0));
+    let mut text = file.text.clone();
+    for (start, end, replacement) in edits {
+        text.replace_range(start..end, &replacement);
+    }
+    let reread = SourceFile::in_pieces(source.name.clone(), text, file.format)
+        .map_err(|_| FixError::ReadBack)?;
+    let wanted: std::collections::HashMap<usize, &str> = fixes
+        .iter()
+        .map(|f| (f.record, f.reaction.as_str()))
+        .collect();
+    let mut reads_back = reread.couples() == source.couples();
+    reread.for_each_record(|record| {
+        if let Some(reaction) = wanted.get(&record.index) {
+            reads_back &= record
+                .reaction
+                .as_ref()
+                .is_some_and(|r| r.value == *reaction);
+        }
+    });
+    if !reads_back {
+        return Err(FixError::ReadBack);
+    }
+    Ok(reread.file.text)
 }
 
 fn replace_keeping_decor(value: &mut toml_edit::Value, text: &str) {

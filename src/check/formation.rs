@@ -5,8 +5,9 @@
 //! hydrates), so the finding is a warning, and its default threshold, 20 mV, sits above the
 //! spread of careful compilations for most couples.
 
-use super::entry::JudgedEntry;
 use super::{Finding, Rule};
+use crate::notation::Span;
+use crate::reaction::Reaction;
 use crate::thermo::{FormationData, reaction_thermo};
 
 /// Default threshold of rule CPL306, in volts.
@@ -30,39 +31,39 @@ impl Default for FormationCheck {
     }
 }
 
-/// Findings of rule CPL306 over the judged entries of every file.
-pub fn check_entries(judged: &[JudgedEntry], check: &FormationCheck) -> Vec<Finding> {
-    let mut findings = Vec::new();
-    for entry in judged {
-        let (Some(reaction), Some((e0, span))) = (&entry.reduction, entry.e0_volts) else {
-            continue;
-        };
-        // `reduction` is set only for balanced reductions, so this is a half-reaction vs SHE.
-        let Ok(thermo) = reaction_thermo(reaction, check.data, None) else {
-            continue;
-        };
-        let Some(computed) = thermo.e0_volts() else {
-            continue;
-        };
-        let difference = e0 - computed;
-        if difference.abs() <= check.threshold_volts {
-            continue;
-        }
-        findings.push(Finding {
-            rule: Rule::E0VsFormationData,
-            file: entry.file,
-            span,
-            message: format!(
-                "e0 = {e0} V differs by {:+.1} mV from {computed:.4} V computed from formation data ({}), beyond the {:.0} mV threshold; the compilations may differ, or the couple's value or species may be wrong",
-                difference * 1000.0,
-                compact_rows(&thermo),
-                check.threshold_volts * 1000.0
-            ),
-            suggestion: None,
-            fix: None,
-        });
+/// The E° formation data give a balanced reduction (a half-reaction vs SHE), with the rows
+/// used, when every species has data.
+pub fn formation_e0(reaction: &Reaction, check: &FormationCheck) -> Option<(f64, String)> {
+    let thermo = reaction_thermo(reaction, check.data, None).ok()?;
+    Some((thermo.e0_volts()?, compact_rows(&thermo)))
+}
+
+/// The finding of rule CPL306 for an entry with `e0` (at `span`) when formation data give
+/// `computed` (from `rows`).
+pub fn finding(
+    file: usize,
+    e0: f64,
+    span: Span,
+    computed: f64,
+    rows: &str,
+    check: &FormationCheck,
+) -> Option<Finding> {
+    let difference = e0 - computed;
+    if difference.abs() <= check.threshold_volts {
+        return None;
     }
-    findings
+    Some(Finding {
+        rule: Rule::E0VsFormationData,
+        file,
+        span,
+        message: format!(
+            "e0 = {e0} V differs by {:+.1} mV from {computed:.4} V computed from formation data ({rows}), beyond the {:.0} mV threshold; the compilations may differ, or the couple's value or species may be wrong",
+            difference * 1000.0,
+            check.threshold_volts * 1000.0
+        ),
+        suggestion: None,
+        fix: None,
+    })
 }
 
 /// `Fe2+(aq) [crc-ions line 120], Fe(s) [crc-substances line 700]`: enough to find the rows.

@@ -1,15 +1,53 @@
 //! Turning the paths a user gives into files to check: directories searched for `*.toml` and
-//! `*.csv`, a size guard, binary files recognised before parsing.
+//! `*.csv`, size and line-length guards, binary files recognised before parsing, and the choice
+//! between reading a file whole and reading it in pieces ([`super::pieces`]).
 
 use super::{Rule, SourceFile};
 use crate::table::{CoupleFile, FileFormat};
 use std::io::Read;
 use std::path::{Path, PathBuf};
 
-/// The largest file the checker reads: 32 MiB, about 200,000 couples (the couple-file
-/// reader's own limit). Larger files are reported (rule `CPL106`) without being read, so
-/// memory stays bounded.
+/// The couple-file reader's bound for the other commands (`--table`, standard input): 32 MiB.
+/// Files the checker cannot read in pieces are held to it too, since reading one whole needs
+/// about twenty times its size.
 pub const MAX_FILE_BYTES: u64 = crate::table::record::MAX_COUPLE_FILE_BYTES;
+
+/// The largest file `couplet check` reads by default: 2 GiB, about 13 million couples
+/// ([`LoadOptions::max_file_bytes`]; the CLI's `--max-file-mib`). Checking holds the text
+/// and a compact form of each distinct couple, so memory stays within a few times the file.
+pub const DEFAULT_CHECK_FILE_BYTES: u64 = 2 << 30;
+
+/// In a file over [`MAX_FILE_BYTES`], the longest line read: 16 MiB. A couple's lines are a
+/// few hundred bytes; a longer line is refused as soon as reading reaches it, so a multi-GB
+/// file of one line is neither held nor parsed.
+pub const MAX_LINE_BYTES: usize = 16 << 20;
+
+/// Files at least this large are read in pieces when they can be cut safely.
+const IN_PIECES_FROM_BYTES: usize = 1 << 20;
+
+/// How to read files for checking.
+#[derive(Clone, Copy, Debug)]
+pub struct LoadOptions {
+    /// Larger files are reported (rule `CPL106`) without being read.
+    pub max_file_bytes: u64,
+}
+
+impl Default for LoadOptions {
+    fn default() -> LoadOptions {
+        LoadOptions {
+            max_file_bytes: DEFAULT_CHECK_FILE_BYTES,
+        }
+    }
+}
+
+fn mib(bytes: u64) -> String {
+    let value = bytes as f64 / 1024.0 / 1024.0;
+    if value.fract() == 0.0 {
+        format!("{value:.0} MiB")
+    } else {
+        format!("{value:.1} MiB")
+    }
+}
 
 /// Why the checker could not run on a path (exit status 2).
 #[derive(Debug, thiserror::Error)]
@@ -111,9 +149,15 @@ fn walk(dir: &Path, out: &mut Vec<(PathBuf, bool)>) -> Result<(), LoadError> {
     Ok(())
 }
 
-/// Reads one file for checking. Files over [`MAX_FILE_BYTES`] and binary files (a NUL byte)
-/// come back with a load finding and no records.
+/// Reads one file for checking with the default [`LoadOptions`].
 pub fn load_file(path: &Path) -> Result<SourceFile, LoadError> {
+    load_file_with(path, &LoadOptions::default())
+}
+
+/// Reads one file for checking. Files over [`LoadOptions::max_file_bytes`], files over
+/// [`MAX_FILE_BYTES`] with a line over [`MAX_LINE_BYTES`] or that cannot be cut into pieces,
+/// and binary files (a NUL byte) come back with a load finding and no records.
+pub fn load_file_with(path: &Path, options: &LoadOptions) -> Result<SourceFile, LoadError> {
     let name = path.display().to_string();
     let unreadable = |source| LoadError::Unreadable {
         path: name.clone(),
@@ -131,34 +175,51 @@ pub fn load_file(path: &Path) -> Result<SourceFile, LoadError> {
     }
     let size = metadata.len();
     let format = FileFormat::from_path(path);
-    if size > MAX_FILE_BYTES {
-        return Ok(SourceFile::unread(
-            name,
-            format,
-            Rule::FileTooLarge,
-            format!(
-                "the file is {:.1} MiB; the checker reads files up to {} MiB: split the table into several files",
-                size as f64 / 1024.0 / 1024.0,
-                MAX_FILE_BYTES / 1024 / 1024
-            ),
-        ));
+    let limit = options.max_file_bytes;
+    let refuse =
+        |message: String| SourceFile::unread(name.clone(), format, Rule::FileTooLarge, message);
+    if size > limit {
+        return Ok(refuse(format!(
+            "the file is {}; the checker reads files up to {} (--max-file-mib raises the bound): split the table or raise it",
+            mib(size),
+            mib(limit)
+        )));
     }
-    let mut bytes = Vec::with_capacity(size as usize);
     // take(): the file may grow between the size check and the read.
-    handle
-        .take(MAX_FILE_BYTES + 1)
-        .read_to_end(&mut bytes)
-        .map_err(unreadable)?;
-    if bytes.len() as u64 > MAX_FILE_BYTES {
-        return Ok(SourceFile::unread(
-            name,
-            format,
-            Rule::FileTooLarge,
-            format!(
-                "the file grew past {} MiB while it was read: split the table into several files",
-                MAX_FILE_BYTES / 1024 / 1024
-            ),
-        ));
+    let mut reader = handle.take(limit + 1);
+    let mut bytes = Vec::with_capacity(usize::try_from(size).unwrap_or(0));
+    let check_lines = size > MAX_FILE_BYTES;
+    let mut chunk = vec![0u8; 4 << 20];
+    let (mut line_start, mut lines) = (0usize, 1usize);
+    loop {
+        let read = match reader.read(&mut chunk) {
+            Ok(0) => break,
+            Ok(read) => read,
+            Err(error) if error.kind() == std::io::ErrorKind::Interrupted => continue,
+            Err(error) => return Err(unreadable(error)),
+        };
+        let new = &chunk[..read];
+        if check_lines {
+            if let Some(last) = new.iter().rposition(|&b| b == b'\n') {
+                line_start = bytes.len() + last + 1;
+                lines += new.iter().filter(|&&b| b == b'\n').count();
+            }
+            if bytes.len() + read - line_start > MAX_LINE_BYTES {
+                return Ok(refuse(format!(
+                    "line {lines} (from byte {line_start}) is longer than {}, the longest line the checker reads in a file over {}: a couple file has short lines",
+                    mib(MAX_LINE_BYTES as u64),
+                    mib(MAX_FILE_BYTES)
+                )));
+            }
+        }
+        bytes.extend_from_slice(new);
+    }
+    drop(chunk);
+    if bytes.len() as u64 > limit {
+        return Ok(refuse(format!(
+            "the file grew past {} while it was read: split the table",
+            mib(limit)
+        )));
     }
     Ok(source_from_owned_bytes(&name, bytes, format))
 }
@@ -169,7 +230,7 @@ pub fn source_from_bytes(name: &str, bytes: &[u8], format: FileFormat) -> Source
 }
 
 /// As [`source_from_bytes`], taking the bytes: valid UTF-8 becomes the file's text without a
-/// copy (a 32 MiB file is held once, not twice).
+/// copy (a large file is held once, not twice), read in pieces when it is large.
 fn source_from_owned_bytes(name: &str, bytes: Vec<u8>, format: FileFormat) -> SourceFile {
     if let Some(at) = bytes.iter().position(|&b| b == 0) {
         return SourceFile::unread(
@@ -179,9 +240,38 @@ fn source_from_owned_bytes(name: &str, bytes: Vec<u8>, format: FileFormat) -> So
             format!("binary file (NUL byte at offset {at}): a couple file is text"),
         );
     }
-    match String::from_utf8(bytes) {
-        Ok(text) => SourceFile::new(name, CoupleFile::from_string(text, format)),
-        Err(error) => SourceFile::new(name, CoupleFile::from_bytes(error.as_bytes(), format)),
+    let text = match String::from_utf8(bytes) {
+        Ok(text) => text,
+        Err(error) => {
+            return SourceFile::new(name, CoupleFile::from_bytes(error.as_bytes(), format));
+        }
+    };
+    if text.len() < IN_PIECES_FROM_BYTES {
+        return SourceFile::new(name, CoupleFile::from_string(text, format));
+    }
+    match SourceFile::in_pieces(name, text, format) {
+        Ok(source) => source,
+        Err((text, _)) if text.len() as u64 <= MAX_FILE_BYTES => {
+            SourceFile::new(name, CoupleFile::from_string(text, format))
+        }
+        Err((text, why)) => {
+            let line = text.as_bytes()[..why.offset.min(text.len())]
+                .iter()
+                .filter(|&&b| b == b'\n')
+                .count()
+                + 1;
+            SourceFile::unread(
+                name,
+                format,
+                Rule::FileTooLarge,
+                format!(
+                    "the file is {} and has {} at line {line}: a file over {} is read a piece at a time, which needs plain [[couple]] tables without multi-line strings (TOML) and closed quoted fields (CSV); split the file or rewrite that part",
+                    mib(text.len() as u64),
+                    why.reason,
+                    mib(MAX_FILE_BYTES)
+                ),
+            )
+        }
     }
 }
 
@@ -194,7 +284,7 @@ pub fn looks_like_couple_file(source: &SourceFile) -> bool {
     }
     let file = &source.file;
     match file.format {
-        FileFormat::Toml => !file.records.is_empty() || !file.problems.is_empty(),
+        FileFormat::Toml => source.couples() > 0 || !file.problems.is_empty(),
         FileFormat::Csv => file
             .text
             .lines()

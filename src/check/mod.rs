@@ -25,16 +25,18 @@ pub mod fix;
 pub mod formation;
 pub mod load;
 pub mod output;
+pub mod pieces;
 mod rules;
 pub mod verification;
 
-pub use load::{LoadError, MAX_FILE_BYTES, load_file};
+pub use load::{DEFAULT_CHECK_FILE_BYTES, LoadError, LoadOptions, MAX_FILE_BYTES, load_file};
 pub use rules::{Rule, Severity};
 
 use crate::notation::Span;
 use crate::reaction::Reaction;
-use crate::table::{CoupleFile, FileFormat};
+use crate::table::{CoupleFile, CoupleRecord, FileFormat};
 use num_rational::BigRational;
+use pieces::Pieces;
 
 /// The electrons that the oxidation-number change of a balanced half-reaction accounts for
 /// (the sum over elements of Δ(oxidation number) × atoms, as a positive number), or `None`
@@ -47,9 +49,12 @@ pub const DEFAULT_TOLERANCE_VOLTS: f64 = 0.01;
 /// How to check.
 #[derive(Clone, Copy, Debug)]
 pub struct CheckOptions {
-    /// How far two potentials that should agree may differ (same couple twice, free-energy
-    /// additivity), in volts.
+    /// How far two potentials of the same couple may differ (rule CPL402), in volts.
     pub tolerance_volts: f64,
+    /// Rule CPL403: how far a couple's e0 may be from what free-energy addition with the other
+    /// couples of a cycle (or its acid or base form through pKw) gives, in volts (default
+    /// [`consistency::DEFAULT_ADDITIVITY_THRESHOLD_VOLTS`], 10 mV).
+    pub additivity_threshold_volts: f64,
     /// The oxidation-number change of a half-reaction (by default from
     /// [`crate::oxidation`]): rule [`Rule::ElectronsVsOxidation`] compares the written
     /// electrons with it. `None` turns that rule off.
@@ -111,6 +116,7 @@ impl Default for CheckOptions {
     fn default() -> CheckOptions {
         CheckOptions {
             tolerance_volts: DEFAULT_TOLERANCE_VOLTS,
+            additivity_threshold_volts: consistency::DEFAULT_ADDITIVITY_THRESHOLD_VOLTS,
             oxidation_number_change: Some(crate::oxidation::oxidation_number_electrons),
             formation: Some(formation::FormationCheck::default()),
             refuse_unverified: false,
@@ -126,14 +132,19 @@ impl Default for CheckOptions {
 pub struct SourceFile {
     /// The path as the user gave it (or as found under a directory they gave).
     pub name: String,
-    /// The records and problems of form.
+    /// The text, and the records and problems of form. A file read in pieces
+    /// ([`SourceFile::in_pieces`]) has its text here but no records: they are read a piece at
+    /// a time while it is checked, and not kept.
     pub file: CoupleFile,
     /// A problem found before the text could be read (too large, binary): reported as a
     /// finding, and the file has no records.
     pub load_finding: Option<(Rule, String)>,
+    /// Where the file is cut when it is read in pieces.
+    pieces: Option<Pieces>,
     /// Byte offsets where lines start, made on first use: locating thousands of findings by
-    /// rescanning the text each time would be quadratic.
-    line_starts: std::sync::OnceLock<Vec<usize>>,
+    /// rescanning the text each time would be quadratic. Kept as u32 below 4 GiB (a million
+    /// couples are about seven million lines).
+    line_starts: std::sync::OnceLock<LineStarts>,
 }
 
 impl SourceFile {
@@ -143,8 +154,34 @@ impl SourceFile {
             name: name.into(),
             file,
             load_finding: None,
+            pieces: None,
             line_starts: std::sync::OnceLock::new(),
         }
+    }
+
+    /// A file whose couples are read a few thousand at a time while it is checked
+    /// ([`pieces`]), so that its records are never all in memory. When the text cannot be cut
+    /// safely between couples, the text comes back with the reason.
+    pub fn in_pieces(
+        name: impl Into<String>,
+        text: String,
+        format: FileFormat,
+    ) -> Result<SourceFile, (String, pieces::Uncuttable)> {
+        let pieces = match Pieces::cut(&text, format) {
+            Ok(pieces) => pieces,
+            Err(why) => return Err((text, why)),
+        };
+        let file = CoupleFile {
+            format,
+            text,
+            records: Vec::new(),
+            problems: Vec::new(),
+            unknown_keys: Vec::new(),
+        };
+        Ok(SourceFile {
+            pieces: Some(pieces),
+            ..SourceFile::new(name, file)
+        })
     }
 
     /// A file that could not be read as text, with the finding that says why.
@@ -160,29 +197,79 @@ impl SourceFile {
         }
     }
 
+    /// How many couples the file holds (its records, or the couples of its pieces).
+    pub fn couples(&self) -> usize {
+        self.pieces
+            .as_ref()
+            .map_or(self.file.records.len(), Pieces::couples)
+    }
+
+    /// Whether the file is read in pieces (its records are not kept).
+    pub fn is_in_pieces(&self) -> bool {
+        self.pieces.is_some()
+    }
+
+    /// Calls `each` with every record of the file in order: the kept records, or each piece's
+    /// records read again from the text.
+    pub fn for_each_record(&self, mut each: impl FnMut(&CoupleRecord)) {
+        match &self.pieces {
+            None => self.file.records.iter().for_each(each),
+            Some(pieces) => {
+                for index in 0..pieces.len() {
+                    let part = pieces.read(
+                        &self.file.text,
+                        self.file.format,
+                        index,
+                        pieces.first(index),
+                    );
+                    part.records.iter().for_each(&mut each);
+                }
+            }
+        }
+    }
+
     /// 1-based line and column (in characters) of a byte offset.
     pub fn line_column(&self, offset: usize) -> (usize, usize) {
         let text = &self.file.text;
         let starts = self.line_starts.get_or_init(|| {
-            std::iter::once(0)
-                .chain(text.match_indices('\n').map(|(i, _)| i + 1))
-                .collect()
+            let starts = std::iter::once(0).chain(text.match_indices('\n').map(|(i, _)| i + 1));
+            match starts.clone().map(u32::try_from).collect() {
+                Ok(small) => LineStarts::Small(small),
+                Err(_) => LineStarts::Large(starts.collect()),
+            }
         });
         let mut offset = offset.min(text.len());
         while !text.is_char_boundary(offset) {
             offset -= 1;
         }
-        let line = starts.partition_point(|&start| start <= offset);
-        let line_start = starts[line - 1];
+        let (line, line_start) = match starts {
+            LineStarts::Small(starts) => {
+                let line = starts.partition_point(|&start| start as usize <= offset);
+                (line, starts[line - 1] as usize)
+            }
+            LineStarts::Large(starts) => {
+                let line = starts.partition_point(|&start| start <= offset);
+                (line, starts[line - 1])
+            }
+        };
         (line, text[line_start..offset].chars().count() + 1)
     }
+}
+
+/// Line starts of a file's text.
+#[derive(Clone, Debug)]
+enum LineStarts {
+    Small(Vec<u32>),
+    Large(Vec<usize>),
 }
 
 /// A rewrite the engine is sure of: the new text of one entry's `reaction`.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Fix {
-    /// The couple (index into the file's records).
+    /// The couple (index among the file's couples).
     pub record: usize,
+    /// Where its `reaction` value is written (quotes included).
+    pub span: Span,
     /// The balanced reaction text to write.
     pub reaction: String,
 }
@@ -244,7 +331,7 @@ impl Report {
         };
         Summary {
             files: self.files.len(),
-            entries: self.files.iter().map(|f| f.file.records.len()).sum(),
+            entries: self.files.iter().map(SourceFile::couples).sum(),
             errors: count(Severity::Error),
             warnings: count(Severity::Warning),
         }
@@ -270,10 +357,14 @@ impl Report {
 }
 
 /// Checks every file on its own, then all of them together.
+///
+/// Entries are judged in batches (a file's records, or a few pieces of a file read in pieces,
+/// on the available cores); what the table-wide checks need of each is handed to them at once,
+/// so only the findings, the ids and one compact form per distinct couple stay in memory.
 pub fn check(files: Vec<SourceFile>, options: &CheckOptions) -> Report {
     let mut findings = Vec::new();
-    let mut judged = Vec::new();
     let budget = WorkBudget::new(options.work_limit);
+    let mut table = consistency::TableChecker::new(options);
     for (index, source) in files.iter().enumerate() {
         if let Some((rule, message)) = &source.load_finding {
             findings.push(Finding {
@@ -286,17 +377,57 @@ pub fn check(files: Vec<SourceFile>, options: &CheckOptions) -> Report {
             });
             continue;
         }
-        let (file_findings, entries) = entry::check_file(index, &source.file, options, &budget);
-        findings.extend(file_findings);
-        judged.extend(entries);
+        let Some(pieces) = &source.pieces else {
+            findings.extend(entry::check_form(index, &source.file.text, &source.file));
+            let (file_findings, entries) =
+                entry::check_records(index, &source.file.records, options, &budget);
+            findings.extend(file_findings);
+            entries.into_iter().for_each(|e| table.add(e));
+            continue;
+        };
+        let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
+        let (text, format) = (&source.file.text, source.file.format);
+        let budget = &budget;
+        let judge_piece = |piece: usize| {
+            let part = pieces.read(text, format, piece, pieces.first(piece));
+            let mut piece_findings = entry::check_form(index, text, &part);
+            let (record_findings, entries) =
+                entry::judge_records(index, &part.records, options, budget);
+            piece_findings.extend(record_findings);
+            (piece_findings, entries)
+        };
+        // Workers take pieces in turn; this thread hands their entries to the table-wide
+        // checks in file order meanwhile (pieces that finish early wait in `waiting`).
+        let next = std::sync::atomic::AtomicUsize::new(0);
+        let (sender, receiver) = std::sync::mpsc::sync_channel(threads);
+        std::thread::scope(|scope| {
+            for _ in 0..threads {
+                let (sender, next) = (sender.clone(), &next);
+                scope.spawn(move || {
+                    loop {
+                        let piece = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+                        if piece >= pieces.len()
+                            || sender.send((piece, judge_piece(piece))).is_err()
+                        {
+                            break;
+                        }
+                    }
+                });
+            }
+            drop(sender);
+            let mut waiting = std::collections::BTreeMap::new();
+            let mut expected = 0;
+            for (piece, judged) in receiver {
+                waiting.insert(piece, judged);
+                while let Some((piece_findings, entries)) = waiting.remove(&expected) {
+                    findings.extend(piece_findings);
+                    entries.into_iter().for_each(|e| table.add(e));
+                    expected += 1;
+                }
+            }
+        });
     }
-    if let Some(formation) = &options.formation {
-        findings.extend(formation::check_entries(&judged, formation));
-    }
-    findings.extend(consistency::check_table(&files, &judged, options));
-    if options.refuse_unverified {
-        findings.extend(verification::check_files(&files));
-    }
+    findings.extend(table.finish(&files));
     findings.sort_by_key(|f| (f.file, f.span.start, f.rule.code()));
     Report { files, findings }
 }

@@ -319,9 +319,8 @@ fn sarif_result(report: &Report, finding: &Finding) -> Value {
 fn fix_replacement(report: &Report, finding: &Finding) -> Option<Value> {
     let fix = finding.fix.as_ref()?;
     let source = &report.files[finding.file];
-    let field = source.file.records.get(fix.record)?.reaction.as_ref()?;
-    let (start_line, start_column) = source.line_column(field.span.start);
-    let (end_line, end_column) = source.line_column(field.span.end);
+    let (start_line, start_column) = source.line_column(fix.span.start);
+    let (end_line, end_column) = source.line_column(fix.span.end);
     Some(json!({
         "deletedRegion": {
             "startLine": start_line,
@@ -332,7 +331,7 @@ fn fix_replacement(report: &Report, finding: &Finding) -> Option<Value> {
         "insertedContent": {
             "text": super::fix::written_value(
                 source.file.format,
-                source.file.text.get(field.span.start..field.span.end).unwrap_or(""),
+                source.file.text.get(fix.span.start..fix.span.end).unwrap_or(""),
                 &fix.reaction,
             )
         },

@@ -64,7 +64,8 @@ pub enum Rule {
     DuplicateId,
     /// The same couple twice with potentials that differ beyond the tolerance.
     ConflictingPotentials,
-    /// Three couples whose potentials break free-energy additivity beyond the tolerance.
+    /// Free energies that do not add up: a cycle of three couples, or the acid and base forms
+    /// of one couple through pKw, beyond the threshold.
     AdditivityViolated,
     /// A couple without `source`.
     MissingSource,
@@ -247,8 +248,8 @@ impl Rule {
             Rule::AdditivityViolated => (
                 "CPL403",
                 "additivity-violated",
-                Error,
-                "couples that combine into another couple agree with it: n3 E3 = n1 E1 + n2 E2 within the tolerance",
+                Warning,
+                "free energies add up: three couples of a cycle obey n1 E1 + n2 E2 = n3 E3, and a couple's acid and base forms agree through pKw, within the threshold (10 mV by default) on the couple the cycle pins most tightly",
             ),
             Rule::MissingSource => (
                 "CPL404",

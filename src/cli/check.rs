@@ -2,10 +2,15 @@
 //! rewriting reactions the balancer balances unambiguously.
 
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use couplet::check::load::{expand_paths, load_file, looks_like_couple_file, source_from_bytes};
+use couplet::check::consistency::DEFAULT_ADDITIVITY_THRESHOLD_VOLTS;
+use couplet::check::load::{
+    LoadOptions, expand_paths, load_file_with, looks_like_couple_file, source_from_bytes,
+};
 use couplet::check::output::{self, Colour};
-use couplet::check::{CheckOptions, DEFAULT_TOLERANCE_VOLTS, Severity, check, fix};
-use couplet::table::{FileFormat, ProblemKind};
+use couplet::check::{
+    CheckOptions, DEFAULT_CHECK_FILE_BYTES, DEFAULT_TOLERANCE_VOLTS, Rule, Severity, check, fix,
+};
+use couplet::table::FileFormat;
 use std::io::{self, IsTerminal, Write};
 use std::path::PathBuf;
 
@@ -17,9 +22,16 @@ pub struct CheckArgs {
     /// Output: human (diagnostics with source lines), json, sarif (SARIF 2.1.0)
     #[arg(long, value_parser = ["human", "json", "sarif"], default_value = "human")]
     format: String,
-    /// How far potentials that should agree may differ, in volts
+    /// Rule CPL402: how far two potentials of the same couple may differ, in volts
     #[arg(long, default_value_t = DEFAULT_TOLERANCE_VOLTS, value_parser = parse_tolerance)]
     tolerance: f64,
+    /// Rule CPL403: how far a couple's e0 may be from what free-energy addition (a cycle of
+    /// three couples, or its acid or base form through pKw) gives, in volts
+    #[arg(long, value_name = "VOLTS", default_value_t = DEFAULT_ADDITIVITY_THRESHOLD_VOLTS, value_parser = parse_tolerance)]
+    additivity_threshold: f64,
+    /// Largest file read, in MiB (default 2048); larger files are reported (CPL106) unread
+    #[arg(long, value_name = "MIB", default_value_t = DEFAULT_CHECK_FILE_BYTES >> 20, value_parser = clap::value_parser!(u64).range(1..=1 << 24))]
+    max_file_mib: u64,
     /// Rule CPL306: largest difference in volts between e0 and the E° from formation data
     /// (default 0.020); 0 turns the rule off
     #[arg(long, value_name = "VOLTS", value_parser = parse_tolerance)]
@@ -59,10 +71,13 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
             return Ok(EXIT_USAGE);
         }
     };
+    let load = LoadOptions {
+        max_file_bytes: args.max_file_mib << 20,
+    };
     let mut sources = Vec::new();
     let mut paths = Vec::new();
     for (path, under_directory) in found {
-        match load_file(&path) {
+        match load_file_with(&path, &load) {
             Ok(source) => {
                 if under_directory && !looks_like_couple_file(&source) {
                     continue;
@@ -78,6 +93,7 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
     }
     let options = CheckOptions {
         tolerance_volts: args.tolerance,
+        additivity_threshold_volts: args.additivity_threshold,
         formation: match args.formation_threshold {
             Some(threshold) if threshold <= 0.0 => None,
             Some(threshold) => Some(couplet::check::formation::FormationCheck {
@@ -100,16 +116,16 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
                 continue;
             }
             // What a broken file holds is a guess of the recovering parser: edit none of it.
-            if source
-                .file
-                .problems
+            // (A file read in pieces keeps no problems: its syntax findings tell.)
+            if report
+                .findings
                 .iter()
-                .any(|p| p.kind == ProblemKind::Syntax)
+                .any(|f| f.file == index && f.rule == Rule::FileSyntax)
             {
                 say!("{}: not fixed: the file has syntax errors", source.name);
                 continue;
             }
-            match fix::apply(&source.file, &fixes) {
+            match fix::apply_source(source, &fixes) {
                 Ok(text) => {
                     diff.push_str(&fix::unified_diff(&source.name, &source.file.text, &text));
                     rewritten.push(fix::Rewrite {
@@ -154,7 +170,7 @@ pub fn run(args: &CheckArgs, out: &mut dyn Write) -> io::Result<u8> {
             );
             let mut sources = Vec::new();
             for path in &paths {
-                match load_file(path) {
+                match load_file_with(path, &load) {
                     Ok(source) => sources.push(source),
                     Err(error) => {
                         say!("error: {error}");

@@ -209,6 +209,31 @@ const KNOWN_TABLE_FINDINGS: [(&str, &str); 17] = [
     ("CPL306", "y3+/y"),
 ];
 
+/// The CPL403 findings the built-in table has now that the rule follows free energies through
+/// intermediates and between acid and base forms (pKw): mixed compilations. Tolerated here
+/// for now, while the table's entries are being fixed and documented elsewhere; remove each
+/// when its data are settled. Mismatches (on the couple named): cr3+/cr2+ 20.0 mV, cl2/cl-
+/// 21.6 mV (with the ClO4- pair) and 37.1 mV (with ClO3-/Cl2 and the base ClO3-/Cl-),
+/// i2(s)/i- 71.5 mV, clo4-/clo3--acid 13.8 mV, clo4-/clo3--base 38.1 mV (its acid form) and
+/// 42.1, 24.3 and 32.1 mV (cycles), hno2/no 19.0 mV twice (with NO3- and with N2O), au+/au
+/// 18.0 mV, io3-/i--acid 11.9 mV (its base form), no2-/no 180.7 mV.
+const KNOWN_CONSISTENCY_FINDINGS: [(&str, &str); 14] = [
+    ("CPL403", "cr3+/cr2+"),
+    ("CPL403", "cl2/cl-"),
+    ("CPL403", "cl2/cl-"),
+    ("CPL403", "i2(s)/i-"),
+    ("CPL403", "clo4-/clo3--acid"),
+    ("CPL403", "clo4-/clo3--base"),
+    ("CPL403", "clo4-/clo3--base"),
+    ("CPL403", "clo4-/clo3--base"),
+    ("CPL403", "clo4-/clo3--base"),
+    ("CPL403", "hno2/no"),
+    ("CPL403", "hno2/no"),
+    ("CPL403", "au+/au"),
+    ("CPL403", "io3-/i--acid"),
+    ("CPL403", "no2-/no"),
+];
+
 #[test]
 fn builtin_table_checks_clean_but_for_known_source_disagreements() {
     let (json, _) = run_json(&["data/"]);
@@ -235,12 +260,16 @@ fn builtin_table_checks_clean_but_for_known_source_disagreements() {
     found.sort();
     let mut known: Vec<(String, String)> = KNOWN_TABLE_FINDINGS
         .iter()
+        .chain(&KNOWN_CONSISTENCY_FINDINGS)
         .map(|(c, l)| (c.to_string(), l.to_string()))
         .collect();
     known.sort();
     assert_eq!(found, known, "{json}");
     assert_eq!(json["summary"]["entries"], 216);
-    assert_eq!(json["summary"]["warnings"], KNOWN_TABLE_FINDINGS.len());
+    assert_eq!(
+        json["summary"]["warnings"],
+        KNOWN_TABLE_FINDINGS.len() + KNOWN_CONSISTENCY_FINDINGS.len()
+    );
 }
 
 #[test]
@@ -548,17 +577,140 @@ fn a_file_over_the_size_limit_is_reported_without_being_read() {
     let path = dir.path().join("huge.toml");
     let entry =
         "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.7996\nsource = \"invented\"\n\n";
-    let mut text = String::with_capacity(100 * 1024 * 1024 + entry.len());
-    while text.len() < 100 * 1024 * 1024 {
-        text.push_str(entry);
-    }
+    let text = entry.repeat(3 * 1024 * 1024 / entry.len() + 1);
     std::fs::write(&path, &text).unwrap();
-    let json = assert_clear_error(&path, "CPL106");
+    let (json, status) = run_json(&["--max-file-mib", "2", path.to_str().unwrap()]);
+    assert_eq!(status, 1, "{json}");
+    assert_eq!(codes(&json), ["CPL106"]);
     let message = json["diagnostics"][0]["message"].as_str().unwrap();
     assert!(
-        message.contains("100.0 MiB") && message.contains("32 MiB"),
+        message.contains("3.0 MiB") && message.contains("up to 2 MiB"),
         "{message}"
     );
+    // Under the default bound (2 GiB) the same file is read, in pieces, and checked.
+    let (json, status) = run_json(&[path.to_str().unwrap()]);
+    assert_eq!(status, 0, "{json}");
+    assert_eq!(
+        json["summary"]["entries"].as_u64(),
+        Some((3 * 1024 * 1024 / entry.len() + 1) as u64)
+    );
+}
+
+#[test]
+fn a_huge_line_or_a_huge_file_that_cannot_be_cut_is_refused_clearly() {
+    let dir = tempfile::tempdir().unwrap();
+    // 40 MiB of one line: refused once 16 MiB of it are read, not held or parsed.
+    let path = dir.path().join("line.toml");
+    let mut text = String::from("[[couple]]\nnote = \"");
+    text.push_str(&"x".repeat(40 << 20));
+    text.push_str("\"\n");
+    std::fs::write(&path, &text).unwrap();
+    let refused = |path: &Path| {
+        let json = assert_clear_error(path, "CPL106");
+        json["diagnostics"][0]["message"]
+            .as_str()
+            .unwrap()
+            .to_owned()
+    };
+    let message = refused(&path);
+    assert!(
+        message.starts_with("line 2 (from byte 11) is longer than 16 MiB"),
+        "{message}"
+    );
+    // Over 32 MiB with a multi-line string: it cannot be cut between couples, and reading it
+    // whole would need twenty times its size.
+    let path = dir.path().join("multiline.toml");
+    let entry =
+        "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.7996\nsource = \"invented\"\n\n";
+    let mut text = String::from(
+        "[[couple]]\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.7996\nnote = '''\ntwo lines'''\n\n",
+    );
+    text.push_str(&entry.repeat((33 << 20) / entry.len()));
+    std::fs::write(&path, &text).unwrap();
+    let message = refused(&path);
+    assert!(
+        message.contains("has a multi-line string at line 4"),
+        "{message}"
+    );
+}
+
+/// Findings of a file read whole and of the same file read in pieces, as comparable tuples.
+fn findings_of(
+    report: &couplet::check::Report,
+) -> Vec<(String, usize, usize, String, Option<String>)> {
+    report
+        .findings
+        .iter()
+        .map(|f| {
+            (
+                f.rule.code().to_owned(),
+                f.span.start,
+                f.span.end,
+                f.message.clone(),
+                f.suggestion.clone(),
+            )
+        })
+        .collect()
+}
+
+#[test]
+fn a_file_read_in_pieces_gets_the_findings_of_the_file_read_whole() {
+    // Invented entries, a few faulty, over several pieces, in both formats.
+    let mut toml = String::from("# invented\n");
+    let mut csv = String::from("# invented\nid,reaction,e0,source\n");
+    for k in 0..24_000 {
+        let (reaction, e0) = match k % 1000 {
+            7 => ("MnO4- + 8 H+ + 5 e- -> Mn2+ + 3 H2O", "1.51"),
+            8 => ("Cu2+ + 2 e- -> Cu(s)", "0.9"),
+            9 => ("Fe3+ + e- -> Fe2+", "\"0.77 V\""),
+            _ => ("Cu2+ + 2 e- -> Cu(s)", "0.342"),
+        };
+        let id = if k == 23_000 {
+            "c3".to_owned()
+        } else {
+            format!("c{k}")
+        };
+        toml.push_str(&format!(
+            "[[couple]]\nid = \"{id}\"\nreaction = \"{reaction}\"\ne0 = {e0}\nsource = \"x\"\n\n"
+        ));
+        csv.push_str(&format!(
+            "{id},\"{reaction}\",{},\"invented, for this test\"\n",
+            e0.trim_matches('"')
+        ));
+    }
+    let dir = tempfile::tempdir().unwrap();
+    for (name, text, format) in [
+        ("t.toml", &toml, FileFormat::Toml),
+        ("t.csv", &csv, FileFormat::Csv),
+    ] {
+        assert!(text.len() > 1 << 20);
+        let path = dir.path().join(name);
+        std::fs::write(&path, text).unwrap();
+        let pieces = couplet::check::load_file(&path).unwrap();
+        assert!(pieces.is_in_pieces());
+        let options = CheckOptions::default();
+        let streamed = check(vec![pieces], &options);
+        let whole = check(
+            vec![SourceFile::new(
+                path.display().to_string(),
+                CoupleFile::from_text(text, format),
+            )],
+            &options,
+        );
+        assert_eq!(streamed.summary(), whole.summary());
+        assert_eq!(findings_of(&streamed), findings_of(&whole));
+        assert!(streamed.findings.len() > 40, "{}", streamed.findings.len());
+        // Fixes of a file read in pieces replace the values in place and read back.
+        let fixes = streamed.fixes_for(0);
+        assert_eq!(fixes.len(), 24);
+        let fixed = couplet::check::fix::apply_source(&streamed.files[0], &fixes).unwrap();
+        let again = CoupleFile::from_text(&fixed, format);
+        assert_eq!(again.records.len(), 24_000);
+        assert_eq!(
+            again.records[7].reaction.as_ref().unwrap().value,
+            "MnO4- + 8 H+ + 5 e- -> Mn2+ + 4 H2O"
+        );
+    }
 }
 
 #[test]
@@ -692,11 +844,14 @@ fn report_of(text: &str, format: FileFormat, options: &CheckOptions) -> couplet:
     )
 }
 
+/// `count` entries with the hostile reaction, each written differently (trailing spaces) so
+/// that each is judged on its own: the checker judges a reaction text once per batch.
 fn hostile_entries(count: usize) -> String {
     let reaction = crate::balance::hostile_equation(64, 70);
     (0..count)
         .map(|i| {
-            format!("[[couple]]\nid = \"h{i}\"\nreaction = \"{reaction}\"\ne0 = 0.1\nsource = \"invented\"\n")
+            let spaces = " ".repeat(i);
+            format!("[[couple]]\nid = \"h{i}\"\nreaction = \"{reaction}{spaces}\"\ne0 = 0.1\nsource = \"invented\"\n")
         })
         .collect()
 }
@@ -730,6 +885,18 @@ fn a_hostile_reaction_costs_the_checker_at_most_its_work_limit() {
             .iter()
             .all(|f| f.suggestion.is_none() && f.fix.is_none())
     );
+    // The same text four times is balanced once: no budget is spent on the repeats.
+    let reaction = crate::balance::hostile_equation(64, 70);
+    let same: String = (0..4)
+        .map(|i| format!("[[couple]]\nid = \"s{i}\"\nreaction = \"{reaction}\"\ne0 = 0.1\nsource = \"invented\"\n"))
+        .collect();
+    let report = report_of(&same, FileFormat::Toml, &options);
+    let own: Vec<_> = report
+        .findings
+        .iter()
+        .filter(|f| f.rule.code() == "CPL204" && f.message.ends_with(own_limit))
+        .collect();
+    assert_eq!(own.len(), 4);
 }
 
 #[test]
@@ -1024,8 +1191,14 @@ fn unlabelled_species_match_their_labelled_form_as_cell_reads_them() {
     let report = report_of(text, FileFormat::Toml, &options);
     assert_eq!(rule_codes(&report), ["CPL402"]);
     // Fe3+/Fe2+ +0.771 V, Fe2+/Fe -0.447 V, Fe3+/Fe -0.037 V (same table, from memory):
-    // free energies add, (2(-0.447) + 0.771)/3 = -0.041 V, within 0.01 V of -0.037 V. The
-    // metal written once as Fe and once as Fe(s) still links the couples.
+    // free energies add, 3(-0.037) = 0.771 + 2(-0.447) up to 0.012 V, which on the couple the
+    // cycle pins most tightly (Fe3+/Fe2+, 1 e-) is 12 mV: within a threshold of 15 mV (these
+    // recalled values are that far apart at the default 10 mV). The metal written once as Fe
+    // and once as Fe(s) still links the couples.
+    let options = CheckOptions {
+        additivity_threshold_volts: 0.015,
+        ..options
+    };
     let consistent = "[[couple]]\nreaction = \"Fe3+ + e- -> Fe2+\"\ne0 = 0.771\nsource = \"CRC\"\n\n[[couple]]\nreaction = \"Fe2+ + 2 e- -> Fe\"\ne0 = -0.447\nsource = \"CRC\"\n\n[[couple]]\nreaction = \"Fe3+ + 3 e- -> Fe(s)\"\ne0 = -0.037\nsource = \"CRC\"\n";
     let report = report_of(consistent, FileFormat::Toml, &options);
     assert_eq!(rule_codes(&report), Vec::<&str>::new());
@@ -1156,4 +1329,225 @@ proptest::proptest! {
         couplet::check::output::write_sarif(&report, &mut sarif).unwrap();
         proptest::prop_assert!(serde_json::from_slice::<Value>(&sarif).is_ok());
     }
+}
+
+// ---- free energies through intermediates and pKw (CPL403) ----
+
+/// Independent values for the expected mismatches: RT/F·ln10 from the exact SI constants
+/// (k = 1.380649e-23 J/K, e = 1.602176634e-19 C; CODATA 2018 lists them as exact) at
+/// 298.15 K, and pKw = 13.995 at 25 °C (Bandura & Lvov 2006, J. Phys. Chem. Ref. Data 35, 15).
+fn water_volts() -> f64 {
+    1.380649e-23 * 298.15 / 1.602176634e-19 * std::f64::consts::LN_10 * 13.995
+}
+
+/// A CPL403 case from `tests/data/consistency/`: the couple the finding must be on, and the
+/// free-energy cycle as (id, signed electrons, OH- per electron written): Σ ν·n·E = 0 when
+/// free energies add up, with E of a base couple taken to acid as E + (h/n)·(RT/F)·ln10·pKw.
+/// The expected mismatch is |Σ ν·n·E| / n(judged), the potential shift of the couple with the
+/// fewest electrons in the cycle that would close it (for an acid/base pair, the difference
+/// of the two acid-form potentials).
+struct Cycle {
+    fixture: &'static str,
+    judged: &'static str,
+    terms: &'static [(&'static str, f64, f64)],
+    judged_electrons: f64,
+}
+
+const CYCLES: [Cycle; 7] = [
+    // 2 ClO4-/Cl- (16 e-) = ClO4-/Cl2 (14 e-) + Cl2/Cl- (2 e-)
+    Cycle {
+        fixture: "chlorine-perchlorate.toml",
+        judged: "cl2/cl-",
+        terms: &[
+            ("clo4-/cl-", 16.0, 0.0),
+            ("clo4-/cl2", -14.0, 0.0),
+            ("cl2/cl-", -2.0, 0.0),
+        ],
+        judged_electrons: 2.0,
+    },
+    // Cr3+/Cr (3 e-) = Cr3+/Cr2+ (1 e-) + Cr2+/Cr (2 e-)
+    Cycle {
+        fixture: "chromium.toml",
+        judged: "cr3+/cr2+",
+        terms: &[
+            ("cr3+/cr", 3.0, 0.0),
+            ("cr3+/cr2+", -1.0, 0.0),
+            ("cr2+/cr", -2.0, 0.0),
+        ],
+        judged_electrons: 1.0,
+    },
+    // Au3+/Au (3 e-) = Au3+/Au+ (2 e-) + Au+/Au (1 e-)
+    Cycle {
+        fixture: "gold.toml",
+        judged: "au+/au",
+        terms: &[
+            ("au3+/au", 3.0, 0.0),
+            ("au3+/au+", -2.0, 0.0),
+            ("au+/au", -1.0, 0.0),
+        ],
+        judged_electrons: 1.0,
+    },
+    // NO3-/NO (3 e-) = NO3-/HNO2 (2 e-) + HNO2/NO (1 e-)
+    Cycle {
+        fixture: "nitrous-acid-nitrate.toml",
+        judged: "hno2/no",
+        terms: &[
+            ("no3-/no", 3.0, 0.0),
+            ("no3-/hno2", -2.0, 0.0),
+            ("hno2/no", -1.0, 0.0),
+        ],
+        judged_electrons: 1.0,
+    },
+    // HNO2/N2O (4 e-) = 2 HNO2/NO (2 e-) + NO/N2O (2 e-): HNO2/NO and NO/N2O are pinned
+    // alike; the finding is on the earlier entry, HNO2/NO.
+    Cycle {
+        fixture: "nitrous-acid-nitrous-oxide.toml",
+        judged: "hno2/no",
+        terms: &[
+            ("hno2/n2o", 4.0, 0.0),
+            ("hno2/no", -2.0, 0.0),
+            ("no/n2o", -2.0, 0.0),
+        ],
+        judged_electrons: 2.0,
+    },
+    // ClO4-/ClO3- in acid and in base (2 OH- per 2 e-): one couple.
+    Cycle {
+        fixture: "perchlorate-acid-base.toml",
+        judged: "clo4-/clo3--base",
+        terms: &[
+            ("clo4-/clo3--acid", 2.0, 0.0),
+            ("clo4-/clo3--base", -2.0, 1.0),
+        ],
+        judged_electrons: 2.0,
+    },
+    // 2 ClO3-/Cl- (base, 6 OH- per 6 e-; 12 e-) = ClO3-/Cl2 (acid, 10 e-) + Cl2/Cl- (2 e-)
+    Cycle {
+        fixture: "chlorate-across-media.toml",
+        judged: "cl2/cl-",
+        terms: &[
+            ("clo3-/cl--base", 12.0, 1.0),
+            ("clo3-/cl2", -10.0, 0.0),
+            ("cl2/cl-", -2.0, 0.0),
+        ],
+        judged_electrons: 2.0,
+    },
+];
+
+/// The number before `unit` at the end of `text`'s clause `… {number}{unit}`.
+fn number_before(text: &str, unit: &str) -> f64 {
+    let end = text
+        .find(unit)
+        .unwrap_or_else(|| panic!("no '{unit}' in {text}"));
+    let start = text[..end].rfind(' ').map_or(0, |i| i + 1);
+    text[start..end].parse().unwrap()
+}
+
+#[test]
+fn the_builtin_inconsistencies_are_found_with_their_mismatch_and_sources() {
+    let options = CheckOptions {
+        formation: None,
+        ..CheckOptions::default()
+    };
+    for cycle in &CYCLES {
+        let path = format!("tests/data/consistency/{}", cycle.fixture);
+        let text = std::fs::read_to_string(&path).unwrap();
+        let table: toml::Table = toml::from_str(&text).unwrap();
+        let couple = |id: &str| {
+            table["couple"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .find(|c| c["id"].as_str() == Some(id))
+                .unwrap()
+                .clone()
+        };
+        let residual: f64 = cycle
+            .terms
+            .iter()
+            .map(|&(id, electrons, hydroxide_per_electron)| {
+                let e0 = couple(id)["e0"].as_float().unwrap();
+                electrons * (e0 + hydroxide_per_electron * water_volts())
+            })
+            .sum();
+        let expected_mv = (residual / cycle.judged_electrons).abs() * 1000.0;
+        let report = check(
+            vec![couplet::check::load_file(Path::new(&path)).unwrap()],
+            &options,
+        );
+        let findings: Vec<_> = report
+            .findings
+            .iter()
+            .filter(|f| f.rule.code() == "CPL403")
+            .collect();
+        assert_eq!(findings.len(), 1, "{}: {findings:?}", cycle.fixture);
+        let finding = findings[0];
+        // On the judged couple's e0.
+        let judged = couple(cycle.judged);
+        let (line, _) = report.line_column(finding);
+        let e0_line = text
+            .lines()
+            .enumerate()
+            .skip_while(|(_, l)| *l != format!("id = \"{}\"", cycle.judged))
+            .find(|(_, l)| l.starts_with("e0 = "))
+            .map(|(i, _)| i + 1);
+        assert_eq!(
+            Some(line),
+            e0_line,
+            "{}: {}",
+            cycle.fixture,
+            finding.message
+        );
+        let unit = if cycle.terms.len() == 2 {
+            " mV apart"
+        } else {
+            " mV off"
+        };
+        let found_mv = number_before(&finding.message, unit);
+        // The message rounds to 0.1 mV; pKw 13.995 here against 13.9947 of the library's Kw(T)
+        // moves a base term by (h·ν/n)·59.16 mV·0.0003, up to 0.1 mV in these cycles.
+        assert!(
+            (found_mv - expected_mv).abs() <= 0.2,
+            "{}: {found_mv} mV, expected {expected_mv:.2} mV: {}",
+            cycle.fixture,
+            finding.message
+        );
+        assert!(expected_mv > 10.0, "{}", cycle.fixture);
+        // Every entry's source is named.
+        for (id, _, _) in cycle.terms {
+            let source = couple(id)["source"].as_str().unwrap().to_owned();
+            assert!(
+                finding.message.contains(&source),
+                "{}: {source} not in {}",
+                cycle.fixture,
+                finding.message
+            );
+        }
+        // For a cycle, the e0 that closes it: Σ ν·n·E = 0 solved for the judged E.
+        if cycle.terms.len() == 3 {
+            let (_, nu, _) = cycle.terms.iter().find(|t| t.0 == cycle.judged).unwrap();
+            let e0 = judged["e0"].as_float().unwrap();
+            let closing = e0 - residual / nu;
+            let predicted = number_before(&finding.message, " V, not");
+            assert!(
+                (predicted - closing).abs() < 2e-4,
+                "{}: {predicted} vs {closing}",
+                cycle.fixture
+            );
+        }
+    }
+}
+
+#[test]
+fn the_additivity_threshold_is_a_flag() {
+    // Cr3+/Cr2+ is 20.0 mV off in the chromium cycle (see CYCLES).
+    let path = "tests/data/consistency/chromium.toml";
+    let (json, _) = run_json(&["--additivity-threshold", "0.015", path]);
+    assert!(codes(&json).iter().any(|c| c == "CPL403"), "{json}");
+    let (json, _) = run_json(&["--additivity-threshold", "0.025", path]);
+    assert!(!codes(&json).iter().any(|c| c == "CPL403"), "{json}");
+    // A warning: the job fails only with --deny-warnings.
+    let (_, status) = run_json(&["--formation-threshold", "0", path]);
+    assert_eq!(status, 0);
+    let (_, status) = run_json(&["--formation-threshold", "0", "--deny-warnings", path]);
+    assert_eq!(status, 1);
 }
