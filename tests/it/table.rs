@@ -381,14 +381,12 @@ fn formation_data_confirmations_are_what_the_data_give_and_agree_within_ten_mill
             }
         }
     }
-    // Counts of docs-table.md: 75 recalled values as e0, of which 27 agree with the formation
-    // data, 13 disagree and 35 have no data (of the 82 once recalled, five were replaced by read
-    // values and moved to also_published, two that disagreed and three without data, and two
-    // gold couples without data were found in a read copy of OpenStax App. L); two more without
-    // data are confirmed by a read summary of Shriver & Atkins (no3-/hno2, hno2/n2o).
+    // Counts of docs-table.md: 43 recalled values are still e0, all unverified: 10 disagree
+    // with the formation data and 33 have no data. Of the 82 once recalled, every one a read
+    // source gives gave way to that value and is kept in also_published (data/potentials.toml).
     assert_eq!(
         (confirmed, read_elsewhere, disagreeing, without_data),
-        (27, 2, 13, 33)
+        (0, 0, 10, 33)
     );
 }
 
@@ -454,22 +452,19 @@ fn table_and_cell_show_which_values_are_unverified() {
     };
     assert_eq!(row("no3-/no2")["verified"], false);
     assert_eq!(row("no3-/no2")["confirmed_by"], serde_json::Value::Null);
+    // sr2+/sr was recalled; the read formation data agreed and took its place, the recalled
+    // value kept beside them (data/potentials.toml).
     let (stdout, _) = couplet_cli(&["table", "--json", "sr2+/sr"]);
     let rows: serde_json::Value = serde_json::from_str(&stdout).unwrap();
     assert_eq!(rows[0]["verified"], true);
-    assert!(
-        rows[0]["confirmed_by"]
-            .as_str()
-            .unwrap()
-            .contains("formation data")
-    );
-
+    assert_eq!(rows[0]["e0_V"], -2.8994);
+    assert_eq!(rows[0]["also_published"][0]["e0_V"], -2.899);
     let (stdout, _) = couplet_cli(&["table", "no3-/no2"]);
     let line = stdout.lines().find(|l| l.starts_with("no3-/no2 ")).unwrap();
     assert!(line.contains("unverified"), "{line}");
     assert!(stdout.contains("UNVERIFIED"), "{stdout}");
     let (stdout, _) = couplet_cli(&["table", "sr2+/sr"]);
-    assert!(stdout.contains("confirmed by: CRC Handbook"), "{stdout}");
+    assert!(stdout.contains("published values: 2"), "{stdout}");
 
     let (stdout, status) = couplet_cli(&[
         "cell",

@@ -288,7 +288,6 @@ fn built_in_couples_agree_with_formation_data_or_are_listed() {
     // that went away) fails here instead of passing silently.
     const LISTED: &[&str] = &[
         "ra2+/ra",
-        "no3-/no2-",
         "s2o8^2-/so4^2-",
         "no3-/no2",
         "y3+/y",
@@ -297,12 +296,9 @@ fn built_in_couples_agree_with_formation_data_or_are_listed() {
         "cd(oh)2/cd",
         "no3-/n2o4",
         "s2o3^2-/s",
-        "io3-/i--acid",
-        "io3-/i2",
         "ce3+/ce",
         "mno4^2-/mno2",
         "la3+/la",
-        "no2-/no",
         "fe3+/fe",
         "co(oh)2/co",
         "ce4+/ce3+",
@@ -313,7 +309,6 @@ fn built_in_couples_agree_with_formation_data_or_are_listed() {
         "fe2+/fe",
         "s/s2-",
         "co3+/co2+",
-        "clo4-/clo3--base",
         "pt2+/pt",
     ];
     let data = FormationData::builtin();
@@ -339,7 +334,8 @@ fn built_in_couples_agree_with_formation_data_or_are_listed() {
     let mut listed: Vec<String> = LISTED.iter().map(|s| s.to_string()).collect();
     listed.sort();
     assert_eq!(differ, listed);
-    assert!(both >= 120, "{both} couples computed both ways");
+    // Couples derived from these data are left out (they agree by construction): 94 remain.
+    assert!(both >= 90, "{both} couples computed both ways");
 }
 
 mod cli {
