@@ -146,6 +146,9 @@ impl WrittenCouple {
         if reaction.electron_nu().is_zero() {
             return None;
         }
+        // HAsO2 and H3AsO3 are one solute: a couple is keyed in its least hydrated forms, so
+        // that duplicates and cycles written either way are found.
+        let reaction = &*crate::table::in_least_hydrated_forms(reaction);
         let species: Vec<String> = reaction
             .entries()
             .iter()

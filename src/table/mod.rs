@@ -348,94 +348,109 @@ pub fn same_formula_unit(a: &Species, b: &Species) -> bool {
 
 /// True when two dissolved species differ only by whole molecules of water, as the forms an
 /// oxoacid is written in do: `HAsO2` and `H3AsO3`, `H4SiO4` and `SiO2(aq)`. Both must be
-/// dissolved (or carry no state), hold no carbon (ethanol is not hydrated ethylene) and have the
-/// same charge and compartment. Compilations write the same couple either way, so lookups and
-/// duplicate checks must see them as one.
+/// neutral, dissolved (or carry no state) and free of carbon (ethanol is not hydrated
+/// ethylene), in the same compartment. Compilations write the same couple either way, so
+/// lookups and the checker's duplicate and cycle rules see them as one.
 pub fn hydrate_equivalent(a: &Species, b: &Species) -> bool {
-    match (hydration_form(a), hydration_form(b)) {
-        (Some((a_key, _)), Some((b_key, _))) => {
-            a_key == b_key && a.charge() == b.charge() && a.compartment == b.compartment
-        }
-        _ => false,
+    if !(may_be_hydrated(a) && may_be_hydrated(b)) || a.compartment != b.compartment {
+        return false;
     }
+    let form = |s: &Species| least_hydrated(s).map_or_else(|| s.clone(), |(form, _)| form);
+    same_formula_unit(&form(a), &form(b))
 }
 
-/// The atoms of a dissolved, carbon-free species with as many H2O taken out as its H and O
-/// allow, and how many were taken: the form all its hydrates share (H3O+ comes out as H+, water
-/// itself as nothing). `None` for species that are not dissolved or hold carbon, and electrons.
-fn hydration_form(species: &Species) -> Option<(Vec<(Element, u64)>, u64)> {
+/// Whether a species is a solute whose hydrates are one: dissolved (or unlabelled), neutral,
+/// carbon-free, with whole-number counts.
+fn may_be_hydrated(species: &Species) -> bool {
     use crate::notation::State;
-    if species.is_electron() || !matches!(species.state, None | Some(State::Aqueous)) {
+    let Some(carbon) = Element::from_symbol("C") else {
+        return false;
+    };
+    !species.is_electron()
+        && matches!(species.state, None | Some(State::Aqueous))
+        && species.charge() == 0
+        && species.composition.is_integral()
+        && species.composition.scaled_count(carbon) == 0
+}
+
+/// The least hydrated form of a dissolved neutral solute, as a dissolved species, with the
+/// number of H2O taken out (as many as its H and O allow: H3AsO3 → HAsO2 + H2O); `None` when
+/// none can be taken out or the species is not such a solute. The elements keep the order
+/// they were written in.
+pub fn least_hydrated(species: &Species) -> Option<(Species, u64)> {
+    if !may_be_hydrated(species) {
         return None;
     }
-    let (hydrogen, oxygen, carbon) = (
-        Element::from_symbol("H")?,
-        Element::from_symbol("O")?,
-        Element::from_symbol("C")?,
-    );
+    let (hydrogen, oxygen) = (Element::from_symbol("H")?, Element::from_symbol("O")?);
     let composition = &species.composition;
-    if !composition.is_integral() || composition.scaled_count(carbon) > 0 {
+    let waters = (composition.scaled_count(hydrogen) / 2).min(composition.scaled_count(oxygen));
+    if waters == 0 {
         return None;
     }
-    let mut counts = sorted_counts(species);
-    let (h, o) = (
-        composition.scaled_count(hydrogen),
-        composition.scaled_count(oxygen),
-    );
-    let waters = (h / 2).min(o);
-    for (element, count) in &mut counts {
-        if *element == hydrogen {
-            *count -= 2 * waters;
-        } else if *element == oxygen {
-            *count -= waters;
+    let mut formula = String::new();
+    for &(element, count) in composition.counts() {
+        let left = if element == hydrogen {
+            count - 2 * waters
+        } else if element == oxygen {
+            count - waters
+        } else {
+            count
+        };
+        match left {
+            0 => {}
+            1 => formula.push_str(element.symbol()),
+            n => formula.push_str(&format!("{}{n}", element.symbol())),
         }
     }
-    counts.retain(|(_, count)| *count > 0);
-    Some((counts, waters))
+    if formula.is_empty() {
+        // Water itself.
+        return None;
+    }
+    let mut form = parse_species(&format!("{formula}(aq)")).ok()?;
+    form.compartment = species.compartment;
+    Some((form, waters))
+}
+
+/// The reaction with every dissolved neutral solute in its least hydrated form and the water it
+/// gave up moved into the H2O term ([`least_hydrated`]); the reaction itself when no species
+/// has a hydrate form.
+pub fn in_least_hydrated_forms(reaction: &Reaction) -> std::borrow::Cow<'_, Reaction> {
+    let forms: Vec<Option<(Species, u64)>> = reaction
+        .entries()
+        .iter()
+        .map(|e| least_hydrated(&e.species))
+        .collect();
+    if forms.iter().all(Option::is_none) {
+        return std::borrow::Cow::Borrowed(reaction);
+    }
+    let Ok(water) = parse_species("H2O(l)") else {
+        return std::borrow::Cow::Borrowed(reaction);
+    };
+    let mut out = Reaction::new();
+    for (entry, form) in reaction.entries().iter().zip(forms) {
+        match form {
+            Some((form, waters)) => {
+                out.add(&form, entry.nu.clone());
+                out.add(&water, &entry.nu * BigRational::from_integer(waters.into()));
+            }
+            None => {
+                let bare = entry.species.without_state();
+                if bare.ascii() == "H2O" {
+                    out.add(&water, entry.nu.clone());
+                } else {
+                    out.add(&entry.species, entry.nu.clone());
+                }
+            }
+        }
+    }
+    std::borrow::Cow::Owned(out)
 }
 
 /// True when two half-reactions are the same couple: the same up to a positive factor
-/// ([`same_reaction`]), or the same once each dissolved oxoacid is written in its least
-/// hydrated form with the water moved into the H2O term (`H3AsO4 + 2 H+ + 2 e- -> HAsO2 + 2 H2O`
-/// and `H3AsO4 + 2 H+ + 2 e- -> H3AsO3 + H2O`).
+/// ([`same_reaction`]), also once each dissolved oxoacid is written in its least hydrated form
+/// (`H3AsO4 + 2 H+ + 2 e- -> HAsO2 + 2 H2O` and `H3AsO4 + 2 H+ + 2 e- -> H3AsO3 + H2O`).
 pub fn same_couple(a: &Reaction, b: &Reaction) -> bool {
-    same_reaction(a, b) || hydration_key(a) == hydration_key(b)
-}
-
-/// A reaction as a sorted list of (species key, ν per electron taken up), with every dissolved
-/// solute in its least hydrated form and the water it gave up added to the water term.
-fn hydration_key(reaction: &Reaction) -> Option<Vec<(String, BigRational)>> {
-    let electrons = -reaction.electron_nu();
-    if electrons.is_zero() {
-        return None;
-    }
-    let water = "H2O".to_owned();
-    let mut terms: std::collections::BTreeMap<String, BigRational> = Default::default();
-    for entry in reaction.entries() {
-        let nu = &entry.nu / &electrons;
-        let bare = entry.species.without_state();
-        let key = if bare.ascii() == "H2O" {
-            water.clone()
-        } else if let Some((counts, waters)) = hydration_form(&entry.species) {
-            if counts.is_empty() {
-                *terms.entry(water.clone()).or_insert_with(BigRational::zero) +=
-                    &nu * BigRational::from_integer(waters.into());
-                continue;
-            }
-            *terms.entry(water.clone()).or_insert_with(BigRational::zero) +=
-                &nu * BigRational::from_integer(waters.into());
-            format!(
-                "{counts:?}{}{:?}",
-                entry.species.charge(),
-                entry.species.compartment
-            )
-        } else {
-            entry.species.ascii()
-        };
-        *terms.entry(key).or_insert_with(BigRational::zero) += nu;
-    }
-    terms.retain(|_, nu| !nu.is_zero());
-    Some(terms.into_iter().collect())
+    same_reaction(a, b) || same_reaction(&in_least_hydrated_forms(a), &in_least_hydrated_forms(b))
 }
 
 /// A fault in a table file, located in the file.

@@ -1538,3 +1538,21 @@ fn the_additivity_threshold_is_a_flag() {
     let (_, status) = run_json(&["--formation-threshold", "0", "--deny-warnings", path]);
     assert_eq!(status, 1);
 }
+
+#[test]
+fn hydrate_forms_of_one_solute_are_one_couple_to_the_checker() {
+    let options = CheckOptions {
+        formation: None,
+        ..CheckOptions::default()
+    };
+    // H3AsO3/As, 0.2475 V (Harris, Quantitative Chemical Analysis, 8th ed., App. H), and the same
+    // couple written with HAsO2 (HAsO2 + H2O = H3AsO3) at an invented 0.2975 V: one couple
+    // written twice with potentials 50 mV apart.
+    let text = "[[couple]]\nreaction = \"H3AsO3(aq) + 3 H+ + 3 e- -> As(s) + 3 H2O(l)\"\ne0 = 0.2475\nsource = \"Harris 8th ed. App. H\"\n\n[[couple]]\nreaction = \"HAsO2(aq) + 3 H+ + 3 e- -> As(s) + 2 H2O(l)\"\ne0 = 0.2975\nsource = \"invented error\"\n";
+    let report = report_of(text, FileFormat::Toml, &options);
+    assert_eq!(rule_codes(&report), ["CPL402"]);
+    // Written 0.5 mV apart (the recalled CRC value 0.248 V): no finding.
+    let text = text.replace("0.2975", "0.248");
+    let report = report_of(&text, FileFormat::Toml, &options);
+    assert!(rule_codes(&report).is_empty(), "{:?}", rule_codes(&report));
+}
