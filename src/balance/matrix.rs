@@ -620,7 +620,7 @@ fn null_vector_big(
 /// An integer basis of the null space of `matrix`, the same as
 /// `RowEchelon::new_within(matrix, meter)?.null_space_within(meter)`. When the minors overflow
 /// `i128` and the null space is one line of a full-row-rank matrix, the line comes from
-/// elimination modulo word-sized primes ([`super::modular`]) instead of big integers.
+/// elimination modulo word-sized primes (`balance::modular`) instead of big integers.
 pub fn null_space_within(
     matrix: &IntegerMatrix,
     meter: &mut WorkMeter,
