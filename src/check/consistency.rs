@@ -478,7 +478,7 @@ impl TableChecker {
                     file: at.file,
                     span: at.span,
                     message: format!(
-                        "the same couple is at {} with e0 = {} V; they differ by {:.4} V, beyond the tolerance {} V",
+                        "the same couple is at {} with e0 = {} V; they differ by {:.4} V, beyond the tolerance {} V (when both values are published, keep one entry and list the other under also_published with its source)",
                         place(first.entry),
                         first.e0_volts,
                         (e0_volts - first.e0_volts).abs(),
