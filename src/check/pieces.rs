@@ -9,7 +9,7 @@
 //! back to file offsets; a file that cannot be cut safely is read whole.
 
 use crate::notation::Span;
-use crate::table::{CoupleFile, CoupleRecord, Field, FileFormat, ProblemKind};
+use crate::table::{CoupleFile, FileFormat, ProblemKind};
 
 /// Couples per piece: large enough that judging a piece on two cores pays for the threads,
 /// small enough that a piece's parse (about twenty times its text) stays a few megabytes.
@@ -226,7 +226,7 @@ fn cut_csv(text: &str) -> Result<Pieces, Uncuttable> {
 fn move_file(file: &mut CoupleFile, to_file: &dyn Fn(usize) -> usize, first_record: usize) {
     let span = |s: Span| Span::new(to_file(s.start), to_file(s.end));
     for record in &mut file.records {
-        move_record(record, to_file, first_record);
+        record.relocate(to_file, first_record);
     }
     for problem in &mut file.problems {
         problem.span = span(problem.span);
@@ -242,45 +242,7 @@ fn move_file(file: &mut CoupleFile, to_file: &dyn Fn(usize) -> usize, first_reco
         }
     }
     for key in &mut file.unknown_keys {
-        move_field(key, to_file);
-    }
-}
-
-fn move_record(record: &mut CoupleRecord, to_file: &dyn Fn(usize) -> usize, first_record: usize) {
-    record.index += first_record;
-    record.span = Span::new(to_file(record.span.start), to_file(record.span.end));
-    for field in [
-        &mut record.id,
-        &mut record.reaction,
-        &mut record.medium,
-        &mut record.source,
-        &mut record.note,
-        &mut record.confirmed_by,
-    ]
-    .into_iter()
-    .flatten()
-    {
-        move_field(field, to_file);
-    }
-    for field in [&mut record.e0_volts, &mut record.dedt_millivolts_per_kelvin]
-        .into_iter()
-        .flatten()
-    {
-        move_field(field, to_file);
-    }
-    if let Some(field) = &mut record.verified {
-        move_field(field, to_file);
-    }
-    for key in &mut record.unknown_keys {
-        move_field(key, to_file);
-    }
-}
-
-fn move_field<T>(field: &mut Field<T>, to_file: &dyn Fn(usize) -> usize) {
-    field.span = Span::new(to_file(field.span.start), to_file(field.span.end));
-    field.content_start = field.content_start.map(to_file);
-    for (_, file) in &mut field.escapes {
-        *file = to_file(*file);
+        key.relocate(to_file);
     }
 }
 

@@ -489,38 +489,49 @@ impl CoupleRecord {
     /// Moves every span by `offset` bytes and the index by `first_index`: the record was read
     /// from a piece of the file starting at `offset`, after `first_index` couples.
     fn shift(&mut self, offset: usize, first_index: usize) {
+        self.relocate(&|at| at + offset, first_index);
+    }
+
+    /// Maps every byte offset the record holds through `to_file` and moves its index by
+    /// `first_index`: for a record read from a piece of a larger text. Every field is moved, so
+    /// a field added to the record is added here once for every reader that cuts files.
+    pub fn relocate(&mut self, to_file: &dyn Fn(usize) -> usize, first_index: usize) {
         self.index += first_index;
-        self.span = self.span.shifted(offset);
+        self.span = Span::new(to_file(self.span.start), to_file(self.span.end));
         for field in [
             &mut self.id,
             &mut self.reaction,
             &mut self.medium,
             &mut self.source,
             &mut self.note,
+            &mut self.confirmed_by,
         ]
         .into_iter()
         .flatten()
         {
-            field.shift(offset);
+            field.relocate(to_file);
         }
         for field in [&mut self.e0_volts, &mut self.dedt_millivolts_per_kelvin]
             .into_iter()
             .flatten()
         {
-            field.shift(offset);
+            field.relocate(to_file);
+        }
+        if let Some(field) = &mut self.verified {
+            field.relocate(to_file);
         }
         for key in &mut self.unknown_keys {
-            key.shift(offset);
+            key.relocate(to_file);
         }
         for published in &mut self.also_published {
-            published.span = published.span.shifted(offset);
-            published.e0_volts.shift(offset);
-            published.source.shift(offset);
+            published.span = Span::new(to_file(published.span.start), to_file(published.span.end));
+            published.e0_volts.relocate(to_file);
+            published.source.relocate(to_file);
             if let Some(dedt) = &mut published.dedt_millivolts_per_kelvin {
-                dedt.shift(offset);
+                dedt.relocate(to_file);
             }
             if let Some(note) = &mut published.note {
-                note.shift(offset);
+                note.relocate(to_file);
             }
         }
     }
@@ -528,10 +539,15 @@ impl CoupleRecord {
 
 impl<T> Field<T> {
     fn shift(&mut self, offset: usize) {
-        self.span = self.span.shifted(offset);
-        self.content_start = self.content_start.map(|start| start + offset);
+        self.relocate(&|at| at + offset);
+    }
+
+    /// Maps the span, the content start and every escape's file offset through `to_file`.
+    pub fn relocate(&mut self, to_file: &dyn Fn(usize) -> usize) {
+        self.span = Span::new(to_file(self.span.start), to_file(self.span.end));
+        self.content_start = self.content_start.map(to_file);
         for (_, file) in &mut self.escapes {
-            *file += offset;
+            *file = to_file(*file);
         }
     }
 }

@@ -691,3 +691,46 @@ fn hydrate_forms_of_one_solute_are_one_couple() {
     let found = table.by_reaction(&reaction("HAsO2 + 3 H+ + 3 e- -> As(s) + 2 H2O(l)"));
     assert_eq!(found.len(), 1);
 }
+
+#[test]
+fn published_values_keep_their_places_in_files_read_in_pieces() {
+    // Over 1 MiB the readers cut a file between couples; every span must be moved back to the
+    // file, those of also_published, confirmed_by and verified included. Invented entries.
+    let mut text = String::new();
+    for i in 0..12000 {
+        text.push_str(&format!(
+            "[[couple]]\nid = \"c{i}\"\nreaction = \"Ag+ + e- -> Ag(s)\"\ne0 = 0.80\nsource = \"invented filler entry number {i}\"\n\n"
+        ));
+    }
+    assert!(text.len() > 1 << 20);
+    let lines_before = text.lines().count();
+    text.push_str("[[couple]]\nid = \"last\"\nreaction = \"Zn2+ + 2 e- -> Zn(s)\"\ne0 = -0.76\nalso_published = [{ e0 = nan, source = \"invented\" }]\n");
+    let file = CoupleFile::from_text(&text, FileFormat::Toml);
+    assert!(file.problems.is_empty(), "{:?}", file.problems.first());
+    let error = Table::new().add_file(&file, Origin::Given).unwrap_err();
+    // The nan sits on the fifth line of the last entry, after `also_published = [{ e0 = `.
+    assert_eq!(
+        (error.line, error.column),
+        (lines_before + 5, 26),
+        "{error}"
+    );
+
+    // The checker reads such a file in pieces too: a value without its source is found at its
+    // place.
+    let text = text.replace("e0 = nan, source = \"invented\"", "e0 = -0.70");
+    let dir = std::env::temp_dir().join(format!("couplet-pieces-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("big.toml");
+    std::fs::write(&path, &text).unwrap();
+    let (stdout, _) = couplet_cli(&["check", "--format", "json", path.to_str().unwrap()]);
+    std::fs::remove_dir_all(&dir).unwrap();
+    let json: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    let missing: Vec<_> = json["diagnostics"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|d| d["message"].as_str().unwrap().contains("has no 'source'"))
+        .collect();
+    assert_eq!(missing.len(), 1, "{json}");
+    assert_eq!(missing[0]["line"].as_u64(), Some(lines_before as u64 + 5));
+}
