@@ -19,7 +19,6 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{One, Signed, ToPrimitive};
 use std::collections::HashMap;
-use std::hash::{BuildHasherDefault, Hasher};
 use std::io::{self, Write};
 use std::sync::Arc;
 
@@ -51,46 +50,6 @@ impl SpeciesFacts {
     }
 }
 
-/// Multiply-rotate hashing (the scheme of rustc's FxHasher) for the species keys: the keys
-/// are our own parsed formulas, not adversarial, and SipHash over a formula tree cost as much
-/// as the lookup saved.
-#[derive(Default)]
-struct SpeciesHasher(u64);
-
-impl SpeciesHasher {
-    fn add(&mut self, word: u64) {
-        self.0 = (self.0.rotate_left(5) ^ word).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
-    }
-}
-
-impl Hasher for SpeciesHasher {
-    fn write(&mut self, bytes: &[u8]) {
-        let mut chunks = bytes.chunks_exact(8);
-        for chunk in &mut chunks {
-            self.add(u64::from_le_bytes(chunk.try_into().unwrap_or_default()));
-        }
-        let mut last = [0u8; 8];
-        let rest = chunks.remainder();
-        last[..rest.len()].copy_from_slice(rest);
-        self.add(u64::from_le_bytes(last) ^ rest.len() as u64);
-    }
-    fn write_u8(&mut self, i: u8) {
-        self.add(u64::from(i));
-    }
-    fn write_u32(&mut self, i: u32) {
-        self.add(u64::from(i));
-    }
-    fn write_u64(&mut self, i: u64) {
-        self.add(i);
-    }
-    fn write_usize(&mut self, i: usize) {
-        self.add(i as u64);
-    }
-    fn finish(&self) -> u64 {
-        self.0
-    }
-}
-
 /// How many distinct species a [`BalanceJson`] keeps before it starts afresh (memory stays
 /// bounded on a batch of ever-new species; the answers do not change).
 const SPECIES_CAPACITY: usize = 4096;
@@ -99,7 +58,9 @@ const SPECIES_CAPACITY: usize = 4096;
 /// results it writes. Output does not depend on what was written before.
 #[derive(Default)]
 pub struct BalanceJson {
-    index: HashMap<Species, usize, BuildHasherDefault<SpeciesHasher>>,
+    // A fast fixed-seed hash (foldhash): the keys are our own parsed formulas, not
+    // adversarial, and SipHash over a formula tree cost as much as the lookup saved.
+    index: HashMap<Species, usize, foldhash::fast::FixedState>,
     facts: Vec<SpeciesFacts>,
     /// Indices into `facts` of the entries of the reaction being written.
     entries: Vec<usize>,
