@@ -6,10 +6,10 @@
 //! table headers; in CSV after a row, found by the same field rules as the couple-file reader
 //! (a field that starts with `"` runs to the closing quote, `""` inside it). Each piece goes
 //! through the one couple-file reader ([`crate::table::CoupleFile`]) and its spans are moved
-//! back to file offsets; a file that cannot be cut safely is read whole.
+//! back to file offsets; a file that cannot be cut safely is read whole. Where to cut comes from
+//! the reader's own module (`toml_couple_starts`, `csv_row_starts`), so the two cannot drift.
 
-use crate::notation::Span;
-use crate::table::{CoupleFile, FileFormat, ProblemKind};
+use crate::table::{CoupleFile, FileFormat, csv_row_starts, toml_couple_starts};
 
 /// Couples per piece: large enough that judging a piece on two cores pays for the threads,
 /// small enough that a piece's parse (about twenty times its text) stays a few megabytes.
@@ -30,14 +30,7 @@ pub struct Pieces {
     couples: usize,
 }
 
-/// Why a file cannot be cut into pieces, with the byte offset that shows it.
-#[derive(Clone, Debug, PartialEq, Eq)]
-pub struct Uncuttable {
-    /// Byte offset of what stops the cut.
-    pub offset: usize,
-    /// One phrase, lower-case.
-    pub reason: &'static str,
-}
+pub use crate::table::Uncuttable;
 
 impl Pieces {
     /// How many couples the pieces hold (TOML `[[couple]]` headers, CSV rows).
@@ -73,7 +66,7 @@ impl Pieces {
         let (start, end) = (self.bounds[index], self.bounds[index + 1]);
         if format == FileFormat::Toml || index == 0 {
             let mut file = CoupleFile::from_text(&text[start..end], format);
-            move_file(&mut file, &|offset| offset + start, first_record);
+            file.relocate(&|offset| offset + start, first_record);
             return file;
         }
         let header = &text[..self.header_end];
@@ -85,11 +78,7 @@ impl Pieces {
         // The header's own problems and unknown columns were reported with the first piece.
         file.problems.retain(|p| p.span.start >= header_end);
         file.unknown_keys.clear();
-        move_file(
-            &mut file,
-            &|offset| offset - header_end + start,
-            first_record,
-        );
+        file.relocate(&|offset| offset - header_end + start, first_record);
         file
     }
 
@@ -123,30 +112,7 @@ fn bounds_from_starts(starts: &[usize], len: usize) -> (Vec<usize>, Vec<usize>) 
 }
 
 fn cut_toml(text: &str) -> Result<Pieces, Uncuttable> {
-    for quotes in ["'''", "\"\"\""] {
-        if let Some(offset) = text.find(quotes) {
-            return Err(Uncuttable {
-                offset,
-                reason: "a multi-line string",
-            });
-        }
-    }
-    let mut starts = Vec::new();
-    let mut offset = 0;
-    for line in text.split_inclusive('\n') {
-        let trimmed = line.trim_start();
-        if trimmed.starts_with('[') {
-            let rest = trimmed.strip_prefix("[[couple]]").map(str::trim_start);
-            if !rest.is_some_and(|r| r.is_empty() || r.starts_with('#')) {
-                return Err(Uncuttable {
-                    offset: offset + line.len() - trimmed.len(),
-                    reason: "a table header other than [[couple]]",
-                });
-            }
-            starts.push(offset);
-        }
-        offset += line.len();
-    }
+    let starts = toml_couple_starts(text)?;
     let (bounds, firsts) = bounds_from_starts(&starts, text.len());
     Ok(Pieces {
         bounds,
@@ -156,63 +122,11 @@ fn cut_toml(text: &str) -> Result<Pieces, Uncuttable> {
     })
 }
 
-/// The offset after the line break at `at` (`\n`, `\r\n` or `\r`), as the reader skips it.
-fn after_line_break(bytes: &[u8], at: usize) -> usize {
-    match (bytes.get(at), bytes.get(at + 1)) {
-        (Some(b'\r'), Some(b'\n')) => at + 2,
-        (Some(_), _) => at + 1,
-        (None, _) => at,
-    }
-}
-
 fn cut_csv(text: &str) -> Result<Pieces, Uncuttable> {
-    let bytes = text.as_bytes();
-    let mut rows = Vec::new();
-    let mut i = 0;
-    while i < bytes.len() {
-        let line_end = text[i..].find(['\n', '\r']).map_or(bytes.len(), |n| i + n);
-        let line = &text[i..line_end];
-        if line.trim().is_empty() || line.starts_with('#') {
-            i = after_line_break(bytes, line_end);
-            continue;
-        }
-        rows.push(i);
-        // One row: fields up to a line break outside quotes.
-        loop {
-            if bytes.get(i) == Some(&b'"') {
-                let open = i;
-                i += 1;
-                loop {
-                    match text[i..].find('"') {
-                        None => {
-                            return Err(Uncuttable {
-                                offset: open,
-                                reason: "a quoted field that is never closed",
-                            });
-                        }
-                        Some(n) if bytes.get(i + n + 1) == Some(&b'"') => i += n + 2,
-                        Some(n) => {
-                            i += n + 1;
-                            break;
-                        }
-                    }
-                }
-            }
-            i = text[i..]
-                .find([',', '\n', '\r'])
-                .map_or(bytes.len(), |n| i + n);
-            if bytes.get(i) == Some(&b',') {
-                i += 1;
-                continue;
-            }
-            i = after_line_break(bytes, i);
-            break;
-        }
-    }
+    let rows = csv_row_starts(text)?;
     // The first row is the header; the first piece holds it and starts at 0.
-    let header_end = rows.get(1).copied().unwrap_or(bytes.len());
+    let header_end = rows.get(1).copied().unwrap_or(text.len());
     let data = rows.get(1..).unwrap_or(&[]);
-    // The first piece starts at 0: the header and what comes before it are in it.
     let (bounds, firsts) = bounds_from_starts(data, text.len());
     Ok(Pieces {
         bounds,
@@ -220,30 +134,6 @@ fn cut_csv(text: &str) -> Result<Pieces, Uncuttable> {
         header_end,
         couples: data.len(),
     })
-}
-
-/// Moves every span of a piece's records, problems and unknown keys to file offsets.
-fn move_file(file: &mut CoupleFile, to_file: &dyn Fn(usize) -> usize, first_record: usize) {
-    let span = |s: Span| Span::new(to_file(s.start), to_file(s.end));
-    for record in &mut file.records {
-        record.relocate(to_file, first_record);
-    }
-    for problem in &mut file.problems {
-        problem.span = span(problem.span);
-        problem.record = problem.record.map(|r| r + first_record);
-        // The reader numbers the couple in this message from the start of the piece.
-        if let (ProblemKind::MissingKey, Some(record), Some(key)) =
-            (problem.kind, problem.record, &problem.key)
-        {
-            let local = format!("couple {} has no '{key}'", record - first_record + 1);
-            if problem.message == local {
-                problem.message = format!("couple {} has no '{key}'", record + 1);
-            }
-        }
-    }
-    for key in &mut file.unknown_keys {
-        key.relocate(to_file);
-    }
 }
 
 #[cfg(test)]

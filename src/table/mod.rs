@@ -16,6 +16,7 @@ pub mod record;
 
 pub use record::{
     CoupleFile, CoupleRecord, Field, FileFormat, ProblemKind, PublishedRecord, ReadProblem,
+    Uncuttable, csv_row_starts, toml_couple_starts,
 };
 
 use crate::elements::Element;

@@ -423,6 +423,117 @@ fn is_couple_header(line: &str) -> bool {
         .is_some_and(|rest| rest.trim().is_empty() || rest.trim_start().starts_with('#'))
 }
 
+/// Why a couple file cannot be cut into pieces between couples, with the byte offset that
+/// shows it.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Uncuttable {
+    /// Byte offset of what stops the cut.
+    pub offset: usize,
+    /// One phrase, lower-case.
+    pub reason: &'static str,
+}
+
+/// Where each couple of a TOML text starts (the offset of its `[[couple]]` line), when the text
+/// can be cut there with certainty: no multi-line strings, and every line that starts with `[`
+/// a plain `[[couple]]` header.
+pub fn toml_couple_starts(text: &str) -> Result<Vec<usize>, Uncuttable> {
+    for quotes in ["\'\'\'", "\"\"\""] {
+        if let Some(offset) = text.find(quotes) {
+            return Err(Uncuttable {
+                offset,
+                reason: "a multi-line string",
+            });
+        }
+    }
+    let mut starts = Vec::new();
+    let mut offset = 0;
+    for line in text.split_inclusive('\n') {
+        let trimmed = line.trim_start();
+        if trimmed.starts_with('[') {
+            if !is_couple_header(trimmed) {
+                return Err(Uncuttable {
+                    offset: offset + line.len() - trimmed.len(),
+                    reason: "a table header other than [[couple]]",
+                });
+            }
+            starts.push(offset);
+        }
+        offset += line.len();
+    }
+    Ok(starts)
+}
+
+/// Where each row of a CSV text starts, the header row first, found by the reader's own rules
+/// (comment and blank lines skipped, a field that starts with `"` runs to its closing quote
+/// with `""` inside it) without decoding the fields: for cutting a large file between rows.
+pub fn csv_row_starts(text: &str) -> Result<Vec<usize>, Uncuttable> {
+    let bytes = text.as_bytes();
+    let mut rows = Vec::new();
+    let mut i = 0;
+    while let Some(start) = next_row(text, i) {
+        i = start;
+        rows.push(i);
+        // One row: fields up to a line break outside quotes.
+        loop {
+            if bytes.get(i) == Some(&b'"') {
+                let open = i;
+                i += 1;
+                loop {
+                    match text[i..].find('"') {
+                        None => {
+                            return Err(Uncuttable {
+                                offset: open,
+                                reason: "a quoted field that is never closed",
+                            });
+                        }
+                        Some(n) if bytes.get(i + n + 1) == Some(&b'"') => i += n + 2,
+                        Some(n) => {
+                            i += n + 1;
+                            break;
+                        }
+                    }
+                }
+            }
+            i = text[i..]
+                .find([',', '\n', '\r'])
+                .map_or(bytes.len(), |n| i + n);
+            if bytes.get(i) == Some(&b',') {
+                i += 1;
+                continue;
+            }
+            i = skip_line_break(bytes, i);
+            break;
+        }
+    }
+    Ok(rows)
+}
+
+impl CoupleFile {
+    /// Maps every span of a file read from a piece of a larger text through `to_file`, and
+    /// numbers its couples from `first_record` (the messages that name a couple by number too).
+    pub fn relocate(&mut self, to_file: &dyn Fn(usize) -> usize, first_record: usize) {
+        for record in &mut self.records {
+            record.relocate(to_file, first_record);
+        }
+        for problem in &mut self.problems {
+            problem.span = Span::new(to_file(problem.span.start), to_file(problem.span.end));
+            let Some(local) = problem.record else {
+                continue;
+            };
+            problem.record = Some(local + first_record);
+            // The reader numbers the couple in this message from the start of the piece.
+            if let (ProblemKind::MissingKey, Some(key)) = (problem.kind, &problem.key) {
+                if problem.message == format!("couple {} has no '{key}'", local + 1) {
+                    problem.message = format!("couple {} has no '{key}'", local + first_record + 1);
+                }
+            }
+        }
+        for key in &mut self.unknown_keys {
+            key.relocate(to_file);
+        }
+    }
+}
+
 /// Parses a large file a thousand couples at a time. The TOML parser holds about twenty times
 /// the text it parses (tokens, tables, maps); piece by piece, a 31 MiB file needs that only for
 /// one piece. Done only when the pieces are certain to be the file's own tables: no multi-line
@@ -430,21 +541,7 @@ fn is_couple_header(line: &str) -> bool {
 /// of syntax errors; otherwise (`None`) the whole file is parsed at once, so that errors are
 /// reported exactly as the parser sees them.
 fn read_toml_in_pieces(text: &str) -> Option<CoupleFile> {
-    if text.contains("'''") || text.contains("\"\"\"") {
-        return None;
-    }
-    let mut headers = Vec::new();
-    let mut offset = 0;
-    for line in text.split_inclusive('\n') {
-        let trimmed = line.trim_start();
-        if trimmed.starts_with('[') {
-            if !is_couple_header(trimmed) {
-                return None;
-            }
-            headers.push(offset);
-        }
-        offset += line.len();
-    }
+    let headers = toml_couple_starts(text).ok()?;
     let mut bounds: Vec<usize> = std::iter::once(0)
         .chain(
             headers
@@ -460,38 +557,19 @@ fn read_toml_in_pieces(text: &str) -> Option<CoupleFile> {
     file.records.reserve_exact(headers.len());
     for piece in bounds.windows(2) {
         let (start, end) = (piece[0], piece[1]);
-        let part = read_toml_whole(&text[start..end]);
+        let mut part = read_toml_whole(&text[start..end]);
         if part.problems.iter().any(|p| p.kind == ProblemKind::Syntax) {
             return None;
         }
-        let first_record = file.records.len();
-        file.records
-            .extend(part.records.into_iter().map(|mut record| {
-                record.shift(start, first_record);
-                record
-            }));
-        file.problems
-            .extend(part.problems.into_iter().map(|mut problem| {
-                problem.span = problem.span.shifted(start);
-                problem.record = problem.record.map(|r| r + first_record);
-                problem
-            }));
-        file.unknown_keys
-            .extend(part.unknown_keys.into_iter().map(|mut key| {
-                key.shift(start);
-                key
-            }));
+        part.relocate(&|at| at + start, file.records.len());
+        file.records.extend(part.records);
+        file.problems.extend(part.problems);
+        file.unknown_keys.extend(part.unknown_keys);
     }
     Some(file)
 }
 
 impl CoupleRecord {
-    /// Moves every span by `offset` bytes and the index by `first_index`: the record was read
-    /// from a piece of the file starting at `offset`, after `first_index` couples.
-    fn shift(&mut self, offset: usize, first_index: usize) {
-        self.relocate(&|at| at + offset, first_index);
-    }
-
     /// Maps every byte offset the record holds through `to_file` and moves its index by
     /// `first_index`: for a record read from a piece of a larger text. Every field is moved, so
     /// a field added to the record is added here once for every reader that cuts files.
@@ -538,10 +616,6 @@ impl CoupleRecord {
 }
 
 impl<T> Field<T> {
-    fn shift(&mut self, offset: usize) {
-        self.relocate(&|at| at + offset);
-    }
-
     /// Maps the span, the content start and every escape's file offset through `to_file`.
     pub fn relocate(&mut self, to_file: &dyn Fn(usize) -> usize) {
         self.span = Span::new(to_file(self.span.start), to_file(self.span.end));
@@ -549,16 +623,6 @@ impl<T> Field<T> {
         for (_, file) in &mut self.escapes {
             *file = to_file(*file);
         }
-    }
-}
-
-trait Shifted {
-    fn shifted(self, offset: usize) -> Self;
-}
-
-impl Shifted for Span {
-    fn shifted(self, offset: usize) -> Span {
-        Span::new(self.start + offset, self.end + offset)
     }
 }
 
@@ -895,13 +959,8 @@ fn csv_rows(text: &str) -> (Vec<CsvRow>, Option<ReadProblem>) {
     let bytes = text.as_bytes();
     let mut rows = Vec::new();
     let mut i = 0;
-    while i < bytes.len() {
-        let line_end = text[i..].find(['\n', '\r']).map_or(bytes.len(), |n| i + n);
-        let line = &text[i..line_end];
-        if line.trim().is_empty() || line.starts_with('#') {
-            i = skip_line_break(bytes, line_end);
-            continue;
-        }
+    while let Some(start) = next_row(text, i) {
+        i = start;
         let row_start = i;
         let mut fields = Vec::new();
         loop {
@@ -980,6 +1039,21 @@ fn csv_rows(text: &str) -> (Vec<CsvRow>, Option<ReadProblem>) {
 }
 
 /// The offset after the line break at `at` (`\r\n`, `\n` or `\r`), or `at` at the end.
+/// Where the next CSV row starts at or after `i`, comment lines (`#`) and blank lines skipped;
+/// `None` at the end of the text.
+fn next_row(text: &str, mut i: usize) -> Option<usize> {
+    let bytes = text.as_bytes();
+    while i < bytes.len() {
+        let line_end = text[i..].find(['\n', '\r']).map_or(bytes.len(), |n| i + n);
+        let line = &text[i..line_end];
+        if !(line.trim().is_empty() || line.starts_with('#')) {
+            return Some(i);
+        }
+        i = skip_line_break(bytes, line_end);
+    }
+    None
+}
+
 fn skip_line_break(bytes: &[u8], at: usize) -> usize {
     match (bytes.get(at), bytes.get(at + 1)) {
         (Some(b'\r'), Some(b'\n')) => at + 2,
