@@ -403,8 +403,12 @@ pub fn least_hydrated(species: &Species) -> Option<(Species, u64)> {
             n => formula.push_str(&format!("{}{n}", element.symbol())),
         }
     }
-    if formula.is_empty() {
-        // Water itself.
+    let holds_another_element = composition
+        .counts()
+        .iter()
+        .any(|&(element, _)| element != hydrogen && element != oxygen);
+    if !holds_another_element {
+        // Water itself, or H2O2 (not a hydrate of atomic oxygen).
         return None;
     }
     let mut form = parse_species(&format!("{formula}(aq)")).ok()?;
