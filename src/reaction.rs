@@ -80,6 +80,22 @@ impl Reaction {
         reaction
     }
 
+    /// A reaction from species known to be distinct (no two the same by [`same_species`]) with
+    /// nonzero ν, in the order given: what [`Reaction::add`] would build from them, without
+    /// looking each one up.
+    pub(crate) fn from_distinct_species(
+        entries: impl Iterator<Item = (Species, BigRational)>,
+    ) -> Reaction {
+        let entries: Vec<Entry> = entries.map(|(species, nu)| Entry { species, nu }).collect();
+        debug_assert!(entries.iter().enumerate().all(|(i, e)| {
+            !e.nu.is_zero()
+                && !entries[..i]
+                    .iter()
+                    .any(|f| same_species(&f.species, &e.species))
+        }));
+        Reaction { entries }
+    }
+
     /// Adds `nu` to the stoichiometric number of `species`, dropping it when it reaches zero.
     /// A state label fills in where the existing entry had none.
     pub fn add(&mut self, species: &Species, nu: BigRational) {

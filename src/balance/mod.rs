@@ -42,6 +42,7 @@
 mod halves;
 pub mod matrix;
 mod modular;
+mod small;
 
 pub use halves::{HalfReactions, split};
 
@@ -656,21 +657,27 @@ fn sign(x: &BigInt) -> i8 {
     }
 }
 
-/// Flips `vector` so that as many user species as possible sit on their written side (on a
-/// tie, the first user species with a nonzero entry decides). `sides` holds each column's
-/// side (see [`Column`]).
-fn orient(vector: &mut [BigInt], sides: &[i8]) {
+/// Whether a vector with these `signs` is to be flipped so that as many user species as
+/// possible sit on their written side (on a tie, the first user species with a nonzero entry
+/// decides). `sides` holds each column's side (see [`Column`]).
+fn flip_wanted(signs: &[i8], sides: &[i8]) -> bool {
     let mut agree = 0i64;
     let mut first: Option<bool> = None;
-    for (x, &side) in vector.iter().zip(sides) {
-        if side == 0 || x.is_zero() {
+    for (&s, &side) in signs.iter().zip(sides) {
+        if side == 0 || s == 0 {
             continue;
         }
-        let same = sign(x) == side;
+        let same = s == side;
         agree += if same { 1 } else { -1 };
         first.get_or_insert(same);
     }
-    if agree < 0 || (agree == 0 && first == Some(false)) {
+    agree < 0 || (agree == 0 && first == Some(false))
+}
+
+/// Flips `vector` as [`flip_wanted`] says.
+fn orient(vector: &mut [BigInt], sides: &[i8]) {
+    let signs: Vec<i8> = vector.iter().map(sign).collect();
+    if flip_wanted(&signs, sides) {
         for x in vector.iter_mut() {
             *x = -&*x;
         }
@@ -987,8 +994,15 @@ fn solve(
 ) -> Result<Reaction, Failure> {
     let columns = columns(written, medium, add_electrons);
     let sides: Vec<i8> = columns.iter().map(|c| c.side).collect();
-    let (matrix, rows) = conservation_matrix(&columns);
-    let mut basis = matrix::null_space_within(&matrix, meter)?;
+    let mut basis = match small::null_space(&columns, meter) {
+        Some(space) if space.dimension() == 1 => {
+            return solve_line(space.vector(0), &columns, &sides, written);
+        }
+        Some(space) => (0..space.dimension())
+            .map(|i| space.vector(i).iter().map(|&x| BigInt::from(x)).collect())
+            .collect(),
+        None => matrix::null_space_within(&conservation_matrix(&columns).0, meter)?,
+    };
     let never_taking_part: Vec<Species> = columns
         .iter()
         .enumerate()
@@ -996,17 +1010,13 @@ fn solve(
         .map(|(_, c)| c.species.clone())
         .collect();
     if basis.is_empty() || !never_taking_part.is_empty() {
-        return Err(Failure::Unexplained(Unexplained {
-            // With no balance at all, no species is singled out.
-            never_taking_part: if basis.is_empty() {
-                Vec::new()
-            } else {
-                never_taking_part
-            },
-            matrix,
-            rows,
-            sides,
-        }));
+        // With no balance at all, no species is singled out.
+        let never_taking_part = if basis.is_empty() {
+            Vec::new()
+        } else {
+            never_taking_part
+        };
+        return Err(unexplained(never_taking_part, &columns, sides));
     }
     for vector in basis.iter_mut() {
         orient(vector, &sides);
@@ -1019,14 +1029,89 @@ fn solve(
         .into());
     }
     let vector = &basis[0];
-    let wrong_side: Vec<Species> = vector
+    let signs: Vec<i8> = vector.iter().map(sign).collect();
+    finish(&signs, reaction_of(vector, &columns), &columns, written)
+}
+
+/// A failed solve, with what [`Failure::explain`] needs to find the row to blame.
+fn unexplained(never_taking_part: Vec<Species>, columns: &[Column], sides: Vec<i8>) -> Failure {
+    let (matrix, rows) = conservation_matrix(columns);
+    Failure::Unexplained(Unexplained {
+        never_taking_part,
+        matrix,
+        rows,
+        sides,
+    })
+}
+
+/// The end of [`solve`] for the usual one-line null space found on the stack
+/// ([`small::null_space`]): the same decisions on the same vector, in `i64`.
+fn solve_line(
+    line: &[i64],
+    columns: &[Column],
+    sides: &[i8],
+    written: &[(&Species, i8)],
+) -> Result<Reaction, Failure> {
+    let mut signs = [0i8; small::MAX_COLUMNS];
+    let signs = &mut signs[..line.len()];
+    for (s, &x) in signs.iter_mut().zip(line) {
+        *s = x.signum() as i8;
+    }
+    if signs
         .iter()
-        .zip(&columns)
-        .filter(|(x, c)| c.side != 0 && sign(x) != c.side)
-        .map(|(_, c)| c.species.clone())
-        .collect();
-    let reaction = reaction_of(vector, &columns);
-    if !wrong_side.is_empty() {
+        .zip(sides)
+        .any(|(&s, &side)| side != 0 && s == 0)
+    {
+        let never_taking_part = columns
+            .iter()
+            .zip(signs.iter())
+            .filter(|(c, s)| c.side != 0 && **s == 0)
+            .map(|(c, _)| c.species.clone())
+            .collect();
+        return Err(unexplained(never_taking_part, columns, sides.to_vec()));
+    }
+    let flip = flip_wanted(signs, sides);
+    if flip {
+        for s in signs.iter_mut() {
+            *s = -*s;
+        }
+    }
+    let oriented = |x: i64| if flip { -x } else { x };
+    let reaction = if columns.iter().all(|c| c.species.composition.is_integral()) {
+        Reaction::from_distinct_species(line.iter().zip(columns).filter(|(x, _)| **x != 0).map(
+            |(&x, c)| {
+                (
+                    c.species.clone(),
+                    BigRational::from_integer(BigInt::from(oriented(x))),
+                )
+            },
+        ))
+    } else {
+        let vector: Vec<BigInt> = line.iter().map(|&x| BigInt::from(oriented(x))).collect();
+        reaction_of(&vector, columns)
+    };
+    finish(signs, reaction, columns, written)
+}
+
+/// The user's species on their written sides (or the error naming those that are not), then
+/// the independent recount. `signs` are those of the oriented vector behind `reaction`.
+fn finish(
+    signs: &[i8],
+    reaction: Reaction,
+    columns: &[Column],
+    written: &[(&Species, i8)],
+) -> Result<Reaction, Failure> {
+    if signs
+        .iter()
+        .zip(columns)
+        .any(|(&s, c)| c.side != 0 && s != c.side)
+    {
+        let wrong_side = signs
+            .iter()
+            .zip(columns)
+            .filter(|(s, c)| c.side != 0 && **s != c.side)
+            .map(|(_, c)| c.species.clone())
+            .collect();
         return Err(BalanceError::Impossible(Impossible::WrongSide {
             species: wrong_side,
             moved: reaction,
