@@ -12,13 +12,15 @@
 use crate::elements::{Element, WeightKind};
 use num_integer::Integer;
 use num_rational::Ratio;
+use smallvec::SmallVec;
 use std::fmt;
 
 /// How many atoms of each element a species holds, in order of first appearance, and its charge.
 #[derive(Clone, Debug, PartialEq, Eq, Hash)]
 pub struct Composition {
-    /// Atoms per `denominator` formula units.
-    counts: Vec<(Element, u64)>,
+    /// Atoms per `denominator` formula units. Most species hold at most four elements, which
+    /// then live inline: a species is cloned into every reaction it takes part in.
+    counts: SmallVec<[(Element, u64); 4]>,
     /// The least common denominator of the counts (1 for whole-number formulas).
     denominator: u64,
     charge: i64,
@@ -44,7 +46,7 @@ impl Composition {
     /// An empty composition with the given charge (the electron is `Composition::charged(-1)`).
     pub fn charged(charge: i64) -> Composition {
         Composition {
-            counts: Vec::new(),
+            counts: SmallVec::new(),
             denominator: 1,
             charge,
         }

@@ -56,6 +56,7 @@ use matrix::{IntegerMatrix, WorkLimitReached, WorkMeter};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
+use smallvec::SmallVec;
 use std::fmt;
 use std::str::FromStr;
 use std::sync::LazyLock;
@@ -360,8 +361,8 @@ pub enum BalanceError {
     /// A species is written twice.
     #[error("{species} is written twice: write each species once")]
     Repeated {
-        /// The species.
-        species: Species,
+        /// The species (boxed: errors stay small, so that results stay small).
+        species: Box<Species>,
         /// Where the second one was written.
         span: Span,
     },
@@ -477,7 +478,7 @@ fn balance_metered(
     for (i, (species, _)) in written.iter().enumerate() {
         if written[..i].iter().any(|(s, _)| same_species(s, species)) {
             return Err(BalanceError::Repeated {
-                species: (*species).clone(),
+                species: Box::new((*species).clone()),
                 span: species.span,
             });
         }
@@ -769,7 +770,24 @@ fn side_score(vector: &[BigInt], sides: &[i8]) -> i64 {
         .sum()
 }
 
+/// [`side_score`] of a vector held in `i64`.
+fn side_score_fixed(vector: &[i64], sides: &[i8]) -> i64 {
+    vector
+        .iter()
+        .zip(sides)
+        .filter(|(x, side)| **side != 0 && **x != 0)
+        .map(|(x, &side)| if x.signum() as i8 == side { 1 } else { -2 })
+        .sum()
+}
+
 fn primitive(vector: Vec<BigInt>) -> Vec<BigInt> {
+    if let Some(content) = machine_content(&vector) {
+        if content <= 1 {
+            return vector;
+        }
+        let content = BigInt::from(content);
+        return vector.into_iter().map(|x| x / &content).collect();
+    }
     let content = vector
         .iter()
         .fold(BigInt::zero(), |g, x| num_integer::Integer::gcd(&g, x));
@@ -777,6 +795,19 @@ fn primitive(vector: Vec<BigInt>) -> Vec<BigInt> {
         return vector;
     }
     vector.into_iter().map(|x| x / &content).collect()
+}
+
+/// The gcd of the entries in machine words when every entry fits `u64` in magnitude (the big
+/// integer gcd shifts and subtracts word by word, many times slower).
+fn machine_content(vector: &[BigInt]) -> Option<u64> {
+    let mut content = 0u64;
+    for x in vector {
+        let magnitude = u64::try_from(x.magnitude()).ok()?;
+        if content != 1 {
+            content = num_integer::Integer::gcd(&content, &magnitude);
+        }
+    }
+    Some(content)
 }
 
 /// Candidates `a·vᵢ + b·vⱼ` tried for each pair by [`prefer_written_sides`]: `1 ≤ a ≤ MAX_A`,
@@ -816,29 +847,35 @@ fn fixed_width(vector: &[BigInt]) -> Option<Vec<i64>> {
         .collect()
 }
 
-/// The key of `a·x + b·y` after [`orient`] and [`primitive`], computed in fixed width without
-/// building the vector. The orientation is read from the signs alone, and the largest
-/// magnitude (which needs the content) only when the side score can still win against
-/// `best`: most candidates lose on the score.
-fn fixed_width_key(x: &[i64], y: &[i64], a: i64, b: i64, sides: &[i8], best: &Key) -> Option<Key> {
+/// The key of `a·x + b·y` after [`orient`] and [`primitive`] when it beats `best` (`None`
+/// otherwise), computed in fixed width without building the vector. The orientation is read
+/// from the signs alone, and the largest magnitude (which needs the content) only when the
+/// side score can still win: most candidates lose on the score. `user` holds the entries of
+/// the user's species, `(x, y, side)`, in column order.
+fn fixed_width_key(
+    x: &[i64],
+    y: &[i64],
+    user: &[(i64, i64, i8)],
+    (a, b): (i64, i64),
+    best: &Key,
+) -> Option<Key> {
     let (mut same, mut different) = (0i64, 0i64);
-    let mut first: Option<bool> = None;
-    for ((&x, &y), &side) in x.iter().zip(y).zip(sides) {
-        let value = a * x + b * y;
-        if side == 0 || value == 0 {
-            continue;
-        }
-        let agrees = (value > 0) == (side > 0);
-        if agrees {
-            same += 1;
-        } else {
-            different += 1;
-        }
-        first.get_or_insert(agrees);
+    for &(x, y, side) in user {
+        // +1 on its written side, −1 across the arrow, 0 for a zero entry: counted without
+        // branches, since these signs are what changes between candidates.
+        let agreement = (a * x + b * y).signum() as i8 * side;
+        same += i64::from(agreement > 0);
+        different += i64::from(agreement < 0);
     }
     // As in `orient`: flipped when more species sit on the wrong side, or on a tie when the
-    // first one does; flipping swaps the two counts.
-    let flipped = same < different || (same == different && first == Some(false));
+    // first one with a nonzero entry does; flipping swaps the two counts.
+    let flipped = same < different
+        || (same == different
+            && user
+                .iter()
+                .map(|&(x, y, side)| (a * x + b * y).signum() as i8 * side)
+                .find(|&agreement| agreement != 0)
+                .is_some_and(|agreement| agreement < 0));
     let (same, different) = if flipped {
         (different, same)
     } else {
@@ -848,31 +885,154 @@ fn fixed_width_key(x: &[i64], y: &[i64], a: i64, b: i64, sides: &[i8], best: &Ke
     if score < best.0 {
         return None;
     }
-    let (mut largest, mut content) = (0u64, 0u64);
+    let largest = x
+        .iter()
+        .zip(y)
+        .map(|(&x, &y)| (a * x + b * y).unsigned_abs())
+        .max()
+        .unwrap_or(0);
+    // On an equal score the candidate wins only with a smaller primitive largest entry,
+    // largest / content < best, that is content > largest / best: the content (a gcd over
+    // the vector) can only fall as entries are added, so the search stops as soon as it is
+    // down to that bound. Most candidates are settled after one or two gcds.
+    let at_most = match best.1.0 {
+        Magnitude::Small(best_largest) if score == best.0 => {
+            u64::try_from(u128::from(largest) / best_largest.max(1)).unwrap_or(u64::MAX)
+        }
+        _ => 0,
+    };
+    let mut content = 0u64;
     for (&x, &y) in x.iter().zip(y) {
         let magnitude = (a * x + b * y).unsigned_abs();
-        largest = largest.max(magnitude);
-        // Once the content is 1 it stays 1: only the largest entry is still needed.
-        if content != 1 {
-            content = num_integer::Integer::gcd(&content, &magnitude);
+        content = num_integer::Integer::gcd(&content, &magnitude);
+        if content != 0 && content <= at_most {
+            return None;
+        }
+        // Once the content is 1 it stays 1.
+        if content == 1 {
+            break;
         }
     }
     let largest = largest.checked_div(content).unwrap_or(0);
-    Some((
+    let key = (
         score,
         std::cmp::Reverse(Magnitude::Small(u128::from(largest))),
-    ))
+    );
+    (key > *best).then_some(key)
 }
 
-/// `a·x + b·y`, oriented and primitive, as big integers (the winner of a fixed-width search).
-fn fixed_width_combination(x: &[i64], y: &[i64], a: i64, b: i64, sides: &[i8]) -> Vec<BigInt> {
-    let mut vector: Vec<BigInt> = x
+/// `a·x + b·y`, oriented and primitive, in `i64` (no entry reaches 2⁶² for vectors below 2⁵⁸).
+fn fixed_width_combination(x: &[i64], y: &[i64], a: i64, b: i64, sides: &[i8]) -> Vec<i64> {
+    let mut vector: Vec<i64> = x.iter().zip(y).map(|(&x, &y)| a * x + b * y).collect();
+    orient_fixed(&mut vector, sides);
+    let content = vector
+        .iter()
+        .fold(0u64, |g, x| {
+            num_integer::Integer::gcd(&g, &x.unsigned_abs())
+        })
+        .max(1) as i64;
+    for x in vector.iter_mut() {
+        *x /= content;
+    }
+    vector
+}
+
+/// [`orient`] for a vector in `i64`.
+fn orient_fixed(vector: &mut [i64], sides: &[i8]) {
+    let mut signs = [0i8; small::MAX_COLUMNS];
+    let flip = if vector.len() <= signs.len() {
+        for (s, x) in signs.iter_mut().zip(vector.iter()) {
+            *s = x.signum() as i8;
+        }
+        flip_wanted(&signs[..vector.len()], sides)
+    } else {
+        let signs: Vec<i8> = vector.iter().map(|x| x.signum() as i8).collect();
+        flip_wanted(&signs, sides)
+    };
+    if flip {
+        for x in vector.iter_mut() {
+            *x = -*x;
+        }
+    }
+}
+
+/// Entries below this magnitude let [`fixed_width_key`] combine two vectors in `i64`.
+const FIXED_WIDTH_BOUND: u64 = 1 << 58;
+
+/// [`prefer_written_sides`] for a basis held in `i64` (what the stack path gives): the same
+/// candidates, keys, choices and work as the fixed-width scoring there, with no big integer
+/// anywhere. `None`, with the basis and the meter untouched, when a vector reaches 2⁵⁸
+/// (the caller then takes the general path).
+fn prefer_written_sides_fixed(
+    basis: &mut [Vec<i64>],
+    sides: &[i8],
+    meter: &mut WorkMeter,
+) -> Option<()> {
+    let fits = |v: &[i64]| v.iter().all(|x| x.unsigned_abs() < FIXED_WIDTH_BOUND);
+    if !basis.iter().all(|v| fits(v)) {
+        return None;
+    }
+    let mut trial = *meter;
+    let mut work = basis.to_vec();
+    for i in 0..work.len() {
+        let mut best_key = fixed_key(&work[i], sides);
+        let mut best: Option<Vec<i64>> = None;
+        for j in (0..work.len()).filter(|&j| j != i) {
+            let (x, y) = (&work[i], &work[j]);
+            // Two products and a sum per entry and candidate.
+            let per_candidate = 3 * x.len() as u64;
+            if trial.charge(per_candidate * CANDIDATES_PER_PAIR).is_err() {
+                break;
+            }
+            if let Some((a, b)) = best_candidate(x, y, sides, &mut best_key) {
+                best = Some(fixed_width_combination(x, y, a, b, sides));
+            }
+        }
+        if let Some(best) = best {
+            if !fits(&best) {
+                return None;
+            }
+            work[i] = best;
+        }
+        if trial.used() > trial.limit() {
+            break;
+        }
+    }
+    basis.clone_from_slice(&work);
+    *meter = trial;
+    Some(())
+}
+
+/// The [`Key`] of a vector held in `i64`.
+fn fixed_key(vector: &[i64], sides: &[i8]) -> Key {
+    (
+        side_score_fixed(vector, sides),
+        std::cmp::Reverse(Magnitude::Small(u128::from(
+            vector.iter().map(|v| v.unsigned_abs()).max().unwrap_or(0),
+        ))),
+    )
+}
+
+/// The first `(a, b)` whose candidate beats `best` (raised as better ones are found), in the
+/// order `a`, `b`.
+fn best_candidate(x: &[i64], y: &[i64], sides: &[i8], best: &mut Key) -> Option<(i64, i64)> {
+    let user: SmallVec<[(i64, i64, i8); small::MAX_COLUMNS]> = x
         .iter()
         .zip(y)
-        .map(|(&x, &y)| BigInt::from(a * x + b * y))
+        .zip(sides)
+        .filter(|(_, side)| **side != 0)
+        .map(|((&x, &y), &side)| (x, y, side))
         .collect();
-    orient(&mut vector, sides);
-    primitive(vector)
+    let mut winner = None;
+    for a in 1..=MAX_A {
+        for b in -MAX_B..=MAX_B {
+            if let Some(key) = fixed_width_key(x, y, &user, (a, b), best) {
+                *best = key;
+                winner = Some((a, b));
+            }
+        }
+    }
+    winner
 }
 
 /// Rewrites a null-space basis so that each vector keeps as many user species on their written
@@ -910,10 +1070,13 @@ fn prefer_written_sides_in(
     };
     let mut fixed: Vec<Option<Vec<i64>>> = basis.iter().map(mirror).collect();
     for i in 0..basis.len() {
-        let mut best_key: Key = (
-            side_score(&basis[i], sides),
-            std::cmp::Reverse(Magnitude::of(&basis[i])),
-        );
+        let mut best_key: Key = match &fixed[i] {
+            Some(x) => fixed_key(x, sides),
+            None => (
+                side_score(&basis[i], sides),
+                std::cmp::Reverse(Magnitude::of(&basis[i])),
+            ),
+        };
         let mut best: Option<Vec<BigInt>> = None;
         for j in (0..basis.len()).filter(|&j| j != i) {
             if let (Some(x), Some(y)) = (&fixed[i], &fixed[j]) {
@@ -922,20 +1085,13 @@ fn prefer_written_sides_in(
                 if meter.charge(per_candidate * CANDIDATES_PER_PAIR).is_err() {
                     break;
                 }
-                let mut winner = None;
-                for a in 1..=MAX_A {
-                    for b in -MAX_B..=MAX_B {
-                        match fixed_width_key(x, y, a, b, sides, &best_key) {
-                            Some(key) if key > best_key => {
-                                best_key = key;
-                                winner = Some((a, b));
-                            }
-                            _ => {}
-                        }
-                    }
-                }
-                if let Some((a, b)) = winner {
-                    best = Some(fixed_width_combination(x, y, a, b, sides));
+                if let Some((a, b)) = best_candidate(x, y, sides, &mut best_key) {
+                    best = Some(
+                        fixed_width_combination(x, y, a, b, sides)
+                            .into_iter()
+                            .map(BigInt::from)
+                            .collect(),
+                    );
                 }
                 continue;
             }
@@ -998,9 +1154,13 @@ fn solve(
         Some(space) if space.dimension() == 1 => {
             return solve_line(space.vector(0), &columns, &sides, written);
         }
-        Some(space) => (0..space.dimension())
-            .map(|i| space.vector(i).iter().map(|&x| BigInt::from(x)).collect())
-            .collect(),
+        Some(space) if space.dimension() >= 2 => {
+            let basis = (0..space.dimension())
+                .map(|i| space.vector(i).to_vec())
+                .collect();
+            return solve_plane(basis, &columns, sides, meter);
+        }
+        Some(_) => Vec::new(),
         None => matrix::null_space_within(&conservation_matrix(&columns).0, meter)?,
     };
     let never_taking_part: Vec<Species> = columns
@@ -1031,6 +1191,46 @@ fn solve(
     let vector = &basis[0];
     let signs: Vec<i8> = vector.iter().map(sign).collect();
     finish(&signs, reaction_of(vector, &columns), &columns, written)
+}
+
+/// The end of [`solve`] for two or more independent balances found on the stack: the same
+/// decisions as the general tail, in `i64` until the reactions are written.
+fn solve_plane(
+    mut basis: Vec<Vec<i64>>,
+    columns: &[Column],
+    sides: Vec<i8>,
+    meter: &mut WorkMeter,
+) -> Result<Reaction, Failure> {
+    let never_taking_part: Vec<Species> = columns
+        .iter()
+        .enumerate()
+        .filter(|(i, c)| c.side != 0 && basis.iter().all(|v| v[*i] == 0))
+        .map(|(_, c)| c.species.clone())
+        .collect();
+    if !never_taking_part.is_empty() {
+        return Err(unexplained(never_taking_part, columns, sides));
+    }
+    for vector in basis.iter_mut() {
+        orient_fixed(vector, &sides);
+    }
+    let big = |basis: &[Vec<i64>]| -> Vec<Vec<BigInt>> {
+        basis
+            .iter()
+            .map(|v| v.iter().map(|&x| BigInt::from(x)).collect())
+            .collect()
+    };
+    let basis = match prefer_written_sides_fixed(&mut basis, &sides, meter) {
+        Some(()) => big(&basis),
+        None => {
+            let mut wide = big(&basis);
+            prefer_written_sides(&mut wide, &sides, meter);
+            wide
+        }
+    };
+    Err(BalanceError::NotUnique {
+        basis: basis.iter().map(|v| reaction_of(v, columns)).collect(),
+    }
+    .into())
 }
 
 /// A failed solve, with what [`Failure::explain`] needs to find the row to blame.
@@ -1248,6 +1448,19 @@ mod tests {
             prefer_written_sides_in(&mut big, &sides, &mut big_meter, Width::BigOnly);
             assert_eq!(fixed, big, "{text}");
             assert!(fixed_meter.used() < big_meter.used(), "{text}");
+            // The stack path's own search, all in i64, chooses the same and charges the same.
+            let mut machine: Vec<Vec<i64>> = basis
+                .iter()
+                .map(|v| v.iter().map(|x| i64::try_from(x).unwrap()).collect())
+                .collect();
+            let mut machine_meter = WorkMeter::new(u64::MAX);
+            prefer_written_sides_fixed(&mut machine, &sides, &mut machine_meter).unwrap();
+            let machine: Vec<Vec<BigInt>> = machine
+                .iter()
+                .map(|v| v.iter().map(|&x| BigInt::from(x)).collect())
+                .collect();
+            assert_eq!(machine, big, "{text}");
+            assert_eq!(machine_meter.used(), fixed_meter.used(), "{text}");
         }
         // Entries of 2^125 (past 2^58) leave the fixed width; the answer is the big-integer one.
         let huge = BigInt::from(1) << 125usize;

@@ -15,6 +15,7 @@ use crate::notation::{Formula, Species, SpeciesKind, Style, species_to_string};
 use crate::quotient::Quotient;
 use serde_json::json;
 use std::fmt;
+use std::sync::Arc;
 use thiserror::Error;
 
 pub use molality::{Input, InputKind, MolalityForm};
@@ -90,10 +91,10 @@ pub fn argument_name(species: &Species) -> String {
     let body = match &species.kind {
         SpeciesKind::Formula(formula) => {
             let neutral = Species {
-                kind: SpeciesKind::Formula(Formula {
+                kind: SpeciesKind::Formula(Arc::new(Formula {
                     components: formula.components.clone(),
                     charge: 0,
-                }),
+                })),
                 state: None,
                 ..species.clone()
             };

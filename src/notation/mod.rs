@@ -20,6 +20,7 @@ use num_rational::Ratio;
 use std::fmt;
 use std::hash::{Hash, Hasher};
 use std::str::FromStr;
+use std::sync::Arc;
 
 /// A byte range into the text a value was read from.
 ///
@@ -186,8 +187,9 @@ impl Compartment {
 pub enum SpeciesKind {
     /// `e-`
     Electron,
-    /// Anything else.
-    Formula(Formula),
+    /// Anything else. Shared: a species is cloned into every reaction it takes part in, and
+    /// the formula never changes once read.
+    Formula(Arc<Formula>),
 }
 
 /// A species as written: formula or electron, with an optional state label, and its

@@ -27,6 +27,7 @@ use nom::IResult;
 use nom::error::{ErrorKind, ParseError};
 use num_rational::Ratio;
 use std::borrow::Cow;
+use std::sync::Arc;
 
 /// Documented bounds on what the parser accepts; input past them is a `limit` error.
 #[derive(Clone, Copy, Debug)]
@@ -642,7 +643,7 @@ impl<'a> Ctx<'a> {
         Ok((
             rest,
             Species {
-                kind: SpeciesKind::Formula(formula),
+                kind: SpeciesKind::Formula(Arc::new(formula)),
                 state,
                 compartment,
                 composition,

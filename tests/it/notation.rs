@@ -178,7 +178,7 @@ mod properties {
             }),
             9 => (formula(), state(), compartment()).prop_filter_map("charge beyond the protons", |(f, state, compartment)| {
                 let shell = Species {
-                    kind: SpeciesKind::Formula(f),
+                    kind: SpeciesKind::Formula(std::sync::Arc::new(f)),
                     state,
                     compartment,
                     composition: Default::default(),
@@ -220,7 +220,7 @@ mod properties {
         #[test]
         fn generated_formulas_read_back_as_generated(f in formula(), state in state(), compartment in compartment()) {
             let shell = Species {
-                kind: SpeciesKind::Formula(f),
+                kind: SpeciesKind::Formula(std::sync::Arc::new(f)),
                 state,
                 compartment,
                 composition: Default::default(),
