@@ -86,7 +86,11 @@ impl Reaction {
     pub(crate) fn from_distinct_species(
         entries: impl Iterator<Item = (Species, BigRational)>,
     ) -> Reaction {
-        let entries: Vec<Entry> = entries.map(|(species, nu)| Entry { species, nu }).collect();
+        // A filtered iterator gives no lower bound: reserve its upper one, so that the entries
+        // are never moved while they are collected.
+        let mut collected = Vec::with_capacity(entries.size_hint().1.unwrap_or(0));
+        collected.extend(entries.map(|(species, nu)| Entry { species, nu }));
+        let entries = collected;
         debug_assert!(entries.iter().enumerate().all(|(i, e)| {
             !e.nu.is_zero()
                 && !entries[..i]

@@ -701,11 +701,14 @@ fn reaction_of(vector: &[BigInt], columns: &[Column]) -> Reaction {
         );
         &scaled
     };
-    let mut reaction = Reaction::new();
-    for (x, column) in vector.iter().zip(columns) {
-        reaction.add(column.species, BigRational::from_integer(x.clone()));
-    }
-    reaction
+    // Columns are distinct species by construction (a repeated one is refused before).
+    Reaction::from_distinct_species(
+        vector
+            .iter()
+            .zip(columns)
+            .filter(|(x, _)| !x.is_zero())
+            .map(|(x, c)| (c.species.clone(), BigRational::from_integer(x.clone()))),
+    )
 }
 
 /// Whether some balance exists in which every user species takes part, judged from a null
@@ -851,22 +854,16 @@ fn fixed_width(vector: &[BigInt]) -> Option<Vec<i64>> {
 /// otherwise), computed in fixed width without building the vector. The orientation is read
 /// from the signs alone, and the largest magnitude (which needs the content) only when the
 /// side score can still win: most candidates lose on the score. `user` holds the entries of
-/// the user's species, `(x, y, side)`, in column order.
+/// the user's species, `(x, y, side)`, in column order, and `(same, different)` how many of
+/// them the candidate puts on their written side and across the arrow ([`side_counts`]).
 fn fixed_width_key(
     x: &[i64],
     y: &[i64],
     user: &[(i64, i64, i8)],
     (a, b): (i64, i64),
+    (same, different): (i64, i64),
     best: &Key,
 ) -> Option<Key> {
-    let (mut same, mut different) = (0i64, 0i64);
-    for &(x, y, side) in user {
-        // +1 on its written side, −1 across the arrow, 0 for a zero entry: counted without
-        // branches, since these signs are what changes between candidates.
-        let agreement = (a * x + b * y).signum() as i8 * side;
-        same += i64::from(agreement > 0);
-        different += i64::from(agreement < 0);
-    }
     // As in `orient`: flipped when more species sit on the wrong side, or on a tie when the
     // first one with a nonzero entry does; flipping swaps the two counts.
     let flipped = same < different
@@ -885,22 +882,30 @@ fn fixed_width_key(
     if score < best.0 {
         return None;
     }
-    let largest = x
-        .iter()
-        .zip(y)
-        .map(|(&x, &y)| (a * x + b * y).unsigned_abs())
-        .max()
-        .unwrap_or(0);
-    // On an equal score the candidate wins only with a smaller primitive largest entry,
-    // largest / content < best, that is content > largest / best: the content (a gcd over
-    // the vector) can only fall as entries are added, so the search stops as soon as it is
-    // down to that bound. Most candidates are settled after one or two gcds.
-    let at_most = match best.1.0 {
-        Magnitude::Small(best_largest) if score == best.0 => {
-            u64::try_from(u128::from(largest) / best_largest.max(1)).unwrap_or(u64::MAX)
+    let (mut largest, mut smallest) = (0u64, u64::MAX);
+    for (&x, &y) in x.iter().zip(y) {
+        let magnitude = (a * x + b * y).unsigned_abs();
+        largest = largest.max(magnitude);
+        if magnitude != 0 {
+            smallest = smallest.min(magnitude);
         }
+    }
+    // On an equal score the candidate wins only with a smaller primitive largest entry,
+    // largest / content < best, that is content > largest / best. The content divides every
+    // entry, so it is at most the smallest nonzero one: when even that is not enough, no gcd
+    // is needed. Otherwise the content (a gcd over the vector) can only fall as entries are
+    // added, and the search stops as soon as it is down to the bound.
+    let at_most = match best.1.0 {
+        // A u64 division where the best fits one (a u128 one is a library call).
+        Magnitude::Small(best_largest) if score == best.0 => match u64::try_from(best_largest) {
+            Ok(best_largest) => largest / best_largest.max(1),
+            Err(_) => 0,
+        },
         _ => 0,
     };
+    if smallest <= at_most {
+        return None;
+    }
     let mut content = 0u64;
     for (&x, &y) in x.iter().zip(y) {
         let magnitude = (a * x + b * y).unsigned_abs();
@@ -1025,14 +1030,72 @@ fn best_candidate(x: &[i64], y: &[i64], sides: &[i8], best: &mut Key) -> Option<
         .collect();
     let mut winner = None;
     for a in 1..=MAX_A {
-        for b in -MAX_B..=MAX_B {
-            if let Some(key) = fixed_width_key(x, y, &user, (a, b), best) {
+        let (same, different) = side_counts(&user, a);
+        for (b, (&same, &different)) in (-MAX_B..=MAX_B).zip(same.iter().zip(&different)) {
+            let counts = (i64::from(same), i64::from(different));
+            if let Some(key) = fixed_width_key(x, y, &user, (a, b), counts, best) {
                 *best = key;
                 winner = Some((a, b));
             }
         }
     }
     winner
+}
+
+/// Candidates per value of `a`: `b` from −MAX_B to MAX_B.
+const B_VALUES: usize = (2 * MAX_B + 1) as usize;
+
+/// For every `b` (index `b + MAX_B`), how many user species `a·x + b·y` puts on their written
+/// side and how many across the arrow, before any flip. Each entry's value is linear in `b`,
+/// so its sign changes at most once, at `b = −a·x/y`: the entry adds to a range of `b` on
+/// each side of that point, kept in difference arrays. A pass over the entries and one over
+/// the 17 values of `b`, instead of one over the entries for every `b`.
+fn side_counts(user: &[(i64, i64, i8)], a: i64) -> ([i32; B_VALUES], [i32; B_VALUES]) {
+    // Ranges of b, inclusive; empty when low > high.
+    let floor = |n: i64, d: i64| n.div_euclid(d);
+    let ceil = |n: i64, d: i64| -(-n).div_euclid(d);
+    let mut same = [0i32; B_VALUES + 1];
+    let mut different = [0i32; B_VALUES + 1];
+    let add = |counts: &mut [i32; B_VALUES + 1], (low, high): (i64, i64)| {
+        let (low, high) = (low.max(-MAX_B), high.min(MAX_B));
+        if low <= high {
+            counts[(low + MAX_B) as usize] += 1;
+            counts[(high + MAX_B + 1) as usize] -= 1;
+        }
+    };
+    const NONE: (i64, i64) = (1, 0);
+    const ALL: (i64, i64) = (-MAX_B, MAX_B);
+    for &(x, y, side) in user {
+        // value(b) = b·y − c with c = −a·x.
+        let c = -a * x;
+        let (positive, negative) = match y.signum() {
+            0 => match c.signum() {
+                -1 => (ALL, NONE),
+                1 => (NONE, ALL),
+                _ => (NONE, NONE),
+            },
+            // b·y > c ⟺ b > c/y; b·y < c ⟺ b < c/y.
+            1 => ((floor(c, y) + 1, MAX_B), (-MAX_B, ceil(c, y) - 1)),
+            // Dividing by y < 0 turns the inequalities round: c/y = (−c)/(−y).
+            _ => ((-MAX_B, ceil(-c, -y) - 1), (floor(-c, -y) + 1, MAX_B)),
+        };
+        let (agrees, disagrees) = if side > 0 {
+            (positive, negative)
+        } else {
+            (negative, positive)
+        };
+        add(&mut same, agrees);
+        add(&mut different, disagrees);
+    }
+    let mut totals = ([0i32; B_VALUES], [0i32; B_VALUES]);
+    let (mut running_same, mut running_different) = (0, 0);
+    for i in 0..B_VALUES {
+        running_same += same[i];
+        running_different += different[i];
+        totals.0[i] = running_same;
+        totals.1[i] = running_different;
+    }
+    totals
 }
 
 /// Rewrites a null-space basis so that each vector keeps as many user species on their written
@@ -1330,11 +1393,13 @@ fn self_check(reaction: &Reaction, written: &[(&Species, i8)]) -> Result<(), Bal
     if !conserves(reaction) {
         return internal();
     }
-    for &(species, side) in written {
-        let Some(entry) = reaction
-            .entries()
-            .iter()
-            .find(|e| same_species(&e.species, species))
+    let entries = reaction.entries();
+    for (i, &(species, side)) in written.iter().enumerate() {
+        // The user's species come first, in order, so the lookup usually ends at once.
+        let Some(entry) = entries
+            .get(i)
+            .filter(|e| same_species(&e.species, species))
+            .or_else(|| entries.iter().find(|e| same_species(&e.species, species)))
         else {
             return internal();
         };
@@ -1423,6 +1488,44 @@ mod tests {
             orient(vector, &sides);
         }
         (basis, sides)
+    }
+
+    /// The difference-array counts are the signs counted one candidate at a time.
+    #[test]
+    fn side_counts_are_the_counted_signs() {
+        let mut seed: u64 = 99;
+        let mut next = |range: i64| {
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            ((seed >> 33) as i64).rem_euclid(2 * range + 1) - range
+        };
+        for round in 0..2000 {
+            let range = if round % 2 == 0 { 12 } else { 1 << 40 };
+            let user: Vec<(i64, i64, i8)> = (0..1 + round % 9)
+                .map(|_| {
+                    let side = if next(1) >= 0 { 1 } else { -1 };
+                    // Zeros are common in null vectors: make them common here too.
+                    let pick = |v: i64| if v % 3 == 0 { 0 } else { v };
+                    (pick(next(range)), pick(next(range)), side)
+                })
+                .collect();
+            for a in 1..=MAX_A {
+                let (same, different) = side_counts(&user, a);
+                for (i, b) in (-MAX_B..=MAX_B).enumerate() {
+                    let agreements = user
+                        .iter()
+                        .map(|&(x, y, side)| (a * x + b * y).signum() as i8 * side);
+                    let expected_same = agreements.clone().filter(|&g| g > 0).count() as i32;
+                    let expected_different = agreements.filter(|&g| g < 0).count() as i32;
+                    assert_eq!(
+                        (same[i], different[i]),
+                        (expected_same, expected_different),
+                        "{user:?}, a = {a}, b = {b}"
+                    );
+                }
+            }
+        }
     }
 
     #[test]

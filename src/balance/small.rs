@@ -95,6 +95,7 @@ pub(super) fn null_space(columns: &[Column], meter: &mut WorkMeter) -> Option<Sm
         return None;
     }
     let columns = columns.len();
+    let cannot_overflow = products_fit(&entries[..rows], columns);
     let mut pivot_columns = [0usize; MAX_ROWS];
     let mut rank = 0;
     let mut previous = ExactDivisor::new(1);
@@ -106,7 +107,9 @@ pub(super) fn null_space(columns: &[Column], meter: &mut WorkMeter) -> Option<Sm
         let Some(found) = (rank..rows).find(|&r| entries[r][column] != 0) else {
             continue;
         };
-        entries.swap(rank, found);
+        if found != rank {
+            entries.swap(rank, found);
+        }
         if entries[rank][column] < 0 {
             for x in entries[rank][..columns].iter_mut() {
                 *x = x.checked_neg()?;
@@ -126,12 +129,19 @@ pub(super) fn null_space(columns: &[Column], meter: &mut WorkMeter) -> Option<Sm
                 continue;
             }
             // Updated in place: on overflow the whole attempt is dropped.
-            for (x, &p) in row[..columns].iter_mut().zip(&pivot_row[..columns]) {
-                let product = x
-                    .checked_mul(pivot)?
-                    .checked_sub(factor.checked_mul(p)?)
-                    .filter(|&x| x != i64::MIN)?;
-                *x = previous.divide(product);
+            let pairs = row[..columns].iter_mut().zip(&pivot_row[..columns]);
+            if cannot_overflow {
+                for (x, &p) in pairs {
+                    *x = previous.divide(*x * pivot - factor * p);
+                }
+            } else {
+                for (x, &p) in pairs {
+                    let product = x
+                        .checked_mul(pivot)?
+                        .checked_sub(factor.checked_mul(p)?)
+                        .filter(|&x| x != i64::MIN)?;
+                    *x = previous.divide(product);
+                }
             }
         }
         previous = ExactDivisor::new(pivot);
@@ -156,6 +166,31 @@ pub(super) fn null_space(columns: &[Column], meter: &mut WorkMeter) -> Option<Sm
     }
     meter.charge(work).ok()?;
     Some(space)
+}
+
+/// Whether no product in the elimination can overflow `i64`, by Hadamard's bound: every
+/// entry the elimination stores is a minor of the matrix (up to sign), no larger in magnitude
+/// than H, the product of the Euclidean norms of the nonzero rows, and every intermediate
+/// `x·pivot − factor·p` is at most 2·H². With H² ≤ 2⁶¹ that is below 2⁶³, so the usual
+/// chemistry matrix (small counts, a handful of rows) is eliminated without overflow checks.
+/// Integer arithmetic only: H² is the product of the squared norms.
+fn products_fit(rows: &[[i64; MAX_COLUMNS]], columns: usize) -> bool {
+    const LIMIT: u128 = 1 << 61;
+    let mut bound: u128 = 1;
+    for row in rows {
+        let mut squared: u128 = 0;
+        for &x in &row[..columns] {
+            squared += u128::from(x.unsigned_abs()).pow(2);
+            if squared > LIMIT {
+                return false;
+            }
+        }
+        bound = bound.saturating_mul(squared.max(1));
+        if bound > LIMIT {
+            return false;
+        }
+    }
+    true
 }
 
 /// The primitive null vector of free column `free` (see `null_vector_big` in
@@ -265,14 +300,17 @@ mod tests {
                 .wrapping_add(1442695040888963407);
             (seed >> 33) as usize
         };
-        for _ in 0..300 {
+        for round in 0..300 {
+            // Every third system has counts to 3,000, past Hadamard's bound for unchecked
+            // products, so that both kinds of elimination are compared.
+            let largest = if round % 3 == 0 { 3000 } else { 9 };
             let species = 3 + next() % 10;
             let terms: Vec<String> = (0..species)
                 .map(|_| {
                     let mut formula = String::new();
                     for symbol in symbols {
                         if next() % 3 == 0 {
-                            formula.push_str(&format!("{symbol}{}", 1 + next() % 9));
+                            formula.push_str(&format!("{symbol}{}", 1 + next() % largest));
                         }
                     }
                     if formula.is_empty() {
@@ -321,6 +359,21 @@ mod tests {
             }
         }
         assert!(compared > 1200, "only {compared} systems compared");
+    }
+
+    /// Hadamard's bound admits the usual matrices and refuses those whose minors could pass
+    /// 2⁶¹ (the checked elimination then runs, and hands over on overflow).
+    #[test]
+    fn products_fit_where_hadamard_allows() {
+        let mut rows = [[0i64; MAX_COLUMNS]; MAX_ROWS];
+        rows[0][..3].copy_from_slice(&[1, 2, 3]);
+        rows[1][..3].copy_from_slice(&[4, 0, -6]);
+        assert!(products_fit(&rows[..2], 3));
+        rows[2][..3].copy_from_slice(&[1 << 20, 1 << 20, 0]);
+        rows[3][..3].copy_from_slice(&[0, 1 << 20, 1 << 20]);
+        assert!(!products_fit(&rows[..4], 3));
+        rows[0][0] = i64::MAX;
+        assert!(!products_fit(&rows[..1], 3));
     }
 
     #[test]
