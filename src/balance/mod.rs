@@ -460,7 +460,7 @@ pub fn balance_counting(
 }
 
 /// The user's species with their sides (−1 reactants, +1 products), in order.
-fn written_species(equation: &Equation) -> Vec<(&Species, i8)> {
+fn written_species(equation: &Equation) -> Written<'_> {
     equation
         .reactants
         .iter()
@@ -582,6 +582,15 @@ impl From<WorkLimitReached> for Failure {
     }
 }
 
+/// The user's species with their sides (see [`written_species`]); on the stack for the usual
+/// equation, as are [`Columns`] and [`Sides`]: a balance should not allocate for its
+/// bookkeeping.
+type Written<'a> = SmallVec<[(&'a Species, i8); small::MAX_COLUMNS]>;
+/// The unknowns of a system (see [`Column`]).
+type Columns<'a> = SmallVec<[Column<'a>; small::MAX_COLUMNS]>;
+/// The side of each column.
+type Sides = SmallVec<[i8; small::MAX_COLUMNS]>;
+
 /// One unknown of the system: a species and the side it must end on (−1 left, +1 right, 0 for
 /// added species, which go where their sign puts them).
 struct Column<'a> {
@@ -589,12 +598,8 @@ struct Column<'a> {
     side: i8,
 }
 
-fn columns<'a>(
-    written: &[(&'a Species, i8)],
-    medium: Medium,
-    add_electrons: bool,
-) -> Vec<Column<'a>> {
-    let mut columns: Vec<Column> = written
+fn columns<'a>(written: &[(&'a Species, i8)], medium: Medium, add_electrons: bool) -> Columns<'a> {
+    let mut columns: Columns = written
         .iter()
         .map(|&(species, side)| Column { species, side })
         .collect();
@@ -1212,7 +1217,7 @@ fn solve(
     meter: &mut WorkMeter,
 ) -> Result<Reaction, Failure> {
     let columns = columns(written, medium, add_electrons);
-    let sides: Vec<i8> = columns.iter().map(|c| c.side).collect();
+    let sides: Sides = columns.iter().map(|c| c.side).collect();
     let mut basis = match small::null_space(&columns, meter) {
         Some(space) if space.dimension() == 1 => {
             return solve_line(space.vector(0), &columns, &sides, written);
@@ -1239,7 +1244,7 @@ fn solve(
         } else {
             never_taking_part
         };
-        return Err(unexplained(never_taking_part, &columns, sides));
+        return Err(unexplained(never_taking_part, &columns, &sides));
     }
     for vector in basis.iter_mut() {
         orient(vector, &sides);
@@ -1261,7 +1266,7 @@ fn solve(
 fn solve_plane(
     mut basis: Vec<Vec<i64>>,
     columns: &[Column],
-    sides: Vec<i8>,
+    sides: Sides,
     meter: &mut WorkMeter,
 ) -> Result<Reaction, Failure> {
     let never_taking_part: Vec<Species> = columns
@@ -1271,7 +1276,7 @@ fn solve_plane(
         .map(|(_, c)| c.species.clone())
         .collect();
     if !never_taking_part.is_empty() {
-        return Err(unexplained(never_taking_part, columns, sides));
+        return Err(unexplained(never_taking_part, columns, &sides));
     }
     for vector in basis.iter_mut() {
         orient_fixed(vector, &sides);
@@ -1297,13 +1302,13 @@ fn solve_plane(
 }
 
 /// A failed solve, with what [`Failure::explain`] needs to find the row to blame.
-fn unexplained(never_taking_part: Vec<Species>, columns: &[Column], sides: Vec<i8>) -> Failure {
+fn unexplained(never_taking_part: Vec<Species>, columns: &[Column], sides: &[i8]) -> Failure {
     let (matrix, rows) = conservation_matrix(columns);
     Failure::Unexplained(Unexplained {
         never_taking_part,
         matrix,
         rows,
-        sides,
+        sides: sides.to_vec(),
     })
 }
 
@@ -1331,7 +1336,7 @@ fn solve_line(
             .filter(|(c, s)| c.side != 0 && **s == 0)
             .map(|(c, _)| c.species.clone())
             .collect();
-        return Err(unexplained(never_taking_part, columns, sides.to_vec()));
+        return Err(unexplained(never_taking_part, columns, sides));
     }
     let flip = flip_wanted(signs, sides);
     if flip {

@@ -17,6 +17,7 @@ pub use parse::{Input, LIMITS, Limits, parse_equation, parse_input, parse_specie
 use crate::composition::Composition;
 use crate::elements::Element;
 use num_rational::Ratio;
+use smallvec::SmallVec;
 use std::fmt;
 use std::hash::{Hash, Hasher};
 use std::str::FromStr;
@@ -98,11 +99,14 @@ pub struct Component {
     pub body: Vec<Unit>,
 }
 
+/// The components of a formula: almost always one, which then lives inline.
+pub type Components = SmallVec<[Component; 1]>;
+
 /// A formula with its charge: `SO4^2-`, `CuSO4·5H2O`, `[Fe(CN)6]4-`.
 #[derive(Clone, Debug, PartialEq, Eq, Hash)]
 pub struct Formula {
     /// The main body first, then adducts in the order written.
-    pub components: Vec<Component>,
+    pub components: Components,
     /// Net charge in elementary charges.
     pub charge: i32,
 }

@@ -18,7 +18,7 @@
 //! - `-` followed by `>` is always the arrow, never a charge.
 
 use super::{
-    Arrow, Bracket, Compartment, Component, Count, Equation, Formula, NotationError,
+    Arrow, Bracket, Compartment, Component, Components, Count, Equation, Formula, NotationError,
     NotationErrorKind, Span, Species, SpeciesKind, State, Term, Unit,
 };
 use crate::composition::Composition;
@@ -272,6 +272,14 @@ fn decimal_count<'a>(
 /// `Li1.2Mn0.6Ni0.2O2`): after larger digits it stays the adduct dot of `CuSO4.5H2O`. A
 /// larger decimal is written in braces, `_{2.5}` (as mhchem does), or in subscript digits.
 fn count(input: &str) -> Res<'_, (Count, bool)> {
+    match plain_count(input) {
+        Some(read) => Ok(read),
+        None => any_count(input),
+    }
+}
+
+/// [`count`] for every way of writing a subscript.
+fn any_count(input: &str) -> Res<'_, (Count, bool)> {
     let max = super::LIMITS.max_count as u64;
     let zero = |rest: &str| {
         fail(
@@ -343,6 +351,37 @@ fn count(input: &str) -> Res<'_, (Count, bool)> {
         return zero(rest);
     }
     Ok((rest, (Ratio::from_integer(whole), written_ascii)))
+}
+
+/// The usual subscripts, read straight from the bytes: none at all (the next byte is ASCII
+/// and neither a digit nor `_`), or up to six ASCII digits with no decimal point, fraction bar
+/// or subscript digit after them, and not zero. Exactly what [`count`]'s general reading gives
+/// for such input; anything else (`None`) goes through it, with its errors.
+fn plain_count(input: &str) -> Option<(&str, (Count, bool))> {
+    let bytes = input.as_bytes();
+    match bytes.first() {
+        None => return Some((input, (Ratio::from_integer(1), false))),
+        Some(b) if b.is_ascii() && !b.is_ascii_digit() && *b != b'_' => {
+            return Some((input, (Ratio::from_integer(1), false)));
+        }
+        _ => {}
+    }
+    let digits = bytes
+        .iter()
+        .take(7)
+        .take_while(|b| b.is_ascii_digit())
+        .count();
+    if digits == 0 || digits > 6 {
+        return None;
+    }
+    match bytes.get(digits) {
+        Some(b) if !b.is_ascii() || matches!(b, b'.' | b'/') => return None,
+        _ => {}
+    }
+    let value = bytes[..digits]
+        .iter()
+        .fold(0u64, |v, b| v * 10 + u64::from(b - b'0'));
+    (value != 0).then(|| (&input[digits..], (Ratio::from_integer(value), true)))
 }
 
 // ---------------------------------------------------------------- formulas
@@ -511,12 +550,13 @@ impl<'a> Ctx<'a> {
     }
 
     /// The components of a formula: a body, then adducts after `·`, `*`, `•` or `.`.
-    fn components(&self, input: &'a str) -> Res<'a, (Vec<Component>, Option<LastCount>)> {
+    fn components(&self, input: &'a str) -> Res<'a, (Components, Option<LastCount>)> {
         let (mut rest, (body, mut last)) = self.body_with_last(input, 0)?;
-        let mut components = vec![Component {
+        let mut components = Components::new();
+        components.push(Component {
             multiplier: 1,
             body,
-        }];
+        });
         while let Some(dot) = first_char(rest).filter(|c| matches!(c, '·' | '*' | '•' | '.')) {
             let after_dot = &rest[dot.len_utf8()..];
             let (after_count, multiplier) = match number_in(
@@ -1271,4 +1311,37 @@ pub fn parse_input(text: &str) -> Result<Input, NotationError> {
         products,
         arrow,
     }))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The byte-level reading of plain subscripts agrees with the general one wherever it
+    /// answers: on every string of up to four characters from digits, the decimal point, the
+    /// fraction bar, braces, a subscript digit, a letter and the end.
+    #[test]
+    fn plain_counts_read_as_the_general_reading_does() {
+        let alphabet = [
+            "0", "1", "2", "9", ".", "/", "_", "{", "}", "₂", "O", "+", "(", " ",
+        ];
+        let mut texts: Vec<String> = vec![String::new()];
+        for _ in 0..4 {
+            let longer: Vec<String> = texts
+                .iter()
+                .flat_map(|t| alphabet.iter().map(move |c| format!("{t}{c}")))
+                .collect();
+            texts.extend(longer);
+        }
+        texts.extend(["999999O", "1000000", "9999999", "000001H", "12345/"].map(String::from));
+        let mut answered = 0;
+        for text in &texts {
+            if let Some(plain) = plain_count(text) {
+                let general = any_count(text).unwrap_or_else(|_| panic!("{text:?}"));
+                assert_eq!(plain, general, "{text:?}");
+                answered += 1;
+            }
+        }
+        assert!(answered > 10_000, "{answered}");
+    }
 }

@@ -144,7 +144,10 @@ mod properties {
                         .into_iter()
                         .map(|(multiplier, body)| Component { multiplier, body }),
                 );
-                Formula { components, charge }
+                Formula {
+                    components: components.into(),
+                    charge,
+                }
             })
     }
 
