@@ -232,7 +232,7 @@ pub fn source_from_bytes(name: &str, bytes: &[u8], format: FileFormat) -> Source
 /// As [`source_from_bytes`], taking the bytes: valid UTF-8 becomes the file's text without a
 /// copy (a large file is held once, not twice), read in pieces when it is large.
 fn source_from_owned_bytes(name: &str, bytes: Vec<u8>, format: FileFormat) -> SourceFile {
-    if let Some(at) = bytes.iter().position(|&b| b == 0) {
+    if let Some(at) = memchr::memchr(0, &bytes) {
         return SourceFile::unread(
             name,
             format,
