@@ -6,7 +6,8 @@
 //! `cargo bench --bench balance -- --sympy-families` skips criterion and prints, for every
 //! family member, its text and couplet's time per balance; `tests/sympy_diff.py --families`
 //! runs it and times sympy on the same equations. `-- --corpus-spread` times every corpus entry
-//! alone and prints the median and the slowest.
+//! alone and prints the median and the slowest. `-- --corpus-entry ID N` balances one entry N
+//! times for an instruction counter (`scripts/corpus_instructions.py`).
 
 use couplet::balance::matrix::{IntegerMatrix, RowEchelon};
 use couplet::balance::{BalanceError, BalanceOptions, ElectronRule, Medium, balance, balance_text};
@@ -344,7 +345,31 @@ fn print_corpus_spread() {
     }
 }
 
+/// The `--corpus-entry ID N` mode: corpus entry `ID` balanced `N` times from its text, with
+/// nothing timed or printed, for an instruction counter to run
+/// (`scripts/corpus_instructions.py` runs it under callgrind for every entry).
+fn run_corpus_entry(id: &str, times: usize) {
+    let entries = corpus();
+    let (_, text, options) = entries
+        .iter()
+        .find(|(entry, _, _)| entry == id)
+        .unwrap_or_else(|| panic!("no corpus entry {id}"));
+    for _ in 0..times {
+        black_box(balance_corpus_entry(black_box(text), options));
+    }
+}
+
 fn main() {
+    let args: Vec<String> = std::env::args().collect();
+    if let Some(at) = args.iter().position(|a| a == "--corpus-entry") {
+        let id = args.get(at + 1).expect("--corpus-entry ID N");
+        let times = args
+            .get(at + 2)
+            .and_then(|n| n.parse().ok())
+            .expect("--corpus-entry ID N");
+        run_corpus_entry(id, times);
+        return;
+    }
     if std::env::args().any(|a| a == "--sympy-families") {
         print_families();
         return;
