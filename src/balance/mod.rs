@@ -1038,6 +1038,11 @@ fn best_candidate(x: &[i64], y: &[i64], sides: &[i8], best: &mut Key) -> Option<
         let (same, different) = side_counts(&user, a);
         for (b, (&same, &different)) in (-MAX_B..=MAX_B).zip(same.iter().zip(&different)) {
             let counts = (i64::from(same), i64::from(different));
+            // The score in the better orientation bounds the candidate's: most lose here,
+            // without a call.
+            if (counts.0 - 2 * counts.1).max(counts.1 - 2 * counts.0) < best.0 {
+                continue;
+            }
             if let Some(key) = fixed_width_key(x, y, &user, (a, b), counts, best) {
                 *best = key;
                 winner = Some((a, b));
