@@ -23,14 +23,17 @@
 // they are returned once per species, so their size costs nothing that matters.
 #![allow(clippy::result_large_err)]
 
+#[cfg(test)]
+pub(crate) mod corpus;
 mod ions;
 mod redox;
 mod rules;
 
 pub use ions::{IonTable, IonTableError, KnownIon, LIGANDS_TOML, POLYATOMIC_IONS_TOML};
 pub use redox::{
-    ElementChange, RedoxAnalysis, RedoxError, RedoxKind, SpeciesPin, analyse, analyse_prepared,
-    analyse_with, changed_elements, changes_one_element, oxidation_number_electrons,
+    ElementChange, MachineAnalysis, MachineChange, MachineSites, RedoxAnalysis, RedoxError,
+    RedoxKind, SpeciesPin, analyse, analyse_conserved, analyse_prepared, analyse_with,
+    changed_elements, changes_one_element, oxidation_number_electrons,
 };
 
 use crate::elements::Element;
