@@ -484,10 +484,16 @@ pub fn oxidation_numbers_shared(
 /// How many species' answers [`oxidation_numbers_with`] keeps per thread.
 const MEMO_CAPACITY: usize = 4096;
 
-type Memo = std::collections::HashMap<SpeciesKind, Result<Arc<SpeciesOxidation>, OxidationError>>;
+// A fast fixed-seed hash (foldhash): the keys are parsed formulas, not adversarial, and SipHash
+// over a formula tree cost more than the rest of the balancer's half-reaction test.
+type Memo = std::collections::HashMap<
+    SpeciesKind,
+    Result<Arc<SpeciesOxidation>, OxidationError>,
+    foldhash::fast::FixedState,
+>;
 
 thread_local! {
-    static MEMO: std::cell::RefCell<Memo> = std::cell::RefCell::new(Memo::new());
+    static MEMO: std::cell::RefCell<Memo> = std::cell::RefCell::new(Memo::default());
 }
 
 impl IonTable {

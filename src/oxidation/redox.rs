@@ -252,13 +252,20 @@ pub fn analyse_prepared(
 /// [`analyse_conserved`]: a batch keeps it beside the species' [`SpeciesOxidation`] instead
 /// of converting every oxidation number of every species of every reaction again.
 #[derive(Clone, Debug)]
-pub struct MachineSites(SiteList<SmallRatio>);
+pub struct MachineSites {
+    ratio: SiteList<SmallRatio>,
+    /// The same in whole numbers, when every oxidation number is one.
+    whole: Option<SiteList<Whole>>,
+}
 
 impl MachineSites {
     /// `None` when an oxidation number or a count does not fit a machine word: the analysis in
     /// big rationals ([`analyse_prepared`]) is then the one to use.
     pub fn of(oxidation: &SpeciesOxidation) -> Option<MachineSites> {
-        SiteList::of(oxidation).map(MachineSites)
+        Some(MachineSites {
+            ratio: SiteList::of(oxidation)?,
+            whole: SiteList::of(oxidation),
+        })
     }
 }
 
@@ -297,7 +304,7 @@ impl MachineAnalysis {
     /// [`RedoxAnalysis::plays`] for an entry whose species has the oxidation numbers `sites`
     /// (`None`: the electron, which plays in neither).
     pub fn plays(&self, sites: Option<&MachineSites>, is_reactant: bool) -> (bool, bool) {
-        let Some(MachineSites(list)) = sites else {
+        let Some(MachineSites { ratio: list, .. }) = sites else {
             return (false, false);
         };
         let holds = |changes: &[MachineChange]| {
@@ -336,22 +343,41 @@ pub fn analyse_conserved(
     {
         return None;
     }
-    let lists = sites.iter().map(|s| s.map(|MachineSites(list)| list));
-    let (oxidized, reduced, conserved) = tally::<SmallRatio>(reaction, lists)?;
+    // Whole numbers throughout (the usual case) in i64, else reduced fractions in i128.
+    let whole: Option<SmallVec<[Option<&SiteList<Whole>>; 8]>> = sites
+        .iter()
+        .map(|s| match s {
+            Some(sites) => sites.whole.as_ref().map(Some),
+            None => Some(None),
+        })
+        .collect();
+    if let Some(analysis) = whole.and_then(|lists| conserved(reaction, &lists)) {
+        return Some(analysis);
+    }
+    let lists: SmallVec<[Option<&SiteList<SmallRatio>>; 8]> =
+        sites.iter().map(|s| s.map(|sites| &sites.ratio)).collect();
+    conserved(reaction, &lists)
+}
+
+/// [`analyse_conserved`] in `T`.
+fn conserved<T: Machine>(
+    reaction: &Reaction,
+    lists: &[Option<&SiteList<T>>],
+) -> Option<MachineAnalysis> {
+    let (oxidized, reduced, conserved) = tally::<T>(reaction, lists.iter().copied())?;
     let electron_nu = reaction.electron_nu();
-    let mut charge = SmallRatio::nil();
-    for (entry, list) in entries.iter().zip(sites) {
-        if let Some(MachineSites(list)) = list {
-            let units = SmallRatio::from_big(&entry.nu)?;
-            let species_charge = SmallRatio::checked(Ratio::from_integer(list.charge.into()))?;
-            charge = charge.plus(&units.times(&species_charge)?)?;
+    let mut charge = T::nil();
+    for (entry, list) in reaction.entries().iter().zip(lists) {
+        if let Some(list) = list {
+            let units = T::from_big(&entry.nu)?;
+            charge = charge.plus(&units.times(&T::from_signed(list.charge)?)?)?;
         }
     }
     if !conserved || (electron_nu.is_zero() && !charge.is_nil()) {
         return None;
     }
     let verdict = verdict(&oxidized, &reduced, &electron_nu)?.ok()?;
-    let narrow = |changes: Changes<SmallRatio>| {
+    let narrow = |changes: Changes<T>| {
         changes
             .into_iter()
             .map(|c| MachineChange {
@@ -372,6 +398,75 @@ pub fn analyse_conserved(
     })
 }
 
+/// The arithmetic of [`analyse_conserved`]: every value fits a [`Rational64`].
+trait Machine: Exact {
+    fn narrow(self) -> Rational64;
+}
+
+impl Machine for SmallRatio {
+    fn narrow(self) -> Rational64 {
+        // Within the range both parts fit.
+        let (numer, denom) = self.0.into_raw();
+        Ratio::new_raw(numer as i64, denom as i64)
+    }
+}
+
+impl Machine for Whole {
+    fn narrow(self) -> Rational64 {
+        Ratio::from_integer(self.0)
+    }
+}
+
+/// A whole number in `i64` within ±(2^63 − 1) (so its magnitude never overflows); a sum,
+/// difference or product outside the range, or a fraction, is refused.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
+struct Whole(i64);
+
+impl Whole {
+    fn checked(value: Option<i64>) -> Option<Whole> {
+        value.filter(|&v| v != i64::MIN).map(Whole)
+    }
+}
+
+impl Exact for Whole {
+    fn nil() -> Self {
+        Whole(0)
+    }
+    fn from_big(value: &BigRational) -> Option<Self> {
+        if !value.is_integer() {
+            return None;
+        }
+        Whole::checked(i64::try_from(value.numer()).ok())
+    }
+    fn from_count(count: u64) -> Option<Self> {
+        Whole::checked(i64::try_from(count).ok())
+    }
+    fn from_signed(value: i64) -> Option<Self> {
+        Whole::checked(Some(value))
+    }
+    fn plus(&self, other: &Self) -> Option<Self> {
+        Whole::checked(self.0.checked_add(other.0))
+    }
+    fn minus(&self, other: &Self) -> Option<Self> {
+        Whole::checked(self.0.checked_sub(other.0))
+    }
+    fn times(&self, other: &Self) -> Option<Self> {
+        Whole::checked(self.0.checked_mul(other.0))
+    }
+    fn magnitude(&self) -> Self {
+        Whole(self.0.abs())
+    }
+    fn is_nil(&self) -> bool {
+        self.0 == 0
+    }
+    fn is_above_zero(&self) -> bool {
+        self.0 > 0
+    }
+    fn into_big(self) -> BigRational {
+        BigRational::from_integer(BigInt::from(self.0))
+    }
+}
+
 /// Exact rational arithmetic that may give up: `None` means "too large for this type", never
 /// a different answer. [`BigRational`] never gives up; [`SmallRatio`] does when a value leaves
 /// the range where its arithmetic cannot overflow.
@@ -379,6 +474,7 @@ trait Exact: Clone + Ord + Sized {
     fn nil() -> Self;
     fn from_big(value: &BigRational) -> Option<Self>;
     fn from_count(count: u64) -> Option<Self>;
+    fn from_signed(value: i64) -> Option<Self>;
     fn plus(&self, other: &Self) -> Option<Self>;
     fn minus(&self, other: &Self) -> Option<Self>;
     fn times(&self, other: &Self) -> Option<Self>;
@@ -397,6 +493,9 @@ impl Exact for BigRational {
     }
     fn from_count(count: u64) -> Option<Self> {
         Some(BigRational::from_integer(BigInt::from(count)))
+    }
+    fn from_signed(value: i64) -> Option<Self> {
+        Some(BigRational::from_integer(BigInt::from(value)))
     }
     fn plus(&self, other: &Self) -> Option<Self> {
         Some(self + other)
@@ -436,12 +535,6 @@ impl SmallRatio {
         (*self.0.denom() == 1 && *other.0.denom() == 1).then(|| (*self.0.numer(), *other.0.numer()))
     }
 
-    /// As a `Ratio<i64>`: within the range both parts fit.
-    fn narrow(self) -> Rational64 {
-        let (numer, denom) = self.0.into_raw();
-        Ratio::new_raw(numer as i64, denom as i64)
-    }
-
     fn checked(value: Ratio<i128>) -> Option<SmallRatio> {
         (value.numer().unsigned_abs() <= SMALL_LIMIT as u128 && *value.denom() <= SMALL_LIMIT)
             .then_some(SmallRatio(value))
@@ -460,6 +553,9 @@ impl Exact for SmallRatio {
     }
     fn from_count(count: u64) -> Option<Self> {
         SmallRatio::checked(Ratio::from_integer(i128::from(count)))
+    }
+    fn from_signed(value: i64) -> Option<Self> {
+        SmallRatio::checked(Ratio::from_integer(i128::from(value)))
     }
     // Whole numbers (almost every oxidation number and atom count) skip the i128 gcd of the
     // general case, which cost more than the rest of the tally: same results, no reduction
@@ -777,30 +873,35 @@ fn pair_atoms<T: Exact>(
 /// as sets of states (coefficients do not matter, so the equation need not be balanced).
 /// Elements on one side only (O and H that the medium will supply) do not count.
 pub fn changed_elements(equation: &Equation) -> Result<Vec<Element>, RedoxError> {
-    let mut states: Vec<(Element, Vec<BigRational>, Vec<BigRational>)> = Vec::new();
+    // The balancer asks this of every equation that might be a half-reaction: the states are
+    // compared where the shared answers keep them, not copied out.
+    let mut oxidations: SmallVec<[(bool, Arc<SpeciesOxidation>); 8]> = SmallVec::new();
     for (terms, left) in [(&equation.reactants, true), (&equation.products, false)] {
         for term in terms {
-            if term.species.is_electron() {
-                continue;
+            if !term.species.is_electron() {
+                oxidations.push((left, species_oxidation(&term.species, &[])?));
             }
-            let oxidation = species_oxidation(&term.species, &[])?;
-            for element in &oxidation.elements {
-                let index = match states.iter().position(|(e, _, _)| *e == element.element) {
-                    Some(i) => i,
-                    None => {
-                        states.push((element.element, Vec::new(), Vec::new()));
-                        states.len() - 1
-                    }
-                };
-                let list = if left {
-                    &mut states[index].1
-                } else {
-                    &mut states[index].2
-                };
-                for site in &element.sites {
-                    if !list.contains(&site.oxidation_number) {
-                        list.push(site.oxidation_number.clone());
-                    }
+        }
+    }
+    type States<'a> = SmallVec<[&'a BigRational; 2]>;
+    let mut states: SmallVec<[(Element, States, States); 8]> = SmallVec::new();
+    for (left, oxidation) in &oxidations {
+        for element in &oxidation.elements {
+            let index = match states.iter().position(|(e, _, _)| *e == element.element) {
+                Some(i) => i,
+                None => {
+                    states.push((element.element, SmallVec::new(), SmallVec::new()));
+                    states.len() - 1
+                }
+            };
+            let list = if *left {
+                &mut states[index].1
+            } else {
+                &mut states[index].2
+            };
+            for site in &element.sites {
+                if !list.contains(&&site.oxidation_number) {
+                    list.push(&site.oxidation_number);
                 }
             }
         }
@@ -900,6 +1001,12 @@ mod tests {
             .collect();
         let sites: Vec<Option<&MachineSites>> = sites.iter().map(Option::as_ref).collect();
         let machine = analyse_conserved(reaction, &sites);
+        // The fraction arithmetic gives what the whole-number one gives, where both answer.
+        let ratio: Vec<Option<&SiteList<SmallRatio>>> =
+            sites.iter().map(|s| s.map(|s| &s.ratio)).collect();
+        if let (Some(machine), Some(in_fractions)) = (&machine, conserved(reaction, &ratio)) {
+            assert_eq!(*machine, in_fractions, "{reaction}");
+        }
         let general = analyse(reaction);
         if let Some(machine) = &machine {
             let general = general.as_ref().expect("the machine analysis answered");
