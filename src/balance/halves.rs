@@ -75,7 +75,11 @@ fn skeleton_hash(medium: Medium, entries: &[Entry], skeleton: &[usize], reactant
     medium.hash(&mut hasher);
     reactants.hash(&mut hasher);
     for &i in skeleton {
-        entries[i].species.hash(&mut hasher);
+        // Equal species have equal compositions, so hashing the composition (a few machine
+        // words) instead of the formula tree keeps the map right; an isomer shares the hash
+        // and is told apart by the comparison of species.
+        let species = &entries[i].species;
+        (&species.composition, species.state, species.compartment).hash(&mut hasher);
     }
     hasher.finish()
 }
