@@ -42,6 +42,7 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
 use std::fmt;
+use std::hash::BuildHasher;
 use std::str::FromStr;
 use std::sync::Arc;
 
@@ -465,9 +466,19 @@ pub fn oxidation_numbers_shared(
     }
     // The answer depends on the formula alone, and batches and tables name the same few
     // species (H2O, H+, OH-, common ions) over and over: remember recent answers per thread.
+    // Keyed by a hash of the composition (a few machine words; the composition is derived
+    // from the formula, so equal formulas hash alike) and told apart by comparing formulas:
+    // hashing the formula tree's rational counts cost more than the lookup saved.
+    let hash = foldhash::fast::FixedState::default().hash_one(&species.composition);
     MEMO.with(|memo| {
-        if let Some(known) = memo.borrow().get(&species.kind) {
-            return known.clone();
+        let known = memo.borrow().get(&hash).and_then(|bucket| {
+            bucket
+                .iter()
+                .find(|(kind, _)| *kind == species.kind)
+                .map(|(_, answer)| answer.clone())
+        });
+        if let Some(known) = known {
+            return known;
         }
         let answer = IonTable::builtin()?
             .oxidation_numbers(species, options)
@@ -476,19 +487,20 @@ pub fn oxidation_numbers_shared(
         if memo.len() >= MEMO_CAPACITY {
             memo.clear();
         }
-        memo.insert(species.kind.clone(), answer.clone());
+        memo.entry(hash)
+            .or_default()
+            .push((species.kind.clone(), answer.clone()));
         answer
     })
 }
 
-/// How many species' answers [`oxidation_numbers_with`] keeps per thread.
+/// How many compositions' answers [`oxidation_numbers_with`] keeps per thread.
 const MEMO_CAPACITY: usize = 4096;
 
-// A fast fixed-seed hash (foldhash): the keys are parsed formulas, not adversarial, and SipHash
-// over a formula tree cost more than the rest of the balancer's half-reaction test.
+// A fast fixed-seed hash (foldhash): the keys are parsed formulas, not adversarial.
 type Memo = std::collections::HashMap<
-    SpeciesKind,
-    Result<Arc<SpeciesOxidation>, OxidationError>,
+    u64,
+    smallvec::SmallVec<[(SpeciesKind, Result<Arc<SpeciesOxidation>, OxidationError>); 1]>,
     foldhash::fast::FixedState,
 >;
 
