@@ -85,6 +85,8 @@ pub struct BalanceJson {
     facts: Vec<SpeciesFacts>,
     /// Indices into `facts` of the entries of the reaction being written.
     entries: Vec<usize>,
+    /// The `"caution"` value (JSON) for each sequence of hazards met, in entry order.
+    cautions: HashMap<SmallVec<[&'static str; 4]>, Box<[u8]>, foldhash::fast::FixedState>,
     /// Only the analysis in big rationals (the reference the machine one is checked against).
     #[cfg(test)]
     general_only: bool,
@@ -115,6 +117,7 @@ impl BalanceJson {
         if self.facts.len() + reaction.entries().len() > SPECIES_CAPACITY {
             self.index.clear();
             self.facts.clear();
+            self.cautions.clear();
         }
         for entry in reaction.entries() {
             let index = self.facts_of(&entry.species);
@@ -180,9 +183,20 @@ impl BalanceJson {
                 }
             });
         out.extend_from_slice(b",\"caution\":");
-        match caution_of_hazards(hazards) {
-            Some(caution) => write_json_string(out, &caution),
-            None => out.extend_from_slice(b"null"),
+        let hazards: SmallVec<[&'static str; 4]> = hazards.collect();
+        if hazards.is_empty() {
+            out.extend_from_slice(b"null");
+        } else {
+            // A batch meets the same few combinations of hazards again and again.
+            let caution = self.cautions.entry(hazards).or_insert_with_key(|hazards| {
+                let mut json = Vec::new();
+                match caution_of_hazards(hazards.iter().copied()) {
+                    Some(caution) => write_json_string(&mut json, &caution),
+                    None => json.extend_from_slice(b"null"),
+                }
+                json.into()
+            });
+            out.extend_from_slice(caution);
         }
 
         let Some(analysis) = analysis else { return };
