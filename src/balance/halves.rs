@@ -322,39 +322,10 @@ mod tests {
     use crate::balance::balance_text;
     use crate::oxidation::analyse;
 
-    /// Redox couples as (oxidised form, reduced form), the usual ones of general-chemistry
-    /// tables (common practice). Every ordered pair makes one whole skeleton, so each half
-    /// comes back with many partners and at many places in the line.
-    const COUPLES: [(&str, &str); 14] = [
-        ("MnO4-", "Mn2+"),
-        ("Cr2O7^2-", "Cr3+"),
-        ("Fe3+", "Fe2+"),
-        ("Cu2+", "Cu"),
-        ("Zn2+", "Zn"),
-        ("NO3-", "NO"),
-        ("H2O2", "H2O"),
-        ("Cl2", "Cl-"),
-        ("I2", "I-"),
-        ("SO4^2-", "SO2"),
-        ("Sn4+", "Sn2+"),
-        ("Ag+", "Ag"),
-        ("BrO3-", "Br-"),
-        ("PbO2", "PbSO4"),
-    ];
-
     /// The corpus inputs in their media, then every pair of couples in acid and in base.
     fn lines() -> Vec<(String, Medium)> {
         let mut lines = crate::oxidation::corpus::lines();
-        for medium in [Medium::Acid, Medium::Base] {
-            for (oxidant, reduced) in COUPLES {
-                for (oxidised, reductant) in COUPLES {
-                    if oxidant != oxidised {
-                        let line = format!("{oxidant} + {reductant} -> {reduced} + {oxidised}");
-                        lines.push((line, medium));
-                    }
-                }
-            }
-        }
+        lines.extend(crate::oxidation::corpus::pairs_of_couples());
         lines
     }
 

@@ -577,17 +577,12 @@ pub fn balance_lines_json(
 mod tests {
     use super::*;
 
-    const CORPUS: &str = include_str!("../../tests/data/balance_corpus.json");
-
     #[test]
     fn machine_rationals_write_what_big_rationals_write() {
-        let corpus: serde_json::Value = serde_json::from_str(CORPUS).unwrap();
-        let mut inputs: Vec<&str> = corpus
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|entry| entry["input"].as_str().unwrap())
-            .collect();
+        // The corpus inputs and the generated lines, each in all three media.
+        let mut lines = crate::oxidation::corpus::lines();
+        lines.extend(crate::oxidation::corpus::pairs_of_couples());
+        let mut inputs: Vec<&str> = lines.iter().map(|(line, _)| line.as_str()).collect();
         // Isomers share a composition, so the species index hashes them alike.
         inputs.extend([
             "C2H5OH -> CH3OCH3",

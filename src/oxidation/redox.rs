@@ -948,10 +948,11 @@ mod tests {
     use super::*;
     use crate::balance::{BalanceOptions, Medium, balance_text};
 
-    /// Every corpus input balanced in its medium, then lines whose oxidation numbers are
-    /// averages (Fe3O4 +8/3, S4O6^2- +5/2, KO2 −1/2) and a whole reaction without redox.
+    /// Every corpus input balanced in its medium, every pair of couples, then lines whose
+    /// oxidation numbers are averages (Fe3O4 +8/3, S4O6^2- +5/2, KO2 −1/2) and a whole reaction without redox.
     fn reactions() -> Vec<Reaction> {
         let mut lines = crate::oxidation::corpus::lines();
+        lines.extend(crate::oxidation::corpus::pairs_of_couples());
         for line in [
             "Fe3O4 + H2 -> Fe + H2O",
             "S2O3^2- + I2 -> S4O6^2- + I-",
