@@ -44,7 +44,7 @@ struct KeptHalf {
     ascii: Arc<str>,
     /// For each entry of `balanced`: which species of the skeleton it is (in skeleton order),
     /// or `None` for one the medium or the electron rule added.
-    origin: SmallVec<[Option<u8>; 8]>,
+    origin: SmallVec<[Option<usize>; 8]>,
 }
 
 /// A half skeleton and what balancing it gave (`None`: it does not balance alone).
@@ -170,7 +170,6 @@ fn balance_skeleton(
             skeleton
                 .iter()
                 .position(|&i| entries[i].species == entry.species)
-                .and_then(|p| u8::try_from(p).ok())
         })
         .collect();
     let ascii = balanced.ascii().into();
@@ -193,7 +192,7 @@ impl KeptHalf {
                 .zip(&self.origin)
                 .map(|(entry, origin)| {
                     let species = match origin {
-                        Some(p) => &entries[skeleton[usize::from(*p)]].species,
+                        Some(p) => &entries[skeleton[*p]].species,
                         None => &entry.species,
                     };
                     (species.clone(), entry.nu.clone())
