@@ -7,27 +7,34 @@
 //! reused byte buffer: no JSON tree, no string per field. The redox analysis is made once per
 //! equation and shared by the electrons, the redox fields and the half-reaction split.
 
-use crate::balance::{BalanceError, BalanceOptions, BalancedReaction, Medium, balance_text, split};
+use crate::balance::{
+    BalanceError, BalanceOptions, BalancedReaction, HalfReactions, Medium, balance_text,
+};
 use crate::cell::{caution_of_hazards, species_hazard};
+use crate::elements::Element;
 use crate::notation::Species;
 use crate::oxidation::{
-    ElementChange, OxidationError, RedoxAnalysis, RedoxError, SpeciesOxidation, analyse_prepared,
-    oxidation_numbers_shared,
+    MachineAnalysis, MachineSites, OxidationError, RedoxAnalysis, RedoxError, RedoxKind,
+    SpeciesOxidation, analyse_conserved, analyse_prepared, oxidation_numbers_shared,
 };
 use crate::reaction::Reaction;
 use num_bigint::BigInt;
-use num_rational::BigRational;
+use num_rational::{BigRational, Rational64};
 use num_traits::{One, Signed, ToPrimitive};
+use smallvec::SmallVec;
 use std::collections::HashMap;
 use std::io::{self, Write};
 use std::sync::Arc;
 
 /// What a batch keeps per distinct species.
 struct SpeciesFacts {
+    species: Species,
     /// Canonical ASCII as a JSON string, quotes and escapes included.
     json: Box<str>,
     /// Oxidation numbers (the electron has none).
     oxidation: Result<Arc<SpeciesOxidation>, OxidationError>,
+    /// The same in machine rationals, when they fit.
+    machine: Option<MachineSites>,
     /// The caution's hazard when the species is a reactant, and when it is a product.
     hazard_as_reactant: Option<&'static str>,
     hazard_as_product: Option<&'static str>,
@@ -42,12 +49,26 @@ impl SpeciesFacts {
             oxidation_numbers_shared(species, &Default::default())
         };
         SpeciesFacts {
+            species: species.clone(),
             json: json.into(),
+            machine: oxidation.as_deref().ok().and_then(MachineSites::of),
             oxidation,
             hazard_as_reactant: species_hazard(species, false),
             hazard_as_product: species_hazard(species, true),
         }
     }
+}
+
+/// A hash of a species from its composition (a few machine words; equal species have equal
+/// compositions) instead of its formula tree, whose rational counts hash slowly. Isomers
+/// share a hash and are told apart by comparing the species.
+fn species_hash(species: &Species) -> u64 {
+    use std::hash::BuildHasher;
+    foldhash::fast::FixedState::default().hash_one((
+        &species.composition,
+        species.state,
+        species.compartment,
+    ))
 }
 
 /// How many distinct species a [`BalanceJson`] keeps before it starts afresh (memory stays
@@ -58,12 +79,17 @@ const SPECIES_CAPACITY: usize = 4096;
 /// results it writes. Output does not depend on what was written before.
 #[derive(Default)]
 pub struct BalanceJson {
-    // A fast fixed-seed hash (foldhash): the keys are our own parsed formulas, not
-    // adversarial, and SipHash over a formula tree cost as much as the lookup saved.
-    index: HashMap<Species, usize, foldhash::fast::FixedState>,
+    /// Indices into `facts` by [`species_hash`]. A fast fixed-seed hash (foldhash): the keys
+    /// are our own parsed formulas, not adversarial.
+    index: HashMap<u64, SmallVec<[usize; 1]>, foldhash::fast::FixedState>,
     facts: Vec<SpeciesFacts>,
     /// Indices into `facts` of the entries of the reaction being written.
     entries: Vec<usize>,
+    /// The `"caution"` value (JSON) for each sequence of hazards met, in entry order.
+    cautions: HashMap<SmallVec<[&'static str; 4]>, Box<[u8]>, foldhash::fast::FixedState>,
+    /// Only the analysis in big rationals (the reference the machine one is checked against).
+    #[cfg(test)]
+    general_only: bool,
 }
 
 impl BalanceJson {
@@ -73,11 +99,14 @@ impl BalanceJson {
     }
 
     fn facts_of(&mut self, species: &Species) -> usize {
-        if let Some(&known) = self.index.get(species) {
+        let hash = species_hash(species);
+        let facts = &self.facts;
+        let bucket = self.index.entry(hash).or_default();
+        if let Some(&known) = bucket.iter().find(|&&i| facts[i].species == *species) {
             return known;
         }
+        bucket.push(facts.len());
         self.facts.push(SpeciesFacts::of(species));
-        self.index.insert(species.clone(), self.facts.len() - 1);
         self.facts.len() - 1
     }
 
@@ -88,6 +117,7 @@ impl BalanceJson {
         if self.facts.len() + reaction.entries().len() > SPECIES_CAPACITY {
             self.index.clear();
             self.facts.clear();
+            self.cautions.clear();
         }
         for entry in reaction.entries() {
             let index = self.facts_of(&entry.species);
@@ -135,8 +165,8 @@ impl BalanceJson {
             }
         } else {
             match &analysis {
-                Some(analysis) if analysis.n.is_integer() => write_integer(out, analysis.n.numer()),
-                _ => out.extend_from_slice(b"null"),
+                Some(analysis) => analysis.write_electrons(out),
+                None => out.extend_from_slice(b"null"),
             }
         }
 
@@ -153,42 +183,67 @@ impl BalanceJson {
                 }
             });
         out.extend_from_slice(b",\"caution\":");
-        match caution_of_hazards(hazards) {
-            Some(caution) => write_json_string(out, &caution),
-            None => out.extend_from_slice(b"null"),
+        let hazards: SmallVec<[&'static str; 4]> = hazards.collect();
+        if hazards.is_empty() {
+            out.extend_from_slice(b"null");
+        } else {
+            // A batch meets the same few combinations of hazards again and again.
+            let caution = self.cautions.entry(hazards).or_insert_with_key(|hazards| {
+                let mut json = Vec::new();
+                match caution_of_hazards(hazards.iter().copied()) {
+                    Some(caution) => write_json_string(&mut json, &caution),
+                    None => json.extend_from_slice(b"null"),
+                }
+                json.into()
+            });
+            out.extend_from_slice(caution);
         }
 
         let Some(analysis) = analysis else { return };
-        out.extend_from_slice(b",\"redox\":{\"oxidized\":");
-        write_changes(out, &analysis.oxidized);
-        out.extend_from_slice(b",\"reduced\":");
-        write_changes(out, &analysis.reduced);
-        out.extend_from_slice(b",\"n\":");
-        if analysis.n.is_integer() {
-            write_integer(out, analysis.n.numer());
-        } else {
-            out.push(b'"');
-            write_signed(out, &analysis.n);
-            out.push(b'"');
-        }
-        out.extend_from_slice(b",\"kind\":\"");
-        out.extend_from_slice(analysis.kind.name().as_bytes());
-        out.extend_from_slice(b"\"}");
-        if let Some(halves) = split(balanced, &analysis) {
-            out.extend_from_slice(b",\"half_reactions\":{\"oxidation\":\"");
-            self.gather(halves.oxidation.reaction());
-            self.write_ascii(out, halves.oxidation.reaction());
-            out.extend_from_slice(b"\",\"reduction\":\"");
-            self.gather(halves.reduction.reaction());
-            self.write_ascii(out, halves.reduction.reaction());
-            out.extend_from_slice(b"\"}");
+        analysis.write_redox(out);
+        let halves = HalfReactions::ascii_of(balanced, |i, entry| {
+            let is_reactant = entry.nu.is_negative();
+            match &analysis {
+                Analysis::Machine(machine) => {
+                    let facts = &self.facts[self.entries[i]];
+                    machine.plays(facts.machine.as_ref(), is_reactant)
+                }
+                Analysis::Big(big) => big.plays(i, is_reactant),
+            }
+        });
+        if let Some([oxidation, reduction]) = halves {
+            out.extend_from_slice(b",\"half_reactions\":{\"oxidation\":");
+            write_json_string(out, &oxidation);
+            out.extend_from_slice(b",\"reduction\":");
+            write_json_string(out, &reduction);
+            out.push(b'}');
         }
     }
 
-    /// The redox analysis from the kept oxidation numbers; `None` when a species has none.
+    /// The redox analysis from the kept oxidation numbers: in machine rationals when they
+    /// fit (the result the big-rational analysis would give, see [`analyse_conserved`]), else
+    /// in big rationals; `None` when a species has none.
+    fn analysis(&self, reaction: &Reaction) -> Option<Analysis> {
+        let sites: SmallVec<[Option<&MachineSites>; 8]> = self
+            .entries
+            .iter()
+            .map(|&index| self.facts[index].machine.as_ref())
+            .collect();
+        #[cfg(test)]
+        if self.general_only {
+            return self.big_analysis(reaction).map(Analysis::Big);
+        }
+        // Only a balancer's result comes here: atoms and charge are conserved.
+        if let Some(machine) = analyse_conserved(reaction, &sites) {
+            return Some(Analysis::Machine(machine));
+        }
+        self.big_analysis(reaction).map(Analysis::Big)
+    }
+
+    /// The analysis in big rationals.
     // The error carries exact values and is made at most once per equation.
     #[allow(clippy::result_large_err)]
-    fn analysis(&self, reaction: &Reaction) -> Option<RedoxAnalysis> {
+    fn big_analysis(&self, reaction: &Reaction) -> Option<RedoxAnalysis> {
         let entries = reaction.entries();
         analyse_prepared(reaction, |species| {
             // The analysis asks about the entries' own species: find which by address.
@@ -301,18 +356,128 @@ fn write_error(out: &mut Vec<u8>, line: Option<usize>, error: &BalanceError) {
     out.push(b'}');
 }
 
-fn write_changes(out: &mut Vec<u8>, changes: &[ElementChange]) {
+/// The analysis a result is written from.
+enum Analysis {
+    Machine(MachineAnalysis),
+    Big(RedoxAnalysis),
+}
+
+impl Analysis {
+    /// n of a whole reaction as a JSON integer, or `null` when it is not whole.
+    fn write_electrons(&self, out: &mut Vec<u8>) {
+        match self {
+            Analysis::Machine(a) if a.n.is_integer() => write_i64(out, *a.n.numer()),
+            Analysis::Big(a) if a.n.is_integer() => write_integer(out, a.n.numer()),
+            _ => out.extend_from_slice(b"null"),
+        }
+    }
+
+    /// The `"redox"` object.
+    fn write_redox(&self, out: &mut Vec<u8>) {
+        // The same fields in either arithmetic.
+        macro_rules! redox {
+            ($a:expr) => {
+                write_redox(
+                    out,
+                    [&$a.oxidized, &$a.reduced]
+                        .map(|list| list.iter().map(|c| (c.element, &c.from, &c.to))),
+                    &$a.n,
+                    $a.kind,
+                )
+            };
+        }
+        match self {
+            Analysis::Machine(a) => redox!(a),
+            Analysis::Big(a) => redox!(a),
+        }
+    }
+}
+
+/// `,"redox":{…}` from the oxidised and the reduced changes (element, from, to), n and kind.
+fn write_redox<'a, T: ExactText + 'a>(
+    out: &mut Vec<u8>,
+    [oxidized, reduced]: [impl Iterator<Item = (Element, &'a T, &'a T)>; 2],
+    n: &T,
+    kind: RedoxKind,
+) {
+    out.extend_from_slice(b",\"redox\":{\"oxidized\":");
+    write_changes(out, oxidized);
+    out.extend_from_slice(b",\"reduced\":");
+    write_changes(out, reduced);
+    out.extend_from_slice(b",\"n\":");
+    write_count(out, n);
+    out.extend_from_slice(b",\"kind\":\"");
+    out.extend_from_slice(kind.name().as_bytes());
+    out.extend_from_slice(b"\"}");
+}
+
+/// An exact rational as the JSON output writes it, in either arithmetic.
+trait ExactText: Signed {
+    /// `n` or `n/d`, as `Display` writes it.
+    fn write(&self, out: &mut Vec<u8>);
+    fn is_whole(&self) -> bool;
+}
+
+impl ExactText for BigRational {
+    fn write(&self, out: &mut Vec<u8>) {
+        write_integer(out, self.numer());
+        if !self.is_integer() {
+            out.push(b'/');
+            write_integer(out, self.denom());
+        }
+    }
+    fn is_whole(&self) -> bool {
+        self.is_integer()
+    }
+}
+
+impl ExactText for Rational64 {
+    fn write(&self, out: &mut Vec<u8>) {
+        write_i64(out, *self.numer());
+        if !self.is_integer() {
+            out.push(b'/');
+            write_i64(out, *self.denom());
+        }
+    }
+    fn is_whole(&self) -> bool {
+        self.is_integer()
+    }
+}
+
+/// A count of electrons: a JSON integer when whole, else a string (`"+3/2"`).
+fn write_count<T: ExactText>(out: &mut Vec<u8>, value: &T) {
+    if value.is_whole() {
+        value.write(out);
+    } else {
+        out.push(b'"');
+        write_signed(out, value);
+        out.push(b'"');
+    }
+}
+
+/// An oxidation number as [`crate::oxidation::signed_text`] writes it: `+7`, `-2`, `0`, `+8/3`.
+fn write_signed<T: ExactText>(out: &mut Vec<u8>, value: &T) {
+    if value.is_positive() {
+        out.push(b'+');
+    }
+    value.write(out);
+}
+
+fn write_changes<'a, T: ExactText + 'a>(
+    out: &mut Vec<u8>,
+    changes: impl Iterator<Item = (Element, &'a T, &'a T)>,
+) {
     out.push(b'[');
-    for (i, change) in changes.iter().enumerate() {
+    for (i, (element, from, to)) in changes.enumerate() {
         if i > 0 {
             out.push(b',');
         }
         out.extend_from_slice(b"{\"element\":");
-        write_json_string(out, change.element.symbol());
+        write_json_string(out, element.symbol());
         out.extend_from_slice(b",\"from\":\"");
-        write_signed(out, &change.from);
+        write_signed(out, from);
         out.extend_from_slice(b"\",\"to\":\"");
-        write_signed(out, &change.to);
+        write_signed(out, to);
         out.extend_from_slice(b"\"}");
     }
     out.push(b']');
@@ -323,47 +488,60 @@ fn json_string(text: &str) -> String {
 }
 
 fn write_json_string(out: &mut Vec<u8>, text: &str) {
+    // Species, equations and cautions seldom hold a character JSON escapes (serde_json escapes
+    // exactly the quote, the backslash and control characters): those are copied as they are.
+    if !text.bytes().any(|b| b == b'"' || b == b'\\' || b < 0x20) {
+        out.push(b'"');
+        out.extend_from_slice(text.as_bytes());
+        out.push(b'"');
+        return;
+    }
     // Writing into a Vec cannot fail.
     let _ = serde_json::to_writer(&mut *out, text);
 }
 
 /// Decimal digits of an integer of any size; machine-sized ones without an allocation.
 fn write_integer(out: &mut Vec<u8>, value: &BigInt) {
-    let _ = match value.to_i64() {
-        Some(small) => write!(out, "{small}"),
-        None => write!(out, "{value}"),
-    };
+    match value.to_i64() {
+        Some(small) => write_i64(out, small),
+        None => {
+            let _ = write!(out, "{value}");
+        }
+    }
+}
+
+fn write_i64(out: &mut Vec<u8>, value: i64) {
+    if value < 0 {
+        out.push(b'-');
+    }
+    write_u64(out, value.unsigned_abs());
+}
+
+/// Decimal digits as `Display` writes them, without the formatting machinery.
+fn write_u64(out: &mut Vec<u8>, mut value: u64) {
+    let mut digits = [0u8; 20];
+    let mut start = digits.len();
+    loop {
+        start -= 1;
+        digits[start] = b'0' + (value % 10) as u8;
+        value /= 10;
+        if value == 0 {
+            break;
+        }
+    }
+    out.extend_from_slice(&digits[start..]);
 }
 
 /// |value| as `Display` writes it, without computing |value| as a new number.
 fn write_magnitude(out: &mut Vec<u8>, value: &BigRational) {
     match value.numer().to_i64() {
-        Some(small) => {
-            let _ = write!(out, "{}", small.unsigned_abs());
-        }
+        Some(small) => write_u64(out, small.unsigned_abs()),
         None => write_integer(out, &value.numer().abs()),
     }
     if !value.is_integer() {
         out.push(b'/');
         write_integer(out, value.denom());
     }
-}
-
-/// A rational as `Display` writes it: `n` or `n/d`.
-fn write_rational(out: &mut Vec<u8>, value: &BigRational) {
-    write_integer(out, value.numer());
-    if !value.is_integer() {
-        out.push(b'/');
-        write_integer(out, value.denom());
-    }
-}
-
-/// An oxidation number as [`crate::oxidation::signed_text`] writes it: `+7`, `-2`, `0`, `+8/3`.
-fn write_signed(out: &mut Vec<u8>, value: &BigRational) {
-    if value.is_positive() {
-        out.push(b'+');
-    }
-    write_rational(out, value);
 }
 
 /// Balances `text` one equation per line (blank lines and `#` comments skipped) and writes one
@@ -393,4 +571,52 @@ pub fn balance_lines_json(
     }
     out.write_all(&buffer)?;
     Ok(all_balanced)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn machine_rationals_write_what_big_rationals_write() {
+        // The corpus inputs and the generated lines, each in all three media.
+        let mut lines = crate::oxidation::corpus::lines();
+        lines.extend(crate::oxidation::corpus::pairs_of_couples());
+        let mut inputs: Vec<&str> = lines.iter().map(|(line, _)| line.as_str()).collect();
+        // Isomers share a composition, so the species index hashes them alike.
+        inputs.extend([
+            "C2H5OH -> CH3OCH3",
+            "CH3OCH3 + O2 -> CO2 + H2O",
+            "C2H5OH + O2 -> CO2 + H2O",
+        ]);
+        let mut general = BalanceJson {
+            general_only: true,
+            ..BalanceJson::default()
+        };
+        for medium in [Medium::None, Medium::Acid, Medium::Base] {
+            let options = BalanceOptions {
+                medium,
+                ..BalanceOptions::default()
+            };
+            let text = inputs.join("\n");
+            let mut batch = Vec::new();
+            balance_lines_json(&text, &options, &mut batch).unwrap();
+            let mut reference = Vec::new();
+            for (index, line) in inputs.iter().enumerate() {
+                let result = balance_text(line, &options);
+                if let Ok(balanced) = &result {
+                    // The text from the kept species is the reaction's own text.
+                    let mut object = Vec::new();
+                    general.write(&mut object, line, None, medium, &result);
+                    let object: serde_json::Value = serde_json::from_slice(&object).unwrap();
+                    assert_eq!(object["balanced"], balanced.ascii().as_str(), "{line}");
+                }
+                general.write(&mut reference, line, Some(index + 1), medium, &result);
+            }
+            assert_eq!(
+                String::from_utf8(batch).unwrap(),
+                String::from_utf8(reference).unwrap()
+            );
+        }
+    }
 }

@@ -23,14 +23,17 @@
 // they are returned once per species, so their size costs nothing that matters.
 #![allow(clippy::result_large_err)]
 
+#[cfg(test)]
+pub(crate) mod corpus;
 mod ions;
 mod redox;
 mod rules;
 
 pub use ions::{IonTable, IonTableError, KnownIon, LIGANDS_TOML, POLYATOMIC_IONS_TOML};
 pub use redox::{
-    ElementChange, RedoxAnalysis, RedoxError, RedoxKind, SpeciesPin, analyse, analyse_prepared,
-    analyse_with, changed_elements, changes_one_element, oxidation_number_electrons,
+    ElementChange, MachineAnalysis, MachineChange, MachineSites, RedoxAnalysis, RedoxError,
+    RedoxKind, SpeciesPin, analyse, analyse_conserved, analyse_prepared, analyse_with,
+    changed_elements, changes_one_element, oxidation_number_electrons,
 };
 
 use crate::elements::Element;
@@ -39,6 +42,7 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
 use std::fmt;
+use std::hash::BuildHasher;
 use std::str::FromStr;
 use std::sync::Arc;
 
@@ -462,9 +466,19 @@ pub fn oxidation_numbers_shared(
     }
     // The answer depends on the formula alone, and batches and tables name the same few
     // species (H2O, H+, OH-, common ions) over and over: remember recent answers per thread.
+    // Keyed by a hash of the composition (a few machine words; the composition is derived
+    // from the formula, so equal formulas hash alike) and told apart by comparing formulas:
+    // hashing the formula tree's rational counts cost more than the lookup saved.
+    let hash = foldhash::fast::FixedState::default().hash_one(&species.composition);
     MEMO.with(|memo| {
-        if let Some(known) = memo.borrow().get(&species.kind) {
-            return known.clone();
+        let known = memo.borrow().get(&hash).and_then(|bucket| {
+            bucket
+                .iter()
+                .find(|(kind, _)| *kind == species.kind)
+                .map(|(_, answer)| answer.clone())
+        });
+        if let Some(known) = known {
+            return known;
         }
         let answer = IonTable::builtin()?
             .oxidation_numbers(species, options)
@@ -473,18 +487,25 @@ pub fn oxidation_numbers_shared(
         if memo.len() >= MEMO_CAPACITY {
             memo.clear();
         }
-        memo.insert(species.kind.clone(), answer.clone());
+        memo.entry(hash)
+            .or_default()
+            .push((species.kind.clone(), answer.clone()));
         answer
     })
 }
 
-/// How many species' answers [`oxidation_numbers_with`] keeps per thread.
+/// How many compositions' answers [`oxidation_numbers_with`] keeps per thread.
 const MEMO_CAPACITY: usize = 4096;
 
-type Memo = std::collections::HashMap<SpeciesKind, Result<Arc<SpeciesOxidation>, OxidationError>>;
+// A fast fixed-seed hash (foldhash): the keys are parsed formulas, not adversarial.
+type Memo = std::collections::HashMap<
+    u64,
+    smallvec::SmallVec<[(SpeciesKind, Result<Arc<SpeciesOxidation>, OxidationError>); 1]>,
+    foldhash::fast::FixedState,
+>;
 
 thread_local! {
-    static MEMO: std::cell::RefCell<Memo> = std::cell::RefCell::new(Memo::new());
+    static MEMO: std::cell::RefCell<Memo> = std::cell::RefCell::new(Memo::default());
 }
 
 impl IonTable {
