@@ -513,6 +513,14 @@ pub fn species_hazard(species: &Species, is_product: bool) -> Option<&'static st
     if count("C") > 0 && count("C") == count("N") && count("O") == 0 && count("S") == 0 {
         return Some("cyanide (highly toxic; never acidify)");
     }
+    // Chlorates and perchlorates (three or four oxygens per chlorine, no carbon): strong
+    // oxidisers that burn or explode with fuels, organics, sulfur and reducing metals (common
+    // practice of the trade).
+    if count("Cl") > 0 && count("C") == 0 && count("O") >= 3 * count("Cl") {
+        return Some(
+            "chlorate or perchlorate (strong oxidiser; explosive with fuels and organics)",
+        );
+    }
     if count("F") > 0 && count("H") > 0 && only(&["H", "F"]) {
         return Some("hydrogen fluoride (corrosive, toxic through skin)");
     }

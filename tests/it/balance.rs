@@ -631,6 +631,9 @@ fn hazardous_reactions_carry_a_caution() {
     for (input, hazard) in [
         ("K2Cr2O7 + HCl -> KCl + CrCl3 + Cl2 + H2O", "chromium(VI)"),
         ("H2O -> H2 + O2", "hydrogen"),
+        // Chlorate disproportionates to perchlorate and chloride on heating: both oxy-salts are
+        // strong oxidisers (common practice).
+        ("KClO3 -> KClO4 + KCl", "chlorate or perchlorate"),
     ] {
         couplet()
             .args(["balance", input])
