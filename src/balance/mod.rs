@@ -767,25 +767,19 @@ fn blame(
         .map(|(r, _)| rows[*r]))
 }
 
-/// How well a reaction respects the written sides: species on their side count for it, species
-/// on the wrong side count twice against it.
-fn side_score(vector: &[BigInt], sides: &[i8]) -> i64 {
-    vector
-        .iter()
+/// How well a reaction respects the written sides, from the signs of its entries: species on
+/// their side count for it, species on the wrong side count twice against it.
+fn side_score(signs: impl Iterator<Item = i8>, sides: &[i8]) -> i64 {
+    signs
         .zip(sides)
-        .filter(|(x, side)| **side != 0 && !x.is_zero())
-        .map(|(x, &side)| if sign(x) == side { 1 } else { -2 })
+        .filter(|(s, side)| **side != 0 && *s != 0)
+        .map(|(s, &side)| if s == side { 1 } else { -2 })
         .sum()
 }
 
-/// [`side_score`] of a vector held in `i64`.
-fn side_score_fixed(vector: &[i64], sides: &[i8]) -> i64 {
-    vector
-        .iter()
-        .zip(sides)
-        .filter(|(x, side)| **side != 0 && **x != 0)
-        .map(|(x, &side)| if x.signum() as i8 == side { 1 } else { -2 })
-        .sum()
+/// The signs of a vector held in `i64`.
+fn signs_of(vector: &[i64]) -> Sides {
+    vector.iter().map(|x| x.signum() as i8).collect()
 }
 
 fn primitive(vector: Vec<BigInt>) -> Vec<BigInt> {
@@ -949,17 +943,7 @@ fn fixed_width_combination(x: &[i64], y: &[i64], a: i64, b: i64, sides: &[i8]) -
 
 /// [`orient`] for a vector in `i64`.
 fn orient_fixed(vector: &mut [i64], sides: &[i8]) {
-    let mut signs = [0i8; small::MAX_COLUMNS];
-    let flip = if vector.len() <= signs.len() {
-        for (s, x) in signs.iter_mut().zip(vector.iter()) {
-            *s = x.signum() as i8;
-        }
-        flip_wanted(&signs[..vector.len()], sides)
-    } else {
-        let signs: Vec<i8> = vector.iter().map(|x| x.signum() as i8).collect();
-        flip_wanted(&signs, sides)
-    };
-    if flip {
+    if flip_wanted(&signs_of(vector), sides) {
         for x in vector.iter_mut() {
             *x = -*x;
         }
@@ -1016,7 +1000,7 @@ fn prefer_written_sides_fixed(
 /// The [`Key`] of a vector held in `i64`.
 fn fixed_key(vector: &[i64], sides: &[i8]) -> Key {
     (
-        side_score_fixed(vector, sides),
+        side_score(vector.iter().map(|x| x.signum() as i8), sides),
         std::cmp::Reverse(Magnitude::Small(u128::from(
             vector.iter().map(|v| v.unsigned_abs()).max().unwrap_or(0),
         ))),
@@ -1146,7 +1130,7 @@ fn prefer_written_sides_in(
         let mut best_key: Key = match &fixed[i] {
             Some(x) => fixed_key(x, sides),
             None => (
-                side_score(&basis[i], sides),
+                side_score(basis[i].iter().map(sign), sides),
                 std::cmp::Reverse(Magnitude::of(&basis[i])),
             ),
         };
@@ -1191,7 +1175,7 @@ fn prefer_written_sides_in(
                     orient(&mut candidate, sides);
                     let candidate = primitive(candidate);
                     let key = (
-                        side_score(&candidate, sides),
+                        side_score(candidate.iter().map(sign), sides),
                         std::cmp::Reverse(Magnitude::of(&candidate)),
                     );
                     if key > best_key {
@@ -1325,11 +1309,7 @@ fn solve_line(
     sides: &[i8],
     written: &[(&Species, i8)],
 ) -> Result<Reaction, Failure> {
-    let mut signs = [0i8; small::MAX_COLUMNS];
-    let signs = &mut signs[..line.len()];
-    for (s, &x) in signs.iter_mut().zip(line) {
-        *s = x.signum() as i8;
-    }
+    let mut signs = signs_of(line);
     if signs
         .iter()
         .zip(sides)
@@ -1343,7 +1323,7 @@ fn solve_line(
             .collect();
         return Err(unexplained(never_taking_part, columns, sides));
     }
-    let flip = flip_wanted(signs, sides);
+    let flip = flip_wanted(&signs, sides);
     if flip {
         for s in signs.iter_mut() {
             *s = -*s;
@@ -1363,7 +1343,7 @@ fn solve_line(
         let vector: Vec<BigInt> = line.iter().map(|&x| BigInt::from(oriented(x))).collect();
         reaction_of(&vector, columns)
     };
-    finish(signs, reaction, columns, written)
+    finish(&signs, reaction, columns, written)
 }
 
 /// The user's species on their written sides (or the error naming those that are not), then

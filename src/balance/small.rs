@@ -13,6 +13,7 @@
 use super::Column;
 use super::matrix::WorkMeter;
 use crate::elements::Element;
+use num_integer::Integer;
 
 /// Most conservation rows (elements plus the charge) handled on the stack.
 pub const MAX_ROWS: usize = 12;
@@ -206,7 +207,7 @@ fn null_vector(
     for (row, &pivot_column) in reduced.iter().zip(pivots) {
         if row[free] != 0 {
             let pivot = row[pivot_column];
-            common = (common / gcd(common, pivot)).checked_mul(pivot)?;
+            common = (common / common.gcd(&pivot)).checked_mul(pivot)?;
         }
     }
     let mut vector = [0i64; MAX_COLUMNS];
@@ -217,7 +218,7 @@ fn null_vector(
             vector[pivot_column] = a.checked_mul(common / row[pivot_column])?.checked_neg()?;
         }
     }
-    let content = vector[..columns].iter().fold(0i64, |g, &x| gcd(g, x));
+    let content = vector[..columns].iter().fold(0i64, |g, x| g.gcd(x));
     for x in vector[..columns].iter_mut() {
         *x /= content;
     }
@@ -257,15 +258,6 @@ impl ExactDivisor {
         debug_assert_eq!(value % self.divisor, 0, "inexact division");
         ((value >> self.shift) as u64).wrapping_mul(self.inverse) as i64
     }
-}
-
-/// The nonnegative gcd of two values, neither of them `i64::MIN`.
-fn gcd(a: i64, b: i64) -> i64 {
-    let (mut a, mut b) = (a.unsigned_abs(), b.unsigned_abs());
-    while b != 0 {
-        (a, b) = (b, a % b);
-    }
-    a as i64
 }
 
 #[cfg(test)]
