@@ -456,59 +456,181 @@ fn holds_chromium_vi(species: &Species) -> bool {
     })
 }
 
-/// The hazard the caution line names for one species on one side of a reaction (gases are
-/// named only as products), or `None`. Depends on the species alone, so a batch can keep it.
+/// Substances a caution names by their exact composition (neutral species of whole-number
+/// formulas; the isotopes of hydrogen count as hydrogen), with their hazard, and whether they
+/// are named only as products. The hazards are common practice of the trade (the hazard
+/// statements of the usual safety data sheets, from memory). Oxygen is named only when it is
+/// evolved (on charge, in electrolysis): as a reactant it is usually the air of a corrosion
+/// reaction or an air cathode. Every other substance here is a hazard whichever side it is on
+/// (hydrogen consumed by a fuel cell, bromine stored in a flow cell).
+const NAMED_SUBSTANCES: &[NamedSubstance] = &[
+    NamedSubstance {
+        formula: &[("H", 2)],
+        hazard: "hydrogen (flammable, explosive with air)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("O", 2)],
+        hazard: "oxygen (feeds fires; with hydrogen explosive)",
+        products_only: true,
+    },
+    NamedSubstance {
+        formula: &[("O", 3)],
+        hazard: "ozone (toxic; strong oxidiser)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("F", 2)],
+        hazard: "fluorine (extremely toxic and corrosive; ignites most materials)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("Cl", 2)],
+        hazard: "chlorine (toxic gas)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("Br", 2)],
+        hazard: "bromine (toxic, corrosive; fumes at room temperature)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("H", 2), ("S", 1)],
+        hazard: "hydrogen sulfide (toxic gas; dulls the sense of smell)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("C", 1), ("O", 1)],
+        hazard: "carbon monoxide (toxic gas)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("S", 1), ("O", 2)],
+        hazard: "sulfur dioxide (toxic gas)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("N", 1), ("O", 1)],
+        hazard: "nitrogen oxides (toxic gases)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("N", 1), ("O", 2)],
+        hazard: "nitrogen oxides (toxic gases)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("N", 2), ("O", 4)],
+        hazard: "nitrogen oxides (toxic gases)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("N", 1), ("H", 3)],
+        hazard: "ammonia (toxic, corrosive)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("N", 2), ("H", 4)],
+        hazard: "hydrazine (toxic, carcinogenic; flammable)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("H", 2), ("O", 2)],
+        hazard: "hydrogen peroxide (strong oxidiser; concentrated solutions burn skin)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("Na", 1)],
+        hazard: "sodium metal (reacts violently with water; can ignite)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("K", 1)],
+        hazard: "potassium metal (reacts violently with water; can ignite)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("Rb", 1)],
+        hazard: "rubidium metal (reacts violently with water; ignites in air)",
+        products_only: false,
+    },
+    NamedSubstance {
+        formula: &[("Cs", 1)],
+        hazard: "caesium metal (reacts violently with water; ignites in air)",
+        products_only: false,
+    },
+];
+
+/// A substance of [`NAMED_SUBSTANCES`]: its composition by element symbol, the hazard the
+/// caution names, and whether it is named only as a product.
+struct NamedSubstance {
+    formula: &'static [(&'static str, u64)],
+    hazard: &'static str,
+    products_only: bool,
+}
+
+/// Elements whose every compound a caution names (common practice of the trade, from memory).
+const NAMED_ELEMENTS: &[(&str, &str)] = &[
+    ("Hg", "mercury (toxic)"),
+    ("Cd", "cadmium (toxic, carcinogenic)"),
+    ("Pb", "lead (toxic)"),
+    ("As", "arsenic (toxic)"),
+    (
+        "Li",
+        "lithium (reacts violently with water; lithium cells can run away thermally)",
+    ),
+    ("V", "vanadium compounds (toxic)"),
+    ("Ni", "nickel compounds (carcinogenic)"),
+    ("Co", "cobalt compounds (toxic)"),
+    ("Tl", "thallium (highly toxic)"),
+    ("Be", "beryllium (toxic, carcinogenic)"),
+    ("Se", "selenium compounds (toxic)"),
+    ("Sb", "antimony compounds (toxic)"),
+    ("Ba", "barium compounds (toxic when soluble)"),
+    ("U", "uranium (radioactive, toxic)"),
+    ("Th", "thorium (radioactive)"),
+    ("Ra", "radium (intensely radioactive)"),
+];
+
+/// The hazard the caution line names for one species on one side of a reaction, or `None`.
+/// Depends on the species alone, so a batch can keep it.
 pub fn species_hazard(species: &Species, is_product: bool) -> Option<&'static str> {
     let counts = species.composition.counts();
-    let count = |symbol: &str| {
+    // Counts by chemical element: D2 is hydrogen, HDO is water.
+    let count = |symbol: &str| -> u64 {
         counts
             .iter()
-            .find(|(e, _)| e.symbol() == symbol)
-            .map_or(0, |&(_, n)| n)
+            .filter(|(e, _)| e.chemical_element().symbol() == symbol)
+            .map(|&(_, n)| n)
+            .sum()
     };
-    let only = |symbols: &[&str]| counts.iter().all(|(e, _)| symbols.contains(&e.symbol()));
-    let state_gas_or_none = !matches!(
-        species.state,
-        Some(s) if s != crate::notation::State::Gas
-    );
-    if is_product && species.charge() == 0 && state_gas_or_none {
-        // Read once: parsing the three formulas for every product cost more than the rest of
-        // the caution.
-        static GASES: std::sync::OnceLock<Vec<(crate::notation::SpeciesKind, &'static str)>> =
-            std::sync::OnceLock::new();
-        let gases = GASES.get_or_init(|| {
-            [
-                ("H2", "hydrogen (flammable, explosive with air)"),
-                ("O2", "oxygen (feeds fires; with hydrogen explosive)"),
-                ("Cl2", "chlorine (toxic gas)"),
-            ]
-            .into_iter()
-            .filter_map(|(formula, hazard)| Some((parse_species(formula).ok()?.kind, hazard)))
-            .collect()
-        });
-        if let Some((_, hazard)) = gases.iter().find(|(kind, _)| *kind == species.kind) {
-            return Some(hazard);
+    let only = |symbols: &[&str]| {
+        counts
+            .iter()
+            .all(|(e, _)| symbols.contains(&e.chemical_element().symbol()))
+    };
+    if species.charge() == 0 && species.composition.is_integral() {
+        let evolved_gas =
+            is_product && !matches!(species.state, Some(s) if s != crate::notation::State::Gas);
+        for named in NAMED_SUBSTANCES {
+            let symbols: smallvec::SmallVec<[&str; 4]> =
+                named.formula.iter().map(|&(symbol, _)| symbol).collect();
+            if (!named.products_only || evolved_gas)
+                && only(&symbols)
+                && named.formula.iter().all(|&(symbol, n)| count(symbol) == n)
+            {
+                return Some(named.hazard);
+            }
         }
     }
     if count("Cr") > 0 && holds_chromium_vi(species) {
         return Some("chromium(VI) (carcinogenic)");
     }
-    for (symbol, hazard) in [
-        ("Hg", "mercury (toxic)"),
-        ("Cd", "cadmium (toxic, carcinogenic)"),
-        ("Pb", "lead (toxic)"),
-        ("As", "arsenic (toxic)"),
-        (
-            "Li",
-            "lithium (reacts violently with water; lithium cells can run away thermally)",
-        ),
-        ("V", "vanadium compounds (toxic)"),
-        ("Ni", "nickel compounds (carcinogenic)"),
-        ("Co", "cobalt compounds (toxic)"),
-    ] {
-        if count(symbol) > 0 {
-            return Some(hazard);
-        }
+    if let Some(&(_, hazard)) = NAMED_ELEMENTS
+        .iter()
+        .find(|&&(symbol, _)| count(symbol) > 0)
+    {
+        return Some(hazard);
     }
     if count("C") > 0 && count("C") == count("N") && count("O") == 0 && count("S") == 0 {
         return Some("cyanide (highly toxic; never acidify)");
@@ -561,6 +683,36 @@ mod tests {
 
     fn couple(text: &str, e0: f64) -> Couple {
         Couple::new(text, e0).unwrap()
+    }
+
+    #[test]
+    fn named_substances_match_by_composition_and_side() {
+        let hazard = |text: &str, is_product: bool| {
+            species_hazard(&parse_species(text).unwrap(), is_product)
+        };
+        // Oxygen only when evolved as a gas; hydrogen on either side, written any way.
+        assert_eq!(hazard("O2", false), None);
+        assert_eq!(hazard("O2(aq)", true), None);
+        assert!(hazard("O2(g)", true).unwrap().starts_with("oxygen"));
+        for text in ["H2", "H2(g)", "D2", "HD"] {
+            assert!(
+                hazard(text, false).unwrap().starts_with("hydrogen ("),
+                "{text}"
+            );
+        }
+        // The composition must match exactly: water, the nitrite ion, ammonium and sodium
+        // ion are not the named substances.
+        for text in ["H2O", "NO2-", "NH4+", "Na+", "H2O2^2+"] {
+            assert_eq!(hazard(text, true), None, "{text}");
+        }
+        assert!(
+            hazard("H2O2", false)
+                .unwrap()
+                .starts_with("hydrogen peroxide")
+        );
+        assert!(hazard("N2O4", true).unwrap().starts_with("nitrogen oxides"));
+        assert!(hazard("Na(s)", false).unwrap().starts_with("sodium metal"));
+        assert!(hazard("TlCl", false).unwrap().starts_with("thallium"));
     }
 
     #[test]

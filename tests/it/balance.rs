@@ -634,6 +634,10 @@ fn hazardous_reactions_carry_a_caution() {
         // Chlorate disproportionates to perchlorate and chloride on heating: both oxy-salts are
         // strong oxidisers (common practice).
         ("KClO3 -> KClO4 + KCl", "chlorate or perchlorate"),
+        // Copper in nitric acid gives nitrogen monoxide, a toxic gas; deuterium burns as
+        // hydrogen does (common practice).
+        ("Cu + HNO3 -> Cu(NO3)2 + NO + H2O", "nitrogen oxides"),
+        ("D2 + O2 -> D2O", "hydrogen"),
     ] {
         couplet()
             .args(["balance", input])

@@ -7,16 +7,21 @@ use couplet::constants::FARADAY_COULOMBS_PER_MOL;
 use couplet::table::{Medium, Table};
 use num_bigint::BigInt;
 
-/// Combines two built-in couples (by id or Ox/Red) and checks the net reaction and E°cell (V)
-/// within `tolerance_volts`.
-fn check(cathode: &str, anode: &str, net: &str, e0_volts: f64, tolerance_volts: f64) {
+/// The cell of two built-in couples (by id or Ox/Red) with the default options.
+fn builtin_cell(cathode: &str, anode: &str) -> couplet::cell::Cell {
     let table = Table::builtin();
-    let cell = combine(
+    combine(
         table.find(cathode, None).unwrap(),
         table.find(anode, None).unwrap(),
         CellOptions::default(),
     )
-    .unwrap();
+    .unwrap()
+}
+
+/// Combines two built-in couples (by id or Ox/Red) and checks the net reaction and E°cell (V)
+/// within `tolerance_volts`.
+fn check(cathode: &str, anode: &str, net: &str, e0_volts: f64, tolerance_volts: f64) {
+    let cell = builtin_cell(cathode, anode);
     assert_eq!(cell.net.to_string(), net);
     assert!(
         (cell.e0_volts - e0_volts).abs() <= tolerance_volts,
@@ -41,13 +46,7 @@ fn daniell_cell_is_one_point_one_volt() {
 #[test]
 fn lead_acid_cell_is_about_two_volts_and_six_make_twelve() {
     // About 2 V per cell, six in series about 12 V (DOMAIN.md, common practice).
-    let table = Table::builtin();
-    let cell = combine(
-        table.find("PbO2/PbSO4", None).unwrap(),
-        table.find("PbSO4/Pb", None).unwrap(),
-        CellOptions::default(),
-    )
-    .unwrap();
+    let cell = builtin_cell("PbO2/PbSO4", "PbSO4/Pb");
     assert_eq!(
         cell.net.to_string(),
         "PbO2(s) + 2 SO4^2- + 4 H+ + Pb(s) -> 2 PbSO4(s) + 2 H2O(l)"
@@ -73,13 +72,7 @@ fn alkaline_zinc_manganese_dioxide_cell_is_about_one_and_a_half_volts() {
 
 #[test]
 fn free_energy_and_equilibrium_constant_follow_from_exact_constants() {
-    let table = Table::builtin();
-    let cell = combine(
-        table.find("cu2+/cu", None).unwrap(),
-        table.find("zn2+/zn", None).unwrap(),
-        CellOptions::default(),
-    )
-    .unwrap();
+    let cell = builtin_cell("cu2+/cu", "zn2+/zn");
     // F = 96485.33212 C/mol (CODATA 2018, exact product e·N_A).
     assert!((FARADAY_COULOMBS_PER_MOL - 96_485.332_12).abs() < 1e-5);
     let expected_dg = -2.0 * 96_485.332_12 * cell.e0_volts / 1000.0;
@@ -467,4 +460,34 @@ fn a_concentration_cell_refuses_one_ph_for_two_compartments() {
     assert_eq!(output.status.code(), Some(2));
     let stderr = String::from_utf8_lossy(&output.stderr);
     assert!(stderr.contains("a pH in each compartment"), "{stderr}");
+}
+
+/// The caution line of the net reaction of a built-in cell, or `None`.
+fn cell_caution(cathode: &str, anode: &str) -> Option<String> {
+    caution(&builtin_cell(cathode, anode).net)
+}
+
+#[test]
+fn cells_that_store_or_consume_hazardous_substances_carry_a_caution() {
+    // The hazards are common practice of the trade (the usual safety data sheets): hydrogen
+    // consumed by a fuel cell is as flammable as hydrogen evolved on charge; a zinc–bromine
+    // flow cell stores bromine, a zinc–chlorine cell chlorine; sodium metal reacts violently
+    // with water.
+    for (cathode, anode, hazard) in [
+        ("O2/H2O", "H+/H2", "hydrogen (flammable"),
+        ("Br2(l)/Br-", "Zn2+/Zn", "bromine"),
+        ("Cl2/Cl-", "Zn2+/Zn", "chlorine"),
+        ("F2/F-", "Zn2+/Zn", "fluorine"),
+        ("S/H2S(g)", "Zn2+/Zn", "hydrogen sulfide"),
+        ("Cu2+/Cu", "Na+/Na", "sodium metal"),
+    ] {
+        let line = cell_caution(cathode, anode)
+            .unwrap_or_else(|| panic!("{cathode} | {anode}: no caution"));
+        assert!(line.contains(hazard), "{cathode} | {anode}: {line}");
+        assert!(line.contains("follow local codes"), "{line}");
+    }
+    // Oxygen taken from the air (zinc–air) is named only where it is evolved; the Daniell
+    // cell involves none of the named hazards.
+    assert_eq!(cell_caution("O2/H2O", "Zn2+/Zn"), None);
+    assert_eq!(cell_caution("Cu2+/Cu", "Zn2+/Zn"), None);
 }
