@@ -225,6 +225,7 @@ pub fn emit(
         model: &model,
         source: source.to_owned(),
         molality,
+        caution: couplet::cell::caution(standard.reaction),
     }
     .render(format))
 }

@@ -26,12 +26,15 @@ fn header(export: &Export, comment: &str) -> String {
             m.de0_dt_volts_per_kelvin()
         ),
         format!("Source of E0: {}", export.source),
+    ]
+    .into_iter()
+    .chain(export.caution.clone())
+    .chain([
         export.quotient.expression(),
         "E = E0 + dE0/dT*(T - 298.15) - (R*T/(n*F))*ln(Q); activities are dimensionless".to_owned(),
         "(gases p/1 bar, solutes gamma*m/(1 mol/kg)); pure solids and liquids are 1 and left out."
             .to_owned(),
-    ]
-    .into_iter()
+    ])
     .chain(export.molality.iter().flat_map(|form| form.describe()))
     {
         h.push_str(comment);

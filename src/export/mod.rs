@@ -80,6 +80,9 @@ pub struct Export<'a> {
     /// E(molalities, T) under a γ model with a closed form, written after E(activities, T) by
     /// the code exporters and described in the other formats; `None` for activities only.
     pub molality: Option<MolalityForm>,
+    /// The reaction's caution line ([`crate::cell::caution`]), which every format carries as a
+    /// comment (JSON: `"caution"`), or `None` when the reaction involves no named hazard.
+    pub caution: Option<String>,
 }
 
 /// The argument name of a species: `a_` then the formula with brackets and dots turned into
@@ -188,6 +191,10 @@ impl Export<'_> {
             out.push_str(&line);
             out.push('\n');
         }
+        if let Some(caution) = &self.caution {
+            out.push_str(caution);
+            out.push('\n');
+        }
         out
     }
 
@@ -241,7 +248,12 @@ impl Export<'_> {
             slope.abs(),
             m.electrons()
         );
-        for line in self.molality.iter().flat_map(|f| f.describe()) {
+        for line in self
+            .molality
+            .iter()
+            .flat_map(|f| f.describe())
+            .chain(self.caution.clone())
+        {
             out.push_str(&format!("% {line}\n"));
         }
         out
@@ -271,6 +283,7 @@ impl Export<'_> {
             "n": self.model.electrons(),
             "dedt_V_per_K": self.model.de0_dt_volts_per_kelvin(),
             "source": self.source,
+            "caution": self.caution,
             "species": species,
             "molality_function": self.molality.as_ref().map(|form| json!({
                 "gamma_model": form.model.name(),

@@ -36,6 +36,7 @@ fn render(format: Emit) -> String {
         model: &model,
         source: "Harris App. H (test)".into(),
         molality: None,
+        caution: None,
     }
     .render(format)
 }
@@ -204,6 +205,7 @@ impl MolalityCase {
             model: &model,
             source: "test".into(),
             molality: Some(form),
+            caution: None,
         }
         .render(format)
     }
@@ -471,4 +473,35 @@ fn snapshots_of_the_report_the_ph_line_and_every_export() {
         args.extend(["--emit", format]);
         insta::assert_snapshot!(format!("daniell_emit_{format}"), stdout_of(&args));
     }
+}
+
+#[test]
+fn every_export_of_a_hazardous_cell_carries_the_caution() {
+    // The lead–acid cell involves lead (toxic: common practice of the trade); code pasted into a
+    // simulation keeps the caution as a comment in that language.
+    let lead_acid = ["cell", "--cathode", "PbO2/PbSO4", "--anode", "PbSO4/Pb"];
+    for (format, comment) in [
+        ("python", "# "),
+        ("c", "// "),
+        ("rust", "// "),
+        ("latex", "% "),
+        ("text", ""),
+    ] {
+        let mut args = lead_acid.to_vec();
+        args.extend(["--emit", format]);
+        let out = stdout_of(&args);
+        assert!(
+            out.lines()
+                .any(|line| line.starts_with(&format!("{comment}caution: involves lead"))),
+            "{format}:\n{out}"
+        );
+    }
+    let mut args = lead_acid.to_vec();
+    args.extend(["--emit", "json"]);
+    let json: serde_json::Value = serde_json::from_str(&stdout_of(&args)).unwrap();
+    assert!(json["caution"].as_str().unwrap().contains("lead"), "{json}");
+    let mut args = DANIELL.to_vec();
+    args.extend(["--emit", "json"]);
+    let json: serde_json::Value = serde_json::from_str(&stdout_of(&args)).unwrap();
+    assert!(json["caution"].is_null(), "{json}");
 }
