@@ -119,6 +119,12 @@ fn oxygen_exceptions() {
     check("O2F2", &[("O", "+1")]);
     // [GE] ch. 14, hydroperoxide ion O −1 (from memory).
     check("HO2-", &[("O", "-1")]);
+    // [GE] ch. 15, peroxomonosulfuric (Caro's) acid and its salts: S +6 with one peroxo
+    // group, so O averages (3·(−2) + 2·(−1))/5 = −8/5 (from memory). KHSO5 must not be read as
+    // hydrogensulfide HS- plus O5.
+    for formula in ["H2SO5", "KHSO5", "HSO5-", "SO5^2-"] {
+        check(formula, &[("S", "+6"), ("O", "-8/5")]);
+    }
 }
 
 #[test]
