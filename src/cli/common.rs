@@ -15,13 +15,13 @@ pub struct TableArgs {
     /// already present replaces the earlier couple
     #[arg(long = "table", value_name = "FILE")]
     pub tables: Vec<PathBuf>,
-    /// Reference scale of the electrode potentials printed and of those typed with
-    /// --cathode-e0, --anode-e0 or --e0: she, rhe (with --ph), sce, ag-agcl-sat-kcl,
-    /// ag-agcl-3m-kcl, hg-hgo-1m-koh, hg-hg2so4-sat-k2so4, li-li+, … (see docs); E°cell does not
-    /// depend on it
+    /// Reference scale of the electrode potentials printed, and of any E° typed on the command
+    /// line: she, rhe (with --ph), sce, ag-agcl-sat-kcl, ag-agcl-3m-kcl, hg-hgo-1m-koh,
+    /// hg-hg2so4-sat-k2so4, li-li+, … (see docs); a cell voltage does not depend on it
     #[arg(long, value_name = "SCALE", default_value = "she")]
     pub scale: String,
-    /// pH of the solution (−2 to 16), for --scale rhe and for a(H+) in Q
+    /// pH of the solution (−2 to 16), for --scale rhe, and for a(H+) where the command computes
+    /// Q
     #[arg(long, value_parser = super::units::ph, allow_hyphen_values = true)]
     pub ph: Option<f64>,
     /// Also read formation data (the CSV layout of data/formation.csv); repeatable; a row for
