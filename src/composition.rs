@@ -208,7 +208,7 @@ pub fn decimal_text(count: &Ratio<u64>) -> String {
     }
     let mut places = 0u32;
     let mut scale = 1u64;
-    while scale % denom != 0 {
+    while !scale.is_multiple_of(denom) {
         match scale.checked_mul(10) {
             Some(next) if places < 19 => scale = next,
             _ => return format!("{numer}/{denom}"),

@@ -628,18 +628,18 @@ pub fn null_space_within(
     // When Hadamard's bound already says the minors may pass i128, the machine-integer
     // elimination would most likely be work thrown away: the modular path goes first.
     let modular_first = super::modular::hadamard_bits(matrix).is_some_and(|bits| bits > 126);
-    if modular_first {
-        if let Some(vector) = super::modular::one_dimensional_null_space(matrix, meter)? {
-            return Ok(vec![vector]);
-        }
+    if modular_first
+        && let Some(vector) = super::modular::one_dimensional_null_space(matrix, meter)?
+    {
+        return Ok(vec![vector]);
     }
     match RowEchelon::machine_within(matrix, meter)? {
         Ok(echelon) => echelon.null_space_within(meter),
         Err(overflowed) => {
-            if !modular_first {
-                if let Some(vector) = super::modular::one_dimensional_null_space(matrix, meter)? {
-                    return Ok(vec![vector]);
-                }
+            if !modular_first
+                && let Some(vector) = super::modular::one_dimensional_null_space(matrix, meter)?
+            {
+                return Ok(vec![vector]);
             }
             RowEchelon::big_from(&mut overflowed.widen(), meter)?.null_space_within(meter)
         }

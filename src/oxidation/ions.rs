@@ -457,10 +457,10 @@ pub(super) fn assign(
     let mut choice = vec![0usize; slots.len()];
     let mut results: Vec<Vec<Assignment>> = Vec::new();
     for _ in 0..MAX_SPLITS {
-        if let Some(result) = try_split(table, &scanned, &choice, pins, &elements) {
-            if !results.iter().any(|r| same_values(r, &result)) {
-                results.push(result);
-            }
+        if let Some(result) = try_split(table, &scanned, &choice, pins, &elements)
+            && !results.iter().any(|r| same_values(r, &result))
+        {
+            results.push(result);
         }
         // Next choice, odometer style.
         let mut k = 0;

@@ -316,10 +316,10 @@ fn content_mapping(text: &str, span: Span, value: &str) -> Option<(usize, Vec<(u
             if !quote.starts_with('"') {
                 continue;
             }
-            if let Some((decoded, escapes)) = decode_basic(body, start, quote.len() == 3) {
-                if decoded == value {
-                    return Some((start, escapes));
-                }
+            if let Some((decoded, escapes)) = decode_basic(body, start, quote.len() == 3)
+                && decoded == value
+            {
+                return Some((start, escapes));
             }
         }
         return None;
@@ -408,10 +408,10 @@ const PIECEWISE_FROM_BYTES: usize = 1 << 20;
 const COUPLES_PER_PIECE: usize = 1024;
 
 fn read_toml(text: &str) -> CoupleFile {
-    if text.len() >= PIECEWISE_FROM_BYTES {
-        if let Some(file) = read_toml_in_pieces(text) {
-            return file;
-        }
+    if text.len() >= PIECEWISE_FROM_BYTES
+        && let Some(file) = read_toml_in_pieces(text)
+    {
+        return file;
     }
     read_toml_whole(text)
 }
@@ -528,10 +528,10 @@ impl CoupleFile {
             };
             problem.record = Some(local + first_record);
             // The reader numbers the couple in this message from the start of the piece.
-            if let (ProblemKind::MissingKey, Some(key)) = (problem.kind, &problem.key) {
-                if problem.message == format!("couple {} has no '{key}'", local + 1) {
-                    problem.message = format!("couple {} has no '{key}'", local + first_record + 1);
-                }
+            if let (ProblemKind::MissingKey, Some(key)) = (problem.kind, &problem.key)
+                && problem.message == format!("couple {} has no '{key}'", local + 1)
+            {
+                problem.message = format!("couple {} has no '{key}'", local + first_record + 1);
             }
         }
         for key in &mut self.unknown_keys {

@@ -706,8 +706,8 @@ proptest! {
         charge in prop::sample::select(vec!["", "+", "-", "^2+", "^2-", "^3-"]),
     ) {
         let text = format!("{}{}", parts.concat(), charge);
-        if let Ok(species) = parse_species(&text) {
-            if let Ok(result) = oxidation_numbers(&species) {
+        if let Ok(species) = parse_species(&text)
+            && let Ok(result) = oxidation_numbers(&species) {
                 let total: BigRational = result
                     .elements
                     .iter()
@@ -715,7 +715,6 @@ proptest! {
                     .sum();
                 prop_assert_eq!(total, BigRational::from_integer(species.charge().into()), "{}", text);
             }
-        }
     }
 }
 
