@@ -286,27 +286,17 @@ fn built_in_couples_agree_with_formation_data_or_are_listed() {
     // docs-thermo.md; this list must stay exactly that list, so a new disagreement (or one
     // that went away) fails here instead of passing silently.
     const LISTED: &[&str] = &[
-        "ra2+/ra",
-        "s2o8^2-/so4^2-",
-        "no3-/no2",
-        "y3+/y",
         "bi3+/bi",
-        "io-/i-",
         "cd(oh)2/cd",
         "no3-/n2o4",
-        "s2o3^2-/s",
         "ce3+/ce",
         "mno4^2-/mno2",
-        "la3+/la",
         "fe3+/fe",
         "co(oh)2/co",
         "ce4+/ce3+",
         "f2/f-",
-        "clo2-/cl-",
         "ni(oh)2/ni",
-        "tl3+/tl+",
         "fe2+/fe",
-        "s/s2-",
         "co3+/co2+",
         "pt2+/pt",
     ];
@@ -333,8 +323,8 @@ fn built_in_couples_agree_with_formation_data_or_are_listed() {
     let mut listed: Vec<String> = LISTED.iter().map(|s| s.to_string()).collect();
     listed.sort();
     assert_eq!(differ, listed);
-    // Couples derived from these data are left out (they agree by construction): 94 remain.
-    assert!(both >= 90, "{both} couples computed both ways");
+    // Couples derived from these data are left out (they agree by construction): 84 remain.
+    assert!(both >= 80, "{both} couples computed both ways");
 }
 
 mod cli {
