@@ -8,11 +8,11 @@
 //! how the reaction was made.
 
 use crate::elements::Element;
-use crate::notation::{Arrow, Equation, Species, Style, species_to_string};
+use crate::notation::{Arrow, Equation, Species, Style, write_species};
 use num_bigint::BigInt;
 use num_integer::Integer;
 use num_rational::BigRational;
-use num_traits::{One, Signed, Zero};
+use num_traits::{One, Signed, ToPrimitive, Zero};
 use std::fmt;
 
 /// One species and its signed stoichiometric number.
@@ -280,33 +280,55 @@ impl Reaction {
 
     /// Writes the reaction in a given style with an arrow, reactants first.
     pub fn to_text(&self, style: Style, arrow: Arrow) -> String {
-        let side = |terms: Vec<(&Species, BigRational)>| -> String {
-            terms
-                .iter()
-                .map(|(species, c)| {
-                    let mut text = String::new();
-                    if !c.is_one() {
-                        text.push_str(&c.to_string());
-                        text.push(' ');
-                    }
-                    text.push_str(&species_to_string(species, style));
-                    text
-                })
-                .collect::<Vec<_>>()
-                .join(" + ")
-        };
         let arrow_text = match (style, arrow) {
             (Style::Unicode, Arrow::Forward) => "→",
             (Style::Unicode, Arrow::Equilibrium) => "⇌",
             (Style::Mhchem, _) => "->",
             (_, a) => a.ascii(),
         };
-        format!(
-            "{} {} {}",
-            side(self.reactants().collect()),
-            arrow_text,
-            side(self.products().collect())
-        )
+        // One string, written in place: no string per species or per coefficient.
+        let mut out = String::with_capacity(12 * self.entries.len() + 8);
+        self.write_side(&mut out, style, true);
+        out.push(' ');
+        out.push_str(arrow_text);
+        out.push(' ');
+        self.write_side(&mut out, style, false);
+        out
+    }
+
+    /// The reactants (or the products) as `2 H2O + O2`: |ν| before each species unless it is 1.
+    fn write_side(&self, out: &mut String, style: Style, reactants: bool) {
+        let side = self.entries.iter().filter(|e| {
+            if reactants {
+                e.nu.is_negative()
+            } else {
+                e.nu.is_positive()
+            }
+        });
+        for (i, entry) in side.enumerate() {
+            if i > 0 {
+                out.push_str(" + ");
+            }
+            if !(entry.nu.is_integer() && entry.nu.numer().magnitude().is_one()) {
+                write_magnitude(out, &entry.nu);
+                out.push(' ');
+            }
+            write_species(out, &entry.species, style);
+        }
+    }
+}
+
+/// |value| as `Display` writes a rational (`3`, `1/2`), into `out`.
+fn write_magnitude(out: &mut String, value: &BigRational) {
+    use std::fmt::Write as _;
+    let numer = value.numer();
+    // Writing to a String cannot fail.
+    let _ = match numer.to_i64() {
+        Some(small) => write!(out, "{}", small.unsigned_abs()),
+        None => write!(out, "{}", numer.magnitude()),
+    };
+    if !value.is_integer() {
+        let _ = write!(out, "/{}", value.denom());
     }
 }
 
@@ -322,6 +344,24 @@ mod tests {
 
     fn reaction(text: &str) -> Reaction {
         Reaction::from_equation(&text.parse().unwrap())
+    }
+
+    #[test]
+    fn text_writes_magnitudes_fractions_and_huge_coefficients() {
+        let mut r = reaction("H2 + 1/2 O2 -> H2O");
+        assert_eq!(r.to_string(), "H2 + 1/2 O2 -> H2O");
+        assert_eq!(
+            r.to_text(Style::Unicode, Arrow::Forward),
+            "H₂ + 1/2 O₂ → H₂O"
+        );
+        // A coefficient beyond 64 bits is written in full, as Display writes it.
+        let huge: BigInt = "123456789012345678901234567890".parse().unwrap();
+        r = r.scaled(&BigRational::from_integer(huge.clone() * 2));
+        assert_eq!(
+            r.to_string(),
+            format!("{} H2 + {huge} O2 -> {} H2O", &huge * 2, &huge * 2)
+        );
+        assert_eq!(Reaction::new().to_string(), " -> ");
     }
 
     #[test]

@@ -166,7 +166,7 @@ pub fn species_to_string(species: &Species, style: Style) -> String {
     out
 }
 
-fn write_species(out: &mut String, species: &Species, style: Style) {
+pub(crate) fn write_species(out: &mut String, species: &Species, style: Style) {
     match &species.kind {
         SpeciesKind::Electron => out.push_str(if style == Style::Unicode {
             "e⁻"

@@ -10,6 +10,7 @@ mod display;
 mod error;
 mod parse;
 
+pub(crate) use display::write_species;
 pub use display::{Style, equation_to_string, species_to_string};
 pub use error::{NotationError, NotationErrorKind, render_caret};
 pub use parse::{Input, LIMITS, Limits, parse_equation, parse_input, parse_species};
