@@ -7,12 +7,12 @@ use couplet::balance::{BalanceOptions, ElectronRule, Medium, balance_text};
 use couplet::export::balance_json::BalanceJson;
 use libfuzzer_sys::fuzz_target;
 
+#[path = "common.rs"]
+mod common;
+
 fuzz_target!(|data: &[u8]| {
     // The first byte picks the medium and the electron rule; the rest is the equation.
-    let Some((&mode, rest)) = data.split_first() else {
-        return;
-    };
-    let Ok(text) = std::str::from_utf8(rest) else {
+    let Some((mode, text)) = common::mode_and_text(data) else {
         return;
     };
     let medium = [Medium::None, Medium::Acid, Medium::Base][usize::from(mode % 3)];
