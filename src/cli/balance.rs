@@ -8,6 +8,7 @@ use couplet::balance::{
 };
 use couplet::balance::{HalfReactions, split};
 use couplet::export::balance_json::{BalanceJson, balance_lines_json};
+use couplet::export::batch::{batch_lines, write_in_order};
 use couplet::oxidation::{RedoxAnalysis, analyse, signed_text};
 use num_bigint::BigInt;
 use num_traits::Signed;
@@ -66,31 +67,31 @@ pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
         let all_balanced = balance_lines_json(&text, &options, out)?;
         return Ok(if all_balanced { EXIT_OK } else { EXIT_FINDINGS });
     }
-    let mut status = EXIT_OK;
-    for (index, line) in text.lines().enumerate() {
-        let line = line.trim();
-        if line.is_empty() || line.starts_with('#') {
-            continue;
-        }
-        let number = index + 1;
-        let result = balance_text(line, &options);
-        if result.is_err() {
-            status = EXIT_FINDINGS;
-        }
-        match &result {
-            Ok(balanced) => out.write_all(balanced.ascii().as_bytes())?,
-            Err(error) => {
-                let kind = failure::balance(error, line).kind;
-                write!(out, "line {number}: error ({kind}): {error}")?;
-                if let BalanceError::NotUnique { basis } = error {
-                    let listed: Vec<String> = basis.iter().map(|r| r.to_string()).collect();
-                    write!(out, ": {}", listed.join(" ; "))?;
+    let lines = batch_lines(&text);
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
+    let all_balanced = write_in_order(
+        &lines,
+        threads,
+        out,
+        || (),
+        |(), number, line, buffer| {
+            let result = balance_text(line, &options);
+            match &result {
+                Ok(balanced) => buffer.extend_from_slice(balanced.ascii().as_bytes()),
+                Err(error) => {
+                    let kind = failure::balance(error, line).kind;
+                    let _ = write!(buffer, "line {number}: error ({kind}): {error}");
+                    if let BalanceError::NotUnique { basis } = error {
+                        let listed: Vec<String> = basis.iter().map(|r| r.to_string()).collect();
+                        let _ = write!(buffer, ": {}", listed.join(" ; "));
+                    }
                 }
             }
-        }
-        writeln!(out)?;
-    }
-    Ok(status)
+            buffer.push(b'\n');
+            result.is_ok()
+        },
+    )?;
+    Ok(if all_balanced { EXIT_OK } else { EXIT_FINDINGS })
 }
 
 /// Electrons of a half-reaction, or n of a whole reaction from its redox analysis (computed

@@ -545,37 +545,85 @@ fn write_magnitude(out: &mut Vec<u8>, value: &BigRational) {
 }
 
 /// Balances `text` one equation per line (blank lines and `#` comments skipped) and writes one
-/// JSON object per line to `out`, the way `couplet balance --json -` does. Returns whether
-/// every equation balanced.
+/// JSON object per line to `out`, the way `couplet balance --json -` does: in input order, on
+/// every available core when there are many lines (the objects do not depend on the split).
+/// Returns whether every equation balanced.
 pub fn balance_lines_json(
     text: &str,
     options: &BalanceOptions,
     out: &mut dyn Write,
 ) -> io::Result<bool> {
-    let mut writer = BalanceJson::new();
-    let mut buffer = Vec::with_capacity(1 << 16);
-    let mut all_balanced = true;
-    for (index, line) in text.lines().enumerate() {
-        let line = line.trim();
-        if line.is_empty() || line.starts_with('#') {
-            continue;
-        }
-        let result = balance_text(line, options);
-        all_balanced &= result.is_ok();
-        writer.write(&mut buffer, line, Some(index + 1), options.medium, &result);
-        // Whole objects only, a block at a time: one write per block, not per line.
-        if buffer.len() >= 1 << 15 {
-            out.write_all(&buffer)?;
-            buffer.clear();
-        }
-    }
-    out.write_all(&buffer)?;
-    Ok(all_balanced)
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
+    balance_lines_json_on(text, options, out, threads)
+}
+
+/// [`balance_lines_json`] on at most `threads` threads.
+fn balance_lines_json_on(
+    text: &str,
+    options: &BalanceOptions,
+    out: &mut dyn Write,
+    threads: usize,
+) -> io::Result<bool> {
+    let lines = super::batch::batch_lines(text);
+    super::batch::write_in_order(
+        &lines,
+        threads,
+        out,
+        BalanceJson::new,
+        |writer, number, line, buffer| {
+            let result = balance_text(line, options);
+            writer.write(buffer, line, Some(number), options.medium, &result);
+            result.is_ok()
+        },
+    )
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A batch long enough for the workers gives the objects one thread gives, in input order,
+    /// with the input line numbers (comments, blank lines and failures among them).
+    #[test]
+    fn a_batch_on_several_threads_writes_what_one_thread_writes() {
+        let corpus = crate::oxidation::corpus::lines();
+        let mut text = String::new();
+        let mut i = 0;
+        while text.lines().count() < 3 * super::super::batch::PARALLEL_FROM_LINES {
+            let (line, _) = &corpus[i % corpus.len()];
+            text.push_str(line);
+            text.push('\n');
+            match i % 7 {
+                0 => text.push_str("# a comment\n"),
+                3 => text.push_str("\n   \n"),
+                5 => text.push_str("Fe + -> Fe2+\n"),
+                _ => {}
+            }
+            i += 1;
+        }
+        let options = BalanceOptions {
+            medium: Medium::Acid,
+            ..BalanceOptions::default()
+        };
+        let mut reference = Vec::new();
+        let all = balance_lines_json_on(&text, &options, &mut reference, 1).unwrap();
+        assert!(!all, "the syntax errors fail");
+        for threads in [2, 3] {
+            let mut out = Vec::new();
+            assert!(!balance_lines_json_on(&text, &options, &mut out, threads).unwrap());
+            assert!(out == reference, "{threads} threads");
+        }
+        // Failed equations carry their input line number: the last ones come from far down.
+        let last_failed = reference
+            .split(|&b| b == b'\n')
+            .filter(|object| !object.is_empty())
+            .filter_map(|object| {
+                serde_json::from_slice::<serde_json::Value>(object).unwrap()["line"].as_u64()
+            })
+            .max()
+            .unwrap();
+        assert!(last_failed > 6000, "{last_failed}");
+    }
 
     #[test]
     fn machine_rationals_write_what_big_rationals_write() {

@@ -3,9 +3,10 @@
 //! exact SI values, a comment header naming the reaction, E°, n and the data source.
 //!
 //! Exporters never re-parse text: they work from the [`Quotient`] and the [`CellModel`].
-//! [`balance_json`] writes the JSON lines of balance results.
+//! [`balance_json`] writes the JSON lines of balance results, a batch on every core ([`batch`]).
 
 pub mod balance_json;
+pub mod batch;
 mod code;
 pub mod molality;
 
