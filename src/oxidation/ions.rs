@@ -18,7 +18,7 @@ use super::rules::{Fragment, assign_fragment};
 use super::{Assignment, OxidationError, Pin, Rule, Status, parse_signed_rational};
 use crate::composition::Composition;
 use crate::elements::Element;
-use crate::notation::{Count, Formula, SpeciesKind, Unit, parse_species};
+use crate::notation::{Bracket, Count, Formula, SpeciesKind, Unit, parse_species};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::Zero;
@@ -158,10 +158,16 @@ impl IonTable {
     }
 
     /// The longest run of plain atoms at the start of `units` written as an ion is, with every
-    /// ion written that way.
-    fn run_at(&self, units: &[Unit]) -> Option<(usize, Vec<usize>)> {
+    /// ion written that way; inside a complex (`in_complex`) the ligands count too, so that
+    /// the NO of `[Fe(CN)5NO]2-` is the nitrosyl ligand without brackets of its own.
+    fn run_at(&self, units: &[Unit], in_complex: bool) -> Option<(usize, Vec<usize>)> {
+        let end = if in_complex {
+            self.ions.len()
+        } else {
+            self.ion_count
+        };
         let mut best: Option<(usize, Vec<usize>)> = None;
-        for (i, ion) in self.ions[..self.ion_count].iter().enumerate() {
+        for (i, ion) in self.ions[..end].iter().enumerate() {
             let len = ion.body.len();
             let plain = ion.body.iter().all(|u| matches!(u, Unit::Atom { .. }));
             if !plain || len > units.len() || units[..len] != ion.body[..] {
@@ -304,17 +310,25 @@ struct Scanned {
     charge: i64,
 }
 
+/// Scans `units` (`factor` times over) for known ions, and for ligands as well inside a
+/// complex (`in_complex`: within square brackets), into `found`; other atoms go to `rest`.
 fn scan(
     table: &IonTable,
     units: &[Unit],
     factor: u64,
     found: &mut Vec<Found>,
     rest: &mut Composition,
+    in_complex: bool,
 ) -> Option<()> {
     let mut i = 0;
     while i < units.len() {
         match &units[i] {
-            Unit::Group { body, count, .. } => {
+            Unit::Group {
+                body,
+                count,
+                bracket,
+                ..
+            } => {
                 let times = factor.checked_mul(whole(count)?)?;
                 let mut atoms = Composition::default();
                 units_composition(body, 1, &mut atoms)?;
@@ -322,7 +336,8 @@ fn scan(
                 // brackets say it is one unit, so there is no risk of cutting a molecule.
                 let candidates = table.with_atoms(atoms.counts(), true);
                 if candidates.is_empty() {
-                    scan(table, body, times, found, rest)?;
+                    let complex = in_complex || *bracket == Bracket::Square;
+                    scan(table, body, times, found, rest, complex)?;
                 } else {
                     found.push(Found {
                         candidates,
@@ -334,7 +349,7 @@ fn scan(
             }
             Unit::Atom { element, count, .. } => {
                 match table
-                    .run_at(&units[i..])
+                    .run_at(&units[i..], in_complex)
                     .map(|(len, c)| (len, polyatomic(table, c)))
                 {
                     Some((len, candidates)) if !candidates.is_empty() => {
@@ -426,7 +441,7 @@ pub(super) fn assign(
         let mut found = Vec::new();
         let mut rest = Composition::default();
         let factor = component.multiplier as u64;
-        let ok = scan(table, &component.body, factor, &mut found, &mut rest);
+        let ok = scan(table, &component.body, factor, &mut found, &mut rest, false);
         // Carbon left over means an organic formula, which is not cut into ions unless the
         // writer bracketed the ion (nitrate groups in C3H5(NO3)3).
         let usable = ok.is_some()

@@ -843,6 +843,14 @@ fn coordination_compounds_by_the_ionic_convention() {
     // [GE] ch. 11 (nitrogen): sodium nitroprusside, Fe(II) with linear NO+ (from memory).
     check("Na2[Fe(CN)5(NO)]", &[("Fe", "+2")]);
     check_sites("Na2[Fe(CN)5(NO)]", "N", &[("-3", 5), ("+3", 1)]);
+    // The same salt as it is usually printed, the NO without brackets of its own: inside the
+    // complex's square brackets a plain run of a ligand's atoms is that ligand.
+    check("Na2[Fe(CN)5NO]", &[("Fe", "+2")]);
+    check_sites("Na2[Fe(CN)5NO]", "N", &[("-3", 5), ("+3", 1)]);
+    // [GE] ch. 26 (cobalt): nitropentaamminecobalt(III) and aquapentaamminecobalt(III), the
+    // last ligand written plainly (from memory).
+    check("[Co(NH3)5NO2]Cl2", &[("Co", "+3")]);
+    check("[Co(NH3)5H2O]Cl3", &[("Co", "+3")]);
     // Urea written either way is the same neutral ligand (common practice).
     check(
         "[Cr(N2H4CO)6]^3+",
