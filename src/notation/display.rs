@@ -75,6 +75,7 @@ fn write_units(out: &mut String, units: &[Unit], style: Style) {
                 bracket,
                 body,
                 count,
+                abbreviation,
                 ..
             } => {
                 let (open, close) = match bracket {
@@ -82,7 +83,11 @@ fn write_units(out: &mut String, units: &[Unit], style: Style) {
                     Bracket::Square => ('[', ']'),
                 };
                 out.push(open);
-                write_units(out, body, style);
+                match abbreviation {
+                    // Written back as the user wrote it: `[Co(en)3]^3+`.
+                    Some(abbreviation) => out.push_str(abbreviation),
+                    None => write_units(out, body, style),
+                }
                 out.push(close);
                 write_count(out, *count, style);
             }

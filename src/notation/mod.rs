@@ -13,7 +13,9 @@ mod parse;
 pub(crate) use display::write_species;
 pub use display::{Style, equation_to_string, species_to_string};
 pub use error::{NotationError, NotationErrorKind, render_caret};
-pub use parse::{Input, LIMITS, Limits, parse_equation, parse_input, parse_species};
+pub use parse::{
+    Input, LIGAND_ABBREVIATIONS, LIMITS, Limits, parse_equation, parse_input, parse_species,
+};
 
 use crate::composition::Composition;
 use crate::elements::Element;
@@ -86,6 +88,9 @@ pub enum Unit {
         body: Vec<Unit>,
         /// The subscript after the closing bracket, 1 when none was written.
         count: Count,
+        /// The ligand abbreviation the group was written as (`en` in `[Co(en)3]^3+`), whose
+        /// atoms `body` holds; `None` for a group written out.
+        abbreviation: Option<&'static str>,
         /// Where it was read, brackets and count included.
         span: Span,
     },

@@ -105,6 +105,42 @@ fn fail<'a, T>(
     }))
 }
 
+/// Ligand abbreviations read inside formulas, with the formula each stands for (the free
+/// ligand's atoms; its charge and internal oxidation states are in `data/ligands.toml` or, for
+/// oxalate, `data/polyatomic_ions.toml`). Common practice of coordination chemistry
+/// (IUPAC Red Book 2005, IR-4.4.4 and Table VII, lists such abbreviations; from memory). None
+/// collides with a state or compartment label.
+pub const LIGAND_ABBREVIATIONS: [(&str, &str); 10] = [
+    ("en", "C2H8N2"),
+    ("py", "C5H5N"),
+    ("bpy", "C10H8N2"),
+    ("bipy", "C10H8N2"),
+    ("phen", "C12H8N2"),
+    ("dien", "C4H13N3"),
+    ("ox", "C2O4"),
+    ("acac", "C5H7O2"),
+    ("gly", "C2H4NO2"),
+    ("edta", "C10H12N2O8"),
+];
+
+/// The abbreviation as kept in the formula tree and the atoms it stands for (read once).
+fn ligand_abbreviation(word: &str) -> Option<(&'static str, &'static [Unit])> {
+    static BODIES: std::sync::LazyLock<Vec<Vec<Unit>>> = std::sync::LazyLock::new(|| {
+        LIGAND_ABBREVIATIONS
+            .iter()
+            .map(|(_, formula)| match parse_species(formula) {
+                Ok(Species {
+                    kind: SpeciesKind::Formula(f),
+                    ..
+                }) => f.components[0].body.clone(),
+                _ => unreachable!("the abbreviations' formulas are plain formulas"),
+            })
+            .collect()
+    });
+    let index = LIGAND_ABBREVIATIONS.iter().position(|(a, _)| *a == word)?;
+    Some((LIGAND_ABBREVIATIONS[index].0, &BODIES[index]))
+}
+
 /// A soft miss: the caller may try something else here.
 fn miss<'a, T>(at: &'a str) -> Res<'a, T> {
     Err(nom::Err::Error(PErr::from_error_kind(at, ErrorKind::Fail)))
@@ -478,9 +514,13 @@ impl<'a> Ctx<'a> {
                 return Ok((rest, (unit, LastCount::of(count, ascii_written))));
             }
         };
-        // `(` before a small letter starts a state label, not a group.
+        // `(` before a small letter starts a ligand abbreviation (`(en)`), or else a state
+        // label, not a group.
         if open == Bracket::Round && input[1..].starts_with(|c: char| c.is_ascii_lowercase()) {
-            return miss(input);
+            return match self.abbreviated_ligand(input) {
+                Some(found) => Ok(found),
+                None => miss(input),
+            };
         }
         if depth >= super::LIMITS.max_nesting {
             return fail(
@@ -514,9 +554,42 @@ impl<'a> Ctx<'a> {
             bracket: open,
             body,
             count,
+            abbreviation: None,
             span: self.span(input, rest),
         };
         Ok((rest, (unit, LastCount::of(count, ascii_written))))
+    }
+
+    /// `(en)3` and the like: a ligand abbreviation of [`LIGAND_ABBREVIATIONS`] in round
+    /// brackets, read as the group of its formula's atoms (each with the abbreviation's span)
+    /// that keeps the abbreviation for writing back. `None` when the word is no abbreviation.
+    fn abbreviated_ligand(&self, input: &'a str) -> Option<(&'a str, (Unit, LastCount))> {
+        let word_end = input[1..]
+            .find(|c: char| !c.is_ascii_lowercase())
+            .map(|i| i + 1)?;
+        let after = input[word_end..].strip_prefix(')')?;
+        let (abbreviation, body) = ligand_abbreviation(&input[1..word_end])?;
+        let (rest, (count, ascii_written)) = count(after).ok()?;
+        let span = self.span(input, rest);
+        let body = body
+            .iter()
+            .map(|unit| match unit {
+                Unit::Atom { element, count, .. } => Unit::Atom {
+                    element: *element,
+                    count: *count,
+                    span,
+                },
+                group => group.clone(),
+            })
+            .collect();
+        let unit = Unit::Group {
+            bracket: Bracket::Round,
+            body,
+            count,
+            abbreviation: Some(abbreviation),
+            span,
+        };
+        Some((rest, (unit, LastCount::of(count, ascii_written))))
     }
 
     /// One or more units, and how the last one's count was written.
@@ -1022,7 +1095,8 @@ fn label(input: &str) -> Res<'_, Option<Label>> {
             label_len + 1 + usize::from(after.starts_with(')')),
             NotationErrorKind::Syntax,
             format!(
-                "unknown state label '({label})': use (s), (l), (g), (aq) or (cr), or a compartment (cathode) or (anode)"
+                "unknown state label '({label})': use (s), (l), (g), (aq) or (cr), or a compartment (cathode) or (anode); a ligand abbreviation in a formula is one of {}",
+                LIGAND_ABBREVIATIONS.map(|(a, _)| a).join(", ")
             ),
         ),
     }

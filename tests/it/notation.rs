@@ -60,6 +60,44 @@ fn plus_between_formulas_separates_and_plus_digits_at_the_end_is_a_charge() {
 }
 
 #[test]
+fn ligand_abbreviations_read_as_their_formulas_and_write_back_as_written() {
+    // [Co(en)3]^3+ holds C6H24N6 (en = ethane-1,2-diamine, C2H8N2); [Fe(ox)3]^3- C6O12.
+    for (text, atoms) in [
+        (
+            "[Co(en)3]3+",
+            [("Co", 1), ("C", 6), ("H", 24), ("N", 6)].as_slice(),
+        ),
+        ("[Fe(ox)3]3-", [("Fe", 1), ("C", 6), ("O", 12)].as_slice()),
+        (
+            "Cu(gly)2",
+            [("Cu", 1), ("C", 4), ("H", 8), ("N", 2), ("O", 4)].as_slice(),
+        ),
+    ] {
+        let species = parse_species(text).unwrap();
+        for &(symbol, n) in atoms {
+            let count = species
+                .composition
+                .counts()
+                .iter()
+                .find(|(e, _)| e.symbol() == symbol)
+                .map_or(0, |&(_, n)| n);
+            assert_eq!(count, n, "{text}: {symbol}");
+        }
+        assert_eq!(species.ascii(), text);
+    }
+    // An abbreviation is not the same species as its formula written out (the text differs),
+    // but has the same composition.
+    let short = parse_species("[Co(en)3]^3+").unwrap();
+    let long = parse_species("[Co(C2H8N2)3]^3+").unwrap();
+    assert_eq!(short.composition, long.composition);
+    assert_eq!(short.unicode(), "[Co(en)₃]³⁺");
+    // A word that is no abbreviation is refused with the abbreviations listed.
+    let error = parse_species("Fe(xyz)3").unwrap_err();
+    assert!(error.message.contains("en, py, bpy"), "{}", error.render());
+    assert_eq!(error.column(), 3);
+}
+
+#[test]
 fn errors_point_at_the_fault() {
     let cases = [
         ("MnXx4", NotationErrorKind::UnknownElement, 3),
@@ -85,9 +123,9 @@ mod properties {
     //! parse(display(x)) == x for generated species and equations, and no input panics.
     use couplet::elements::Element;
     use couplet::notation::{
-        Arrow, Bracket, Compartment, Component, Equation, Formula, Species, SpeciesKind, State,
-        Style, Term, Unit, equation_to_string, parse_equation, parse_input, parse_species,
-        species_to_string,
+        Arrow, Bracket, Compartment, Component, Equation, Formula, LIGAND_ABBREVIATIONS, Species,
+        SpeciesKind, State, Style, Term, Unit, equation_to_string, parse_equation, parse_input,
+        parse_species, species_to_string,
     };
     use num_rational::Ratio;
     use proptest::prelude::*;
@@ -113,7 +151,22 @@ mod properties {
             count,
             span: Default::default(),
         });
-        atom.prop_recursive(3, 12, 3, |inner| {
+        // A ligand written by its abbreviation (`(en)3`): the group of its formula's atoms.
+        let abbreviated =
+            (0..LIGAND_ABBREVIATIONS.len(), subscript(1..4)).prop_map(|(i, count)| {
+                let (abbreviation, formula) = LIGAND_ABBREVIATIONS[i];
+                let SpeciesKind::Formula(f) = parse_species(formula).unwrap().kind else {
+                    unreachable!("a formula")
+                };
+                Unit::Group {
+                    bracket: Bracket::Round,
+                    body: f.components[0].body.clone(),
+                    count,
+                    abbreviation: Some(abbreviation),
+                    span: Default::default(),
+                }
+            });
+        prop_oneof![9 => atom, 1 => abbreviated].prop_recursive(3, 12, 3, |inner| {
             (
                 prop_oneof![Just(Bracket::Round), Just(Bracket::Square)],
                 proptest::collection::vec(inner, 1..3),
@@ -123,6 +176,7 @@ mod properties {
                     bracket,
                     body,
                     count,
+                    abbreviation: None,
                     span: Default::default(),
                 })
         })

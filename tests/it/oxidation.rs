@@ -851,6 +851,20 @@ fn coordination_compounds_by_the_ionic_convention() {
     // last ligand written plainly (from memory).
     check("[Co(NH3)5NO2]Cl2", &[("Co", "+3")]);
     check("[Co(NH3)5H2O]Cl3", &[("Co", "+3")]);
+    // Ligands written by their usual abbreviations (IUPAC Red Book 2005, Table VII, from
+    // memory): [Co(en)3]Cl3 Co(III) [HS]; potassium ferrioxalate Fe(III), the actinometer salt;
+    // [Ru(bpy)3]2+ Ru(II), the electrochemiluminescence label; ferroin [Fe(phen)3]2+ Fe(II);
+    // Fe(acac)3 Fe(III); [Ca(edta)]2- Ca(II) (all from memory).
+    check("[Co(en)3]Cl3", &[("Co", "+3"), ("C", "-1"), ("N", "-3")]);
+    check("K3[Fe(ox)3]", &[("Fe", "+3"), ("C", "+3")]);
+    check("[Ru(bpy)3]^2+", &[("Ru", "+2")]);
+    check("[Ru(bipy)3]Cl2", &[("Ru", "+2")]);
+    check("[Fe(phen)3]^2+", &[("Fe", "+2")]);
+    check("Fe(acac)3", &[("Fe", "+3")]);
+    check("[Ca(edta)]^2-", &[("Ca", "+2")]);
+    check("[Cu(gly)2]", &[("Cu", "+2")]);
+    check("[Co(dien)2]^3+", &[("Co", "+3")]);
+    check("[Fe(py)6]^2+", &[("Fe", "+2")]);
     // Urea written either way is the same neutral ligand (common practice).
     check(
         "[Cr(N2H4CO)6]^3+",
