@@ -218,7 +218,7 @@ fn number_in<'a>(
 }
 
 /// Most decimal places a subscript may have.
-const MAX_DECIMAL_PLACES: u32 = 6;
+pub(crate) const MAX_DECIMAL_PLACES: u32 = 6;
 
 /// The digits after a decimal point, in `script` (ASCII when `None`): value and places.
 fn decimals<'a>(input: &'a str, script: Option<&[char; 10]>) -> Res<'a, (u64, u32)> {

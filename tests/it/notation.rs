@@ -98,6 +98,22 @@ fn ligand_abbreviations_read_as_their_formulas_and_write_back_as_written() {
 }
 
 #[test]
+fn long_decimal_subscripts_are_written_as_fractions_that_read_back() {
+    // 2/512 = 1/256 = 0.00390625 has eight decimal places, more than a subscript may have:
+    // canonical text writes the fraction (a case the parse fuzz target found).
+    for (text, canonical) in [
+        ("FC2/512", "FC1/256"),
+        ("Li1/64CoO2", "Li0.015625CoO2"),
+        ("Li1/128CoO2", "Li1/128CoO2"),
+        ("Li0.125CoO2", "Li0.125CoO2"),
+    ] {
+        let species = parse_species(text).unwrap();
+        assert_eq!(species.ascii(), canonical, "{text}");
+        assert_eq!(parse_species(&species.ascii()).unwrap(), species, "{text}");
+    }
+}
+
+#[test]
 fn errors_point_at_the_fault() {
     let cases = [
         ("MnXx4", NotationErrorKind::UnknownElement, 3),
