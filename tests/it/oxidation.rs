@@ -865,6 +865,12 @@ fn coordination_compounds_by_the_ionic_convention() {
     check("[Cu(gly)2]", &[("Cu", "+2")]);
     check("[Co(dien)2]^3+", &[("Co", "+3")]);
     check("[Fe(py)6]^2+", &[("Fe", "+2")]);
+    // Ferrocene Fe(II) and ferrocenium Fe(III), the reference couple IUPAC recommends for
+    // potentials in non-aqueous solvents (Gritzner & Kůta, Pure Appl. Chem. 56 (1984) 461;
+    // from memory), with C5H5- counted as one anionic ligand; bis(benzene)chromium Cr(0) [HS].
+    check("Fe(C5H5)2", &[("Fe", "+2"), ("C", "-6/5")]);
+    check("[Fe(C5H5)2]+", &[("Fe", "+3")]);
+    check("Cr(C6H6)2", &[("Cr", "0")]);
     // Urea written either way is the same neutral ligand (common practice).
     check(
         "[Cr(N2H4CO)6]^3+",
