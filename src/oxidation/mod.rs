@@ -81,6 +81,9 @@ pub enum Rule {
     Group1,
     /// Group 2 metals are +2.
     Group2,
+    /// Al, Zn, Cd, Sc, Y and La have one state in their compounds with non-metals (+3, +2,
+    /// +2, +3, +3, +3).
+    SingleStateMetal,
     /// H is +1 with non-metals.
     HydrogenWithNonMetals,
     /// H is −1 when every partner is less electronegative (metal hydrides, LiAlH4, NaBH4).
@@ -149,6 +152,7 @@ impl Rule {
             Rule::Fluorine => "F is -1".into(),
             Rule::Group1 => "group 1 metal is +1".into(),
             Rule::Group2 => "group 2 metal is +2".into(),
+            Rule::SingleStateMetal => "the metal's only state in compounds".into(),
             Rule::HydrogenWithNonMetals => "H is +1 with non-metals".into(),
             Rule::Hydride => "H is -1 in hydrides".into(),
             Rule::Oxygen => "O is -2".into(),

@@ -17,6 +17,25 @@ const H_POSITIVE_PARTNERS: &[&str] = &[
     "Xe", "At", "Rn",
 ];
 
+/// Metals with a single oxidation state in their compounds with non-metals (common practice;
+/// Greenwood & Earnshaw, the chapters of each group, from memory): aluminium +3, zinc and
+/// cadmium +2, scandium, yttrium and lanthanum +3. Not applied without a non-metal present: an
+/// alloy such as LaNi5 or CuZn has no ionic reading.
+const SINGLE_STATE_METALS: &[(&str, i64)] = &[
+    ("Al", 3),
+    ("Zn", 2),
+    ("Cd", 2),
+    ("Sc", 3),
+    ("Y", 3),
+    ("La", 3),
+];
+
+/// Elements that make a compound of a metal ionic enough for [`SINGLE_STATE_METALS`]: the
+/// non-metals, boron and silicon.
+const NON_METALS: &[&str] = &[
+    "H", "B", "C", "N", "O", "F", "Si", "P", "S", "Cl", "As", "Se", "Br", "Te", "I", "At",
+];
+
 /// Halogens that are −1 unless bound to O or a lighter halogen, lightest first (F is always −1).
 const HEAVY_HALOGENS: &[&str] = &["Cl", "Br", "I", "At"];
 
@@ -150,6 +169,12 @@ pub(crate) fn assign_fragment(
             .iter()
             .any(|e| H_POSITIVE_PARTNERS.contains(&e.chemical_element().symbol())),
     };
+    let with_non_metal = match fragment {
+        Fragment::Whole | Fragment::SharedSites => symbols.iter().any(|s| NON_METALS.contains(s)),
+        Fragment::Rest { species } => species
+            .iter()
+            .any(|e| NON_METALS.contains(&e.chemical_element().symbol())),
+    };
 
     // Strong rules: pins, F, groups 1 and 2, H.
     for slot in &mut slots {
@@ -168,7 +193,12 @@ pub(crate) fn assign_fragment(
             match slot.element.data().group {
                 Some(1) => Some((integer(1), Status::Determined, Rule::Group1)),
                 Some(2) => Some((integer(2), Status::Determined, Rule::Group2)),
-                _ => None,
+                _ => SINGLE_STATE_METALS
+                    .iter()
+                    .find(|(metal, _)| with_non_metal && *metal == symbol)
+                    .map(|&(_, state)| {
+                        (integer(state), Status::Determined, Rule::SingleStateMetal)
+                    }),
             }
         };
     }

@@ -128,6 +128,26 @@ fn oxygen_exceptions() {
 }
 
 #[test]
+fn metals_of_one_state_settle_mixed_oxides() {
+    // Al, Zn, Cd, Sc, Y and La have one state in their compounds (common practice; [GE], the
+    // chapters of each group, from memory), which leaves the other metal to charge balance:
+    // the garnet electrolyte LLZO has Zr(IV); La2CuO4 Cu(II); YBa2Cu3O7 Cu +7/3 on average
+    // (the superconductor's mixed Cu(II)/Cu(III), from memory); NaAlCl4 Al(III).
+    check("Li7La3Zr2O12", &[("La", "+3"), ("Zr", "+4")]);
+    check("La2CuO4", &[("Cu", "+2")]);
+    check("YBa2Cu3O7", &[("Y", "+3"), ("Cu", "+7/3")]);
+    check("NaAlCl4", &[("Al", "+3")]);
+    check("ZnFe2O4", &[("Zn", "+2"), ("Fe", "+3")]);
+    // Not in an alloy: LaNi5 and CuZn have no ionic reading and stay refused.
+    for alloy in ["LaNi5", "CuZn"] {
+        assert!(
+            oxidation_numbers(&parse_species(alloy).unwrap()).is_err(),
+            "{alloy}"
+        );
+    }
+}
+
+#[test]
 fn hydrides_and_halogens() {
     // [HS] saline hydrides: H −1 (from memory).
     check("NaH", &[("Na", "+1"), ("H", "-1")]);
