@@ -917,6 +917,26 @@ fn prussian_blue_gives_sites_as_an_assumption() {
     check_sites("Fe4[Fe(CN)6]3", "Fe", &[("+2", 3), ("+3", 4)]);
 }
 
+#[test]
+fn prussian_white_cathodes_are_read_with_ferrocyanide() {
+    // The sodium- and potassium-ion cathodes Na2Mn[Fe(CN)6] and K2Fe[Fe(CN)6] ("Prussian
+    // white") hold Mn(II) or Fe(II) beside hexacyanidoferrate(II) (battery literature, from
+    // memory): ferricyanide would leave Mn(I) or Fe(I), rare in salts, so that reading is
+    // taken only when nothing else fits. Chromium(II) permanganate keeps permanganate (the
+    // corpus equation mol-06 transfers 264 e- with it).
+    let state = |formula: &str, symbol: &str| {
+        let result = oxidation_numbers(&parse_species(formula).unwrap()).unwrap();
+        signed_text(&result.element(symbol).unwrap().oxidation_number)
+    };
+    assert_eq!(state("Na2Mn[Fe(CN)6]", "Mn"), "+2");
+    assert_eq!(state("Na2Mn[Fe(CN)6]", "Fe"), "+2");
+    assert_eq!(state("K2Fe[Fe(CN)6]", "Fe"), "+2");
+    assert_eq!(state("Na2Co[Fe(CN)6]", "Co"), "+2");
+    // Berlin green is iron(III) hexacyanidoferrate(III) ([GE] ch. 25, from memory).
+    assert_eq!(state("Fe[Fe(CN)6]", "Fe"), "+3");
+    assert_eq!(state("Cr(MnO4)2", "Mn"), "+7");
+}
+
 /// The chromium urea complex of the issue, balanced with permanganate.
 ///
 /// Coefficients and n = 5880 as stated in the issue; the same coefficients and the electron
