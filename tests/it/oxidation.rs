@@ -128,6 +128,15 @@ fn oxygen_exceptions() {
 }
 
 #[test]
+fn battery_silicates_and_thiophosphates_split_into_their_anions() {
+    // Li2FeSiO4 and Li2MnSiO4 hold M(II) beside orthosilicate; Li3PS4 is lithium
+    // tetrathiophosphate, P(V) and S(-II) (battery literature, common practice; from memory).
+    check("Li2FeSiO4", &[("Fe", "+2"), ("Si", "+4")]);
+    check("Li2MnSiO4", &[("Mn", "+2"), ("Si", "+4")]);
+    check("Li3PS4", &[("P", "+5"), ("S", "-2")]);
+}
+
+#[test]
 fn metals_of_one_state_settle_mixed_oxides() {
     // Al, Zn, Cd, Sc, Y and La have one state in their compounds (common practice; [GE], the
     // chapters of each group, from memory), which leaves the other metal to charge balance:
