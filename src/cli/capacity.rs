@@ -178,9 +178,16 @@ fn cell_json(c: &CellCapacity) -> Value {
 }
 
 fn print_materials(out: &mut dyn Write, materials: &[MaterialCapacity]) -> io::Result<()> {
+    // As wide as the longest name (`Li(Ni₀.₈Co₀.₁Mn₀.₁)O₂`), so the columns stay in line.
+    let width = materials
+        .iter()
+        .map(|m| m.species.unicode().chars().count())
+        .max()
+        .unwrap_or(0)
+        .max(14);
     writeln!(
         out,
-        "{:<14} {:<15} {:>4} {:>11} {:>10} {:>9} {:>11}",
+        "{:<width$} {:<15} {:>4} {:>11} {:>10} {:>9} {:>11}",
         "material", "", "n", "M g/mol", "mAh/g", "g/Ah", "mAh/cm3"
     )?;
     for m in materials {
@@ -191,7 +198,7 @@ fn print_materials(out: &mut dyn Write, materials: &[MaterialCapacity]) -> io::R
         };
         writeln!(
             out,
-            "{:<14} {:<15} {:>4} {:>11.3} {:>10.1} {:>9.3} {:>11}",
+            "{:<width$} {:<15} {:>4} {:>11.3} {:>10.1} {:>9.3} {:>11}",
             m.species.unicode(),
             m.side.name(),
             n,
