@@ -10,6 +10,7 @@
 use crate::constants::{
     FARADAY_COULOMBS_PER_MOL, STANDARD_TEMPERATURE_KELVIN, nernst_slope_volts_per_decade,
 };
+use crate::elements::Element;
 use crate::kw::{KW_SOURCE, pkw};
 use crate::notation::{Compartment, Species, parse_species};
 use crate::quotient::{Phase, phase_of};
@@ -613,10 +614,12 @@ pub fn species_hazard(species: &Species, is_product: bool) -> Option<&'static st
         let evolved_gas =
             is_product && !matches!(species.state, Some(s) if s != crate::notation::State::Gas);
         for named in NAMED_SUBSTANCES {
-            let symbols: smallvec::SmallVec<[&str; 4]> =
-                named.formula.iter().map(|&(symbol, _)| symbol).collect();
+            let in_formula = |element: &Element| {
+                let symbol = element.chemical_element().symbol();
+                named.formula.iter().any(|&(s, _)| s == symbol)
+            };
             if (!named.products_only || evolved_gas)
-                && only(&symbols)
+                && counts.iter().all(|(e, _)| in_formula(e))
                 && named.formula.iter().all(|&(symbol, n)| count(symbol) == n)
             {
                 return Some(named.hazard);

@@ -202,6 +202,12 @@ impl fmt::Display for Composition {
 /// An exact count as written in formulas: `4`, `0.8`, `0.125`; a count whose denominator has
 /// a factor other than 2 and 5 (never read from a decimal) as a fraction, `1/3`.
 pub fn decimal_text(count: &Ratio<u64>) -> String {
+    decimal_text_within(count, 19)
+}
+
+/// [`decimal_text`] with at most `max_places` decimal places: a longer decimal is written as
+/// its fraction (`1/256` rather than `0.00390625` with six places at most).
+pub fn decimal_text_within(count: &Ratio<u64>, max_places: u32) -> String {
     let (numer, denom) = (*count.numer(), *count.denom());
     if denom == 1 {
         return numer.to_string();
@@ -210,7 +216,7 @@ pub fn decimal_text(count: &Ratio<u64>) -> String {
     let mut scale = 1u64;
     while !scale.is_multiple_of(denom) {
         match scale.checked_mul(10) {
-            Some(next) if places < 19 => scale = next,
+            Some(next) if places < max_places => scale = next,
             _ => return format!("{numer}/{denom}"),
         }
         places += 1;

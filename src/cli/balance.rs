@@ -8,7 +8,7 @@ use couplet::balance::{
 };
 use couplet::balance::{HalfReactions, split};
 use couplet::export::balance_json::{BalanceJson, balance_lines_json};
-use couplet::export::batch::{batch_lines, write_in_order};
+use couplet::export::batch::{batch_lines, default_threads, write_in_order};
 use couplet::oxidation::{RedoxAnalysis, analyse, signed_text};
 use num_bigint::BigInt;
 use num_traits::Signed;
@@ -68,10 +68,9 @@ pub fn run(args: &BalanceArgs, out: &mut dyn Write) -> io::Result<u8> {
         return Ok(if all_balanced { EXIT_OK } else { EXIT_FINDINGS });
     }
     let lines = batch_lines(&text);
-    let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
     let all_balanced = write_in_order(
         &lines,
-        threads,
+        default_threads(),
         out,
         || (),
         |(), number, line, buffer| {

@@ -553,8 +553,7 @@ pub fn balance_lines_json(
     options: &BalanceOptions,
     out: &mut dyn Write,
 ) -> io::Result<bool> {
-    let threads = std::thread::available_parallelism().map_or(1, |n| n.get().min(8));
-    balance_lines_json_on(text, options, out, threads)
+    balance_lines_json_on(text, options, out, super::batch::default_threads())
 }
 
 /// [`balance_lines_json`] on at most `threads` threads.

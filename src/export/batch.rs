@@ -17,6 +17,11 @@ pub const PARALLEL_FROM_LINES: usize = 2048;
 /// the memory held for output that must wait for a slow block before it.
 const AHEAD_PER_WORKER: usize = 4;
 
+/// Workers a batch uses: the available cores, at most eight.
+pub fn default_threads() -> usize {
+    std::thread::available_parallelism().map_or(1, |n| n.get().min(8))
+}
+
 /// The lines of a batch as (input line number from 1, trimmed text), blank lines and `#`
 /// comments left out.
 pub fn batch_lines(text: &str) -> Vec<(usize, &str)> {

@@ -4,7 +4,7 @@
 use super::{
     Arrow, Bracket, Component, Count, Equation, Formula, Species, SpeciesKind, Term, Unit,
 };
-use crate::composition::decimal_text;
+use crate::composition::decimal_text_within;
 use num_rational::Ratio;
 use std::fmt::Write;
 
@@ -46,15 +46,9 @@ fn write_count(out: &mut String, count: Count, style: Style) {
     // Decimals: `0.8` and `1.25` plain in ASCII (the parser reads a point after 0 or 1 as a
     // decimal point), larger ones and mhchem in braces, Unicode in subscript digits.
     // Fractions that are no decimal (`1/3`) plain in ASCII, braced in mhchem.
-    let mut text = decimal_text(&count);
-    // A decimal longer than the parser reads (`1/256` is 0.00390625) is written as the
-    // fraction, so that canonical text always reads back.
-    if text
-        .split_once('.')
-        .is_some_and(|(_, places)| places.len() > super::parse::MAX_DECIMAL_PLACES as usize)
-    {
-        text = format!("{}/{}", count.numer(), count.denom());
-    }
+    // No longer a decimal than the parser reads (`1/256` stays a fraction), so that canonical
+    // text always reads back.
+    let text = decimal_text_within(&count, super::parse::MAX_DECIMAL_PLACES);
     let is_fraction = text.contains('/');
     match style {
         Style::Unicode => {

@@ -30,11 +30,9 @@ const SINGLE_STATE_METALS: &[(&str, i64)] = &[
     ("La", 3),
 ];
 
-/// Elements that make a compound of a metal ionic enough for [`SINGLE_STATE_METALS`]: the
-/// non-metals, boron and silicon.
-const NON_METALS: &[&str] = &[
-    "H", "B", "C", "N", "O", "F", "Si", "P", "S", "Cl", "As", "Se", "Br", "Te", "I", "At",
-];
+/// Elements that, besides [`H_POSITIVE_PARTNERS`], make a compound of a metal ionic enough
+/// for [`SINGLE_STATE_METALS`]: hydrogen, boron and silicon.
+const OTHER_NON_METALS: &[&str] = &["H", "B", "Si"];
 
 /// Halogens that are −1 unless bound to O or a lighter halogen, lightest first (F is always −1).
 const HEAVY_HALOGENS: &[&str] = &["Cl", "Br", "I", "At"];
@@ -161,20 +159,15 @@ pub(crate) fn assign_fragment(
     let present = |symbol: &str| symbols.contains(&symbol);
     let has_fluorine = present("F");
     let has_oxygen = present("O");
-    let h_positive = match fragment {
-        Fragment::Whole | Fragment::SharedSites => {
-            symbols.iter().any(|s| H_POSITIVE_PARTNERS.contains(s))
-        }
+    // Whether the fragment's species (the whole species for a rest) holds one of `list`.
+    let holds_any = |list: &[&str]| match fragment {
+        Fragment::Whole | Fragment::SharedSites => symbols.iter().any(|s| list.contains(s)),
         Fragment::Rest { species } => species
             .iter()
-            .any(|e| H_POSITIVE_PARTNERS.contains(&e.chemical_element().symbol())),
+            .any(|e| list.contains(&e.chemical_element().symbol())),
     };
-    let with_non_metal = match fragment {
-        Fragment::Whole | Fragment::SharedSites => symbols.iter().any(|s| NON_METALS.contains(s)),
-        Fragment::Rest { species } => species
-            .iter()
-            .any(|e| NON_METALS.contains(&e.chemical_element().symbol())),
-    };
+    let h_positive = holds_any(H_POSITIVE_PARTNERS);
+    let with_non_metal = h_positive || holds_any(OTHER_NON_METALS);
 
     // Strong rules: pins, F, groups 1 and 2, H.
     for slot in &mut slots {
